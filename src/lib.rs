@@ -1,0 +1,9 @@
+//! `lamella`: structural colour design. Thin-film optics by the
+//! characteristic-matrix method, optical constants, colorimetry and the
+//! design tools built on them. The library does no file or terminal I/O.
+
+pub mod error;
+pub mod grid;
+pub mod materials;
+
+pub use error::{Error, Result};
