@@ -29,6 +29,16 @@ pub enum Error {
         /// The unknown name.
         name: String,
     },
+    /// Text that is not valid JSON.
+    #[error("malformed JSON at line {line}, column {column}: {message}")]
+    Syntax {
+        /// 1-based line.
+        line: usize,
+        /// 1-based column.
+        column: usize,
+        /// What the parser expected.
+        message: String,
+    },
     /// A wavelength outside a tabulated material's data.
     #[error(
         "{key}: wavelength {wavelength_nm} nm is outside the material's table ({min_nm}–{max_nm} nm)"
@@ -85,6 +95,7 @@ impl Error {
                 min_nm,
                 max_nm,
             },
+            other @ Error::Syntax { .. } => other,
         }
     }
 }

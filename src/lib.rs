@@ -5,5 +5,7 @@
 pub mod error;
 pub mod grid;
 pub mod materials;
+pub mod optics;
+pub mod scene;
 
 pub use error::{Error, Result};

@@ -1,1 +1,60 @@
-fn main() {}
+//! `lamella`: the command-line front end of the structural-colour engine.
+
+mod cli;
+
+use std::path::PathBuf;
+use std::process::ExitCode;
+
+use clap::{Parser, Subcommand};
+
+/// Structural colour design: thin-film spectra, colour and design tools.
+#[derive(Parser)]
+#[command(name = "lamella", version, about, long_about = None)]
+struct Args {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Reflectance, transmittance and absorptance per polarization for every
+    /// angle and wavelength of a scene.
+    Spectrum {
+        /// Scene file (JSON).
+        scene: PathBuf,
+        /// Output format.
+        #[arg(long, value_enum, default_value = "csv")]
+        format: cli::spectrum::Format,
+        /// Write to this file (atomically) instead of stdout.
+        #[arg(short = 'o', long = "output")]
+        output: Option<PathBuf>,
+    },
+    /// List the built-in materials: model, valid range, n and k at 550 nm, source.
+    Materials,
+}
+
+fn main() -> ExitCode {
+    let args = match Args::try_parse() {
+        Ok(a) => a,
+        Err(e) => {
+            let code = if e.use_stderr() { 2 } else { 0 };
+            let _ = e.print();
+            return ExitCode::from(code);
+        }
+    };
+    let result = match args.command {
+        Command::Spectrum {
+            scene,
+            format,
+            output,
+        } => cli::spectrum::run(&scene, format, output.as_deref()),
+        Command::Materials => cli::materials::run(),
+    };
+    match result {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(f) => {
+            eprintln!("lamella: {}", f.message);
+            ExitCode::from(f.code)
+        }
+    }
+}

@@ -1,0 +1,56 @@
+//! The command-line front end: argument definitions and glue.
+
+pub mod materials;
+pub mod output;
+pub mod spectrum;
+
+use std::path::{Path, PathBuf};
+
+use lamella::scene::Scene;
+
+/// A failure with the exit code it maps to.
+#[derive(Debug)]
+pub struct Failure {
+    /// One line for stderr.
+    pub message: String,
+    /// 2 for bad input, 1 for anything else.
+    pub code: u8,
+}
+
+impl Failure {
+    /// Bad input (exit code 2).
+    pub fn input(message: impl Into<String>) -> Self {
+        Failure {
+            message: message.into(),
+            code: 2,
+        }
+    }
+
+    /// An I/O failure writing output (exit code 1).
+    pub fn io(path: &Path, e: std::io::Error) -> Self {
+        Failure {
+            message: format!("{}: cannot write: {e}", path.display()),
+            code: 1,
+        }
+    }
+}
+
+/// Result of a command.
+pub type CliResult = Result<(), Failure>;
+
+/// Reads and validates a scene file; table paths are relative to it.
+pub fn load_scene(path: &Path) -> Result<Scene, Failure> {
+    let text = std::fs::read_to_string(path)
+        .map_err(|e| Failure::input(format!("{}: cannot read scene: {e}", path.display())))?;
+    let base: PathBuf = path.parent().map(Path::to_path_buf).unwrap_or_default();
+    let load = |rel: &str| {
+        std::fs::read_to_string(base.join(rel))
+            .map_err(|e| format!("cannot read {}: {e}", base.join(rel).display()))
+    };
+    Scene::from_json(&text, &load).map_err(|e| Failure::input(format!("{}: {e}", path.display())))
+}
+
+/// Writes output, mapping failures to exit code 1.
+pub fn write_out(path: Option<&Path>, bytes: &[u8]) -> CliResult {
+    output::emit(path, bytes).map_err(|e| Failure::io(path.unwrap_or(Path::new("<stdout>")), e))
+}

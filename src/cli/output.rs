@@ -1,0 +1,38 @@
+//! Writing results: to stdout, or atomically to a file (temporary file in the
+//! same folder, then rename), so a reader never sees half a file.
+
+use std::fs;
+use std::io::{self, Write};
+use std::path::Path;
+
+/// Writes `bytes` to `path` atomically, or to stdout when `path` is `None`.
+/// Special files such as `/dev/null` are written in place.
+pub fn emit(path: Option<&Path>, bytes: &[u8]) -> io::Result<()> {
+    let Some(path) = path else {
+        let mut out = io::stdout().lock();
+        return match out.write_all(bytes).and_then(|_| out.flush()) {
+            Err(e) if e.kind() == io::ErrorKind::BrokenPipe => Ok(()),
+            other => other,
+        };
+    };
+    if fs::metadata(path).is_ok_and(|m| !m.is_file()) {
+        return fs::write(path, bytes);
+    }
+    let dir = path
+        .parent()
+        .filter(|d| !d.as_os_str().is_empty())
+        .unwrap_or(Path::new("."));
+    let name = path
+        .file_name()
+        .ok_or_else(|| io::Error::new(io::ErrorKind::InvalidInput, "not a file name"))?;
+    let tmp = dir.join(format!(
+        ".{}.{}.tmp",
+        name.to_string_lossy(),
+        std::process::id()
+    ));
+    let result = fs::write(&tmp, bytes).and_then(|_| fs::rename(&tmp, path));
+    if result.is_err() {
+        let _ = fs::remove_file(&tmp);
+    }
+    result
+}

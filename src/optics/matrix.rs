@@ -1,0 +1,202 @@
+//! 2×2 characteristic matrices and field vectors with a separate logarithmic
+//! scale, so that thick absorbing layers, evanescent layers and long stop-band
+//! stacks neither overflow nor underflow.
+
+use num_complex::Complex64;
+
+/// Entries beyond this magnitude are renormalised into the scale.
+const BIG: f64 = 1e100;
+
+/// Phase terms of one layer, shared by both polarizations: cos δ and sin δ
+/// divided by e^{Im δ}, with `log_scale` = Im δ.
+#[derive(Debug, Clone, Copy)]
+pub struct Phase {
+    /// cos δ · e^{−Im δ}.
+    pub cos: Complex64,
+    /// sin δ · e^{−Im δ}.
+    pub sin: Complex64,
+    /// Im δ ≥ 0, the factor taken out.
+    pub log_scale: f64,
+}
+
+impl Phase {
+    /// Phase thickness δ = (2π/λ)·d·q for a layer; `k0d` = 2π d / λ.
+    pub fn new(k0d: f64, q: Complex64) -> Self {
+        let (a, b) = (k0d * q.re, k0d * q.im);
+        let (sa, ca) = a.sin_cos();
+        if b == 0.0 {
+            return Phase {
+                cos: Complex64::new(ca, 0.0),
+                sin: Complex64::new(sa, 0.0),
+                log_scale: 0.0,
+            };
+        }
+        // cos(a+ib) = cos a cosh b − i sin a sinh b; sin(a+ib) = sin a cosh b + i cos a sinh b.
+        // With the factor e^{−b} taken out: cosh b → (1 + e^{−2b})/2, sinh b → (1 − e^{−2b})/2.
+        let e = (-2.0 * b).exp();
+        let (ch, sh) = (0.5 * (1.0 + e), 0.5 * (1.0 - e));
+        Phase {
+            cos: Complex64::new(ca * ch, -sa * sh),
+            sin: Complex64::new(sa * ch, ca * sh),
+            log_scale: b,
+        }
+    }
+}
+
+/// A field vector (B, C) = (E, H) tangential amplitudes with a scale e^{log}.
+#[derive(Debug, Clone, Copy)]
+pub struct Field {
+    /// Normalised vector.
+    pub v: [Complex64; 2],
+    /// Natural log of the factor taken out.
+    pub log: f64,
+}
+
+impl Field {
+    /// (1, η) at the exit medium.
+    pub fn exit(eta: Complex64) -> Self {
+        Field {
+            v: [Complex64::new(1.0, 0.0), eta],
+            log: 0.0,
+        }
+    }
+
+    /// Multiplies by the layer matrix [[cos δ, i sin δ/η], [i η sin δ, cos δ]]
+    /// (Macleod, *Thin-Film Optical Filters*, 2010, eq. 2.96).
+    #[inline]
+    pub fn through_layer(&mut self, ph: &Phase, eta: Complex64, real: bool) {
+        let [b, c] = self.v;
+        if real {
+            let (cs, sn, e) = (ph.cos.re, ph.sin.re, eta.re);
+            let (x, y) = (sn / e, sn * e);
+            self.v = [
+                b * cs + Complex64::new(-x * c.im, x * c.re),
+                Complex64::new(-y * b.im, y * b.re) + c * cs,
+            ];
+        } else {
+            let is = Complex64::i() * ph.sin;
+            self.v = [b * ph.cos + is / eta * c, is * eta * b + c * ph.cos];
+            self.log += ph.log_scale;
+        }
+        self.renormalise();
+    }
+
+    /// Multiplies by a scaled matrix.
+    pub fn through(&mut self, m: &Mat) {
+        self.v = m.apply(self.v);
+        self.log += m.log;
+        self.renormalise();
+    }
+
+    #[inline]
+    fn renormalise(&mut self) {
+        let big = self
+            .v
+            .iter()
+            .fold(0.0f64, |acc, z| acc.max(z.re.abs()).max(z.im.abs()));
+        if big > BIG {
+            let inv = 1.0 / big;
+            self.v = [self.v[0] * inv, self.v[1] * inv];
+            self.log += big.ln();
+        }
+    }
+}
+
+/// A 2×2 complex matrix `m` times e^{log}.
+#[derive(Debug, Clone, Copy)]
+pub struct Mat {
+    /// Row-major entries.
+    pub m: [[Complex64; 2]; 2],
+    /// Natural log of the factor taken out.
+    pub log: f64,
+}
+
+impl Mat {
+    /// The identity.
+    pub fn identity() -> Self {
+        let (o, z) = (Complex64::new(1.0, 0.0), Complex64::new(0.0, 0.0));
+        Mat {
+            m: [[o, z], [z, o]],
+            log: 0.0,
+        }
+    }
+
+    /// The characteristic matrix of one layer.
+    pub fn layer(ph: &Phase, eta: Complex64) -> Self {
+        let is = Complex64::i() * ph.sin;
+        Mat {
+            m: [[ph.cos, is / eta], [is * eta, ph.cos]],
+            log: ph.log_scale,
+        }
+    }
+
+    fn apply(&self, v: [Complex64; 2]) -> [Complex64; 2] {
+        let m = &self.m;
+        [
+            m[0][0] * v[0] + m[0][1] * v[1],
+            m[1][0] * v[0] + m[1][1] * v[1],
+        ]
+    }
+
+    /// The product `self · rhs` (rhs nearer the exit side).
+    pub fn mul(&self, rhs: &Mat) -> Mat {
+        let (a, b) = (&self.m, &rhs.m);
+        let mut out = Mat {
+            m: [
+                [
+                    a[0][0] * b[0][0] + a[0][1] * b[1][0],
+                    a[0][0] * b[0][1] + a[0][1] * b[1][1],
+                ],
+                [
+                    a[1][0] * b[0][0] + a[1][1] * b[1][0],
+                    a[1][0] * b[0][1] + a[1][1] * b[1][1],
+                ],
+            ],
+            log: self.log + rhs.log,
+        };
+        out.renormalise();
+        out
+    }
+
+    /// `self^n` by binary powering: O(log n) products.
+    pub fn pow(&self, mut n: u64) -> Mat {
+        let mut base = *self;
+        let mut acc = Mat::identity();
+        while n > 0 {
+            if n & 1 == 1 {
+                acc = acc.mul(&base);
+            }
+            n >>= 1;
+            if n > 0 {
+                base = base.mul(&base);
+            }
+        }
+        acc
+    }
+
+    /// The matrix of the same layers in reverse order. Every layer matrix has
+    /// equal diagonal entries, so M_k…M_1 = J (M_1…M_k)ᵀ J with J the exchange
+    /// matrix: swap the diagonal.
+    pub fn reversed(&self) -> Mat {
+        let m = &self.m;
+        Mat {
+            m: [[m[1][1], m[0][1]], [m[1][0], m[0][0]]],
+            log: self.log,
+        }
+    }
+
+    fn renormalise(&mut self) {
+        let big = self
+            .m
+            .iter()
+            .flatten()
+            .fold(0.0f64, |acc, z| acc.max(z.re.abs()).max(z.im.abs()));
+        if big > BIG || (big < 1.0 / BIG && big > 0.0) {
+            let inv = 1.0 / big;
+            for z in self.m.iter_mut().flatten() {
+                *z *= inv;
+            }
+            self.log += big.ln();
+        }
+    }
+}

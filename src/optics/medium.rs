@@ -1,0 +1,62 @@
+//! Per-medium terms at one wavelength and one angle of incidence: the normal
+//! component of the wave vector and the tilted optical admittances.
+
+use num_complex::Complex64;
+
+/// The terms every layer of one medium shares at a given (λ, angle).
+#[derive(Debug, Clone, Copy)]
+pub struct MediumTerms {
+    /// q = n·cos θ = √(n² − β²), on the branch with Im q ≥ 0 (decay away from
+    /// the incident side) and Re q ≥ 0 when Im q = 0.
+    pub q: Complex64,
+    /// Tilted admittance for s: η_s = q (units of the free-space admittance).
+    pub eta_s: Complex64,
+    /// Tilted admittance for p: η_p = n²/q.
+    pub eta_p: Complex64,
+    /// True when n and q are real: the layer is lossless and the wave
+    /// propagates, so the cheap real path applies.
+    pub real: bool,
+}
+
+impl MediumTerms {
+    /// Terms for index `n` at invariant β = n₀ sin θ₀ (complex Snell's law).
+    ///
+    /// Source: Macleod, *Thin-Film Optical Filters* (4th ed., 2010), §2.4–2.6
+    /// (tilted admittances η_s = y n cos θ, η_p = y n / cos θ); branch of
+    /// n cos θ for absorbing and evanescent media: Born & Wolf, *Principles of
+    /// Optics* (7th ed., 1999), §1.5.4 and §13.2.
+    pub fn new(n: Complex64, beta: f64) -> Self {
+        let n2 = n * n;
+        let arg = n2 - beta * beta;
+        // Force +0 on the imaginary part so a lossless evanescent wave gets +i·|q|.
+        let arg = Complex64::new(arg.re, if arg.im == 0.0 { 0.0 } else { arg.im });
+        let mut q = arg.sqrt();
+        if q.im < 0.0 || (q.im == 0.0 && q.re < 0.0) {
+            q = -q;
+        }
+        let real = n.im == 0.0 && q.im == 0.0;
+        MediumTerms {
+            q,
+            eta_s: q,
+            eta_p: n2 / q,
+            real,
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn branch_decays_in_absorbing_and_evanescent_media() {
+        let absorbing = MediumTerms::new(Complex64::new(2.0, 0.3), 0.9);
+        assert!(absorbing.q.im > 0.0 && absorbing.q.re > 0.0);
+        let evanescent = MediumTerms::new(Complex64::new(1.0, 0.0), 1.2);
+        assert!(evanescent.q.re.abs() < 1e-15 && evanescent.q.im > 0.0 && !evanescent.real);
+        let metal = MediumTerms::new(Complex64::new(0.05, 3.5), 0.5);
+        assert!(metal.q.im > 0.0);
+        let clear = MediumTerms::new(Complex64::new(1.5, 0.0), 0.5);
+        assert!(clear.real && (clear.q.re - (2.25f64 - 0.25).sqrt()).abs() < 1e-15);
+    }
+}

@@ -1,0 +1,15 @@
+//! Thin-film optics by the characteristic-matrix (Abelès) method: coherent
+//! stacks with repeat groups, absorbing and evanescent layers, thick
+//! incoherent sheets, for s and p polarization at oblique incidence.
+//!
+//! The method follows Macleod, *Thin-Film Optical Filters* (4th ed., 2010),
+//! ch. 2, and Born & Wolf, *Principles of Optics* (7th ed., 1999), §1.6.
+
+mod matrix;
+mod medium;
+mod spectra;
+mod stack;
+
+pub use medium::MediumTerms;
+pub use spectra::{Spectra, compute};
+pub use stack::{Behind, Exit, Node, Rt, Stack};

@@ -1,0 +1,91 @@
+//! Reflectance and transmittance over a grid of wavelengths and angles,
+//! averaged over an ensemble of stack realisations, in parallel.
+
+use std::f64::consts::PI;
+
+use num_complex::Complex64;
+use rayon::prelude::*;
+
+use super::medium::MediumTerms;
+use super::stack::{Rt, Stack};
+
+/// R and T per polarization on a wavelength × angle grid. Arrays are
+/// angle-major: the value at angle `a`, wavelength `w` is at `a * nw + w`.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Spectra {
+    /// Wavelengths in nm.
+    pub wavelengths_nm: Vec<f64>,
+    /// Angles of incidence in degrees.
+    pub angles_deg: Vec<f64>,
+    /// Values at every grid point.
+    pub rt: Vec<Rt>,
+}
+
+impl Spectra {
+    /// The values at angle index `a`, one per wavelength.
+    pub fn at_angle(&self, a: usize) -> &[Rt] {
+        let nw = self.wavelengths_nm.len();
+        &self.rt[a * nw..(a + 1) * nw]
+    }
+}
+
+impl Rt {
+    /// Unpolarized reflectance (R_s + R_p)/2.
+    pub fn r(&self) -> f64 {
+        0.5 * (self.rs + self.rp)
+    }
+
+    /// Unpolarized transmittance (T_s + T_p)/2.
+    pub fn t(&self) -> f64 {
+        0.5 * (self.ts + self.tp)
+    }
+}
+
+/// Computes R and T for every (angle, wavelength), averaging intensities over
+/// `realisations` (one stack for an ideal design, several for disorder).
+/// `index[m][w]` is medium m's complex index at wavelength w; the incident
+/// medium must be lossless and every angle below 90°.
+pub fn compute(
+    realisations: &[Stack],
+    index: &[Vec<Complex64>],
+    wavelengths_nm: &[f64],
+    angles_deg: &[f64],
+) -> Spectra {
+    let nw = wavelengths_nm.len();
+    let incident = realisations[0].incident;
+    let weight = 1.0 / realisations.len() as f64;
+    let rt = (0..angles_deg.len() * nw)
+        .into_par_iter()
+        .with_min_len(32)
+        .map_init(
+            || Vec::with_capacity(index.len()),
+            |terms: &mut Vec<MediumTerms>, i| {
+                let (a, w) = (i / nw, i % nw);
+                let wl = wavelengths_nm[w];
+                let beta = index[incident][w].re * angles_deg[a].to_radians().sin();
+                terms.clear();
+                terms.extend(index.iter().map(|n| MediumTerms::new(n[w], beta)));
+                let k0 = 2.0 * PI / wl;
+                let mut sum = Rt::default();
+                for stack in realisations {
+                    let x = stack.rt(terms, k0);
+                    sum.rs += x.rs;
+                    sum.rp += x.rp;
+                    sum.ts += x.ts;
+                    sum.tp += x.tp;
+                }
+                Rt {
+                    rs: sum.rs * weight,
+                    rp: sum.rp * weight,
+                    ts: sum.ts * weight,
+                    tp: sum.tp * weight,
+                }
+            },
+        )
+        .collect();
+    Spectra {
+        wavelengths_nm: wavelengths_nm.to_vec(),
+        angles_deg: angles_deg.to_vec(),
+        rt,
+    }
+}

@@ -1,0 +1,224 @@
+//! A resolved layer structure and its reflectance and transmittance at one
+//! wavelength and angle, for both polarizations.
+
+use num_complex::Complex64;
+
+use super::matrix::{Field, Mat, Phase};
+use super::medium::MediumTerms;
+
+/// One element of a stack, listed from the incident side.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Node {
+    /// A homogeneous film of medium `medium` (an index into the media list).
+    Layer {
+        /// Index of the medium.
+        medium: usize,
+        /// Physical thickness in nm.
+        thickness_nm: f64,
+    },
+    /// `count` identical copies of `nodes`, computed by powering the period's matrix.
+    Repeat {
+        /// Number of periods, ≥ 1.
+        count: u64,
+        /// One period, from the incident side.
+        nodes: Vec<Node>,
+    },
+}
+
+/// What lies behind the coherent stack.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Exit {
+    /// A semi-infinite medium.
+    Medium(usize),
+    /// A thick sheet treated incoherently (intensities add), then a medium behind it.
+    Sheet {
+        /// Medium of the sheet.
+        medium: usize,
+        /// Thickness of the sheet in nm.
+        thickness_nm: f64,
+        /// What is behind the sheet.
+        behind: Behind,
+    },
+}
+
+/// The medium behind an incoherent sheet.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Behind {
+    /// A semi-infinite medium.
+    Medium(usize),
+    /// An index-matched perfect absorber (a black backing): nothing is
+    /// reflected at the back face and all light reaching it is absorbed.
+    Black,
+}
+
+/// Incident medium, coherent layers and exit, all media by index.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Stack {
+    /// Index of the incident medium (lossless).
+    pub incident: usize,
+    /// Coherent layers from the incident side.
+    pub nodes: Vec<Node>,
+    /// What lies behind them.
+    pub exit: Exit,
+}
+
+/// Reflectance and transmittance for s and p at one point.
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct Rt {
+    /// R for s polarization.
+    pub rs: f64,
+    /// R for p polarization.
+    pub rp: f64,
+    /// T for s polarization.
+    pub ts: f64,
+    /// T for p polarization.
+    pub tp: f64,
+}
+
+impl Stack {
+    /// R and T at one wavelength: `terms[m]` holds medium m's terms at this
+    /// (λ, angle) and `k0` = 2π/λ in nm⁻¹.
+    pub fn rt(&self, terms: &[MediumTerms], k0: f64) -> Rt {
+        let inc = &terms[self.incident];
+        match self.exit {
+            Exit::Medium(m) => {
+                let ex = &terms[m];
+                let (mut fs, mut fp) = (Field::exit(ex.eta_s), Field::exit(ex.eta_p));
+                apply(&self.nodes, terms, k0, &mut fs, &mut fp);
+                let (rs, ts) = coherent(inc.eta_s, ex.eta_s, &fs);
+                let (rp, tp) = coherent(inc.eta_p, ex.eta_p, &fp);
+                Rt { rs, rp, ts, tp }
+            }
+            Exit::Sheet {
+                medium,
+                thickness_nm,
+                behind,
+            } => {
+                let sheet = &terms[medium];
+                let (ms, mp) = product(&self.nodes, terms, k0);
+                // Single-pass intensity attenuation in the sheet, exp(−2 Im δ).
+                let alpha = (-2.0 * k0 * thickness_nm * sheet.q.im).exp();
+                let back = |eta_sheet: Complex64, eta_behind: Option<Complex64>| match eta_behind {
+                    Some(eb) => interface(eta_sheet, eb),
+                    None => (0.0, 0.0),
+                };
+                let eb = |pol_s: bool| match behind {
+                    Behind::Medium(b) => Some(if pol_s {
+                        terms[b].eta_s
+                    } else {
+                        terms[b].eta_p
+                    }),
+                    Behind::Black => None,
+                };
+                let (rs, ts) = incoherent(
+                    &ms,
+                    inc.eta_s,
+                    sheet.eta_s,
+                    back(sheet.eta_s, eb(true)),
+                    alpha,
+                );
+                let (rp, tp) = incoherent(
+                    &mp,
+                    inc.eta_p,
+                    sheet.eta_p,
+                    back(sheet.eta_p, eb(false)),
+                    alpha,
+                );
+                Rt { rs, rp, ts, tp }
+            }
+        }
+    }
+}
+
+/// Carries the exit fields through `nodes` toward the incident side.
+fn apply(nodes: &[Node], terms: &[MediumTerms], k0: f64, fs: &mut Field, fp: &mut Field) {
+    for node in nodes.iter().rev() {
+        match node {
+            Node::Layer {
+                medium,
+                thickness_nm,
+            } => {
+                let t = &terms[*medium];
+                let ph = Phase::new(k0 * thickness_nm, t.q);
+                fs.through_layer(&ph, t.eta_s, t.real);
+                fp.through_layer(&ph, t.eta_p, t.real);
+            }
+            Node::Repeat { count, nodes } => {
+                let (ms, mp) = product(nodes, terms, k0);
+                fs.through(&ms.pow(*count));
+                fp.through(&mp.pow(*count));
+            }
+        }
+    }
+}
+
+/// The characteristic matrices (s, p) of `nodes`: M₁·M₂·…, incident side first.
+fn product(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> (Mat, Mat) {
+    let (mut ms, mut mp) = (Mat::identity(), Mat::identity());
+    for node in nodes {
+        let (ns, np) = match node {
+            Node::Layer {
+                medium,
+                thickness_nm,
+            } => {
+                let t = &terms[*medium];
+                let ph = Phase::new(k0 * thickness_nm, t.q);
+                (Mat::layer(&ph, t.eta_s), Mat::layer(&ph, t.eta_p))
+            }
+            Node::Repeat { count, nodes } => {
+                let (s, p) = product(nodes, terms, k0);
+                (s.pow(*count), p.pow(*count))
+            }
+        };
+        ms = ms.mul(&ns);
+        mp = mp.mul(&np);
+    }
+    (ms, mp)
+}
+
+/// R and T from the incident admittance, the exit admittance and the field
+/// (B, C) at the front face: R = |(η₀B − C)/(η₀B + C)|²,
+/// T = 4 Re(η₀) Re(η_m) / |η₀B + C|² (Macleod, *Thin-Film Optical Filters*,
+/// 2010, eq. 2.99–2.100), with the field's scale e^{log} divided out of T.
+fn coherent(eta0: Complex64, eta_m: Complex64, f: &Field) -> (f64, f64) {
+    let [b, c] = f.v;
+    let den = eta0 * b + c;
+    let r = (eta0 * b - c) / den;
+    let t = 4.0 * eta0.re * eta_m.re / den.norm_sqr() * (-2.0 * f.log).exp();
+    (r.norm_sqr(), t)
+}
+
+/// Reflectance and transmittance of a bare interface from admittance `a` into `b`.
+fn interface(a: Complex64, b: Complex64) -> (f64, f64) {
+    let den = a + b;
+    (
+        ((a - b) / den).norm_sqr(),
+        4.0 * a.re * b.re / den.norm_sqr(),
+    )
+}
+
+/// A coherent stack (matrix `m`) on a thick sheet whose back face reflects
+/// `r_back` and transmits `t_back`: intensities of the multiply reflected
+/// beams in the sheet add (Harbecke, "Coherent and incoherent reflection and
+/// transmission of multilayer structures", Appl. Phys. B 39, 165, 1986;
+/// Katsidis & Siapkas, Applied Optics 41, 3978, 2002):
+/// R = R_f + T_f T_f' R_b α² / (1 − R_f' R_b α²), T = T_f T_b α / (1 − R_f' R_b α²),
+/// with primes for light travelling from the sheet back through the stack.
+fn incoherent(
+    m: &Mat,
+    eta0: Complex64,
+    eta_sheet: Complex64,
+    (r_back, t_back): (f64, f64),
+    alpha: f64,
+) -> (f64, f64) {
+    let field = |mat: &Mat, eta_exit: Complex64| {
+        let mut f = Field::exit(eta_exit);
+        f.through(mat);
+        f
+    };
+    let (rf, tf) = coherent(eta0, eta_sheet, &field(m, eta_sheet));
+    let (rb_stack, tb_stack) = coherent(eta_sheet, eta0, &field(&m.reversed(), eta0));
+    let round = r_back * alpha * alpha;
+    let den = 1.0 - rb_stack * round;
+    (rf + tf * tb_stack * round / den, tf * t_back * alpha / den)
+}

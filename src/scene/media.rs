@@ -1,0 +1,243 @@
+//! Resolving material names to dispersion models: the scene's own
+//! `materials` first, then the built-in library.
+
+use std::collections::HashMap;
+
+use serde_json::Value;
+
+use super::Loader;
+use super::json::{Obj, number, show};
+use crate::error::{Error, Result};
+use crate::materials::{Dispersion, MixingRule, NkTable, Oscillator, library};
+
+/// A medium used by the scene.
+#[derive(Debug, Clone)]
+pub struct Medium {
+    /// Name as written in the scene.
+    pub name: String,
+    /// Key path for error messages (`materials.hi` or the built-in name).
+    pub key: String,
+    /// Its index model.
+    pub dispersion: Dispersion,
+}
+
+pub(super) struct Registry<'a> {
+    user: Option<Obj<'a>>,
+    load: &'a Loader<'a>,
+    media: Vec<Medium>,
+    by_name: HashMap<String, usize>,
+}
+
+const MODEL_KEYS: &[&str] = &["n", "cauchy", "sellmeier", "table", "drude_lorentz", "mix"];
+
+impl<'a> Registry<'a> {
+    pub fn new(materials: Option<&'a Value>, load: &'a Loader<'a>) -> Result<Self> {
+        let user = materials.map(|v| Obj::new(v, "materials")).transpose()?;
+        Ok(Registry {
+            user,
+            load,
+            media: Vec::new(),
+            by_name: HashMap::new(),
+        })
+    }
+
+    /// Index of the medium called `name`, used at `key`.
+    pub fn resolve(&mut self, name: &str, key: &str) -> Result<usize> {
+        if let Some(&i) = self.by_name.get(name) {
+            return Ok(i);
+        }
+        let (dispersion, mkey) = self.dispersion(name, key, &mut Vec::new())?;
+        self.media.push(Medium {
+            name: name.to_string(),
+            key: mkey,
+            dispersion,
+        });
+        self.by_name.insert(name.to_string(), self.media.len() - 1);
+        Ok(self.media.len() - 1)
+    }
+
+    pub fn into_media(self) -> Vec<Medium> {
+        self.media
+    }
+
+    fn dispersion(
+        &self,
+        name: &str,
+        key: &str,
+        chain: &mut Vec<String>,
+    ) -> Result<(Dispersion, String)> {
+        if let Some(v) = self.user.as_ref().and_then(|u| u.get(name)) {
+            let mkey = format!("materials.{name}");
+            if chain.iter().any(|c| c == name) {
+                return Err(Error::invalid(mkey, name, "a mixture refers to itself"));
+            }
+            chain.push(name.to_string());
+            let d = self.user_model(v, &mkey, chain)?;
+            chain.pop();
+            return Ok((d, mkey));
+        }
+        match library::find(name) {
+            Some(m) => Ok((m.dispersion, name.to_string())),
+            None => Err(Error::UnknownMaterial {
+                key: key.to_string(),
+                name: name.to_string(),
+            }),
+        }
+    }
+
+    fn user_model(&self, v: &Value, key: &str, chain: &mut Vec<String>) -> Result<Dispersion> {
+        let o = Obj::new(v, key)?;
+        o.only(&[
+            "n",
+            "k",
+            "cauchy",
+            "sellmeier",
+            "table",
+            "drude_lorentz",
+            "mix",
+            "host",
+            "guest",
+            "fraction",
+            "source",
+        ])?;
+        let present: Vec<&str> = MODEL_KEYS
+            .iter()
+            .copied()
+            .filter(|k| o.get(k).is_some())
+            .collect();
+        let k = o.f64("k")?.unwrap_or(0.0);
+        let d = match present.as_slice() {
+            ["n"] => Dispersion::Constant {
+                n: o.req_f64("n")?,
+                k,
+            },
+            ["cauchy"] => {
+                let c = Obj::new(&o.map["cauchy"], o.key("cauchy"))?;
+                c.only(&["a", "b", "c"])?;
+                Dispersion::Cauchy {
+                    a: c.req_f64("a")?,
+                    b: c.f64("b")?.unwrap_or(0.0),
+                    c: c.f64("c")?.unwrap_or(0.0),
+                    k,
+                }
+            }
+            ["sellmeier"] => {
+                let s = Obj::new(&o.map["sellmeier"], o.key("sellmeier"))?;
+                s.only(&["a", "b", "c"])?;
+                let list = |name: &str| -> Result<Vec<f64>> {
+                    let path = s.key(name);
+                    match s.get(name) {
+                        Some(Value::Array(xs)) => xs
+                            .iter()
+                            .enumerate()
+                            .map(|(i, x)| number(x, &format!("{path}[{i}]")))
+                            .collect(),
+                        Some(other) => Err(Error::invalid(
+                            path,
+                            show(other),
+                            "expected a list of numbers",
+                        )),
+                        None => Err(s.missing(name, "a list of numbers")),
+                    }
+                };
+                let (b, c) = (list("b")?, list("c")?);
+                if b.len() != c.len() || b.is_empty() {
+                    return Err(Error::invalid(
+                        s.key("c"),
+                        show(&s.map["c"]),
+                        "needs as many terms as `b` (at least one)",
+                    ));
+                }
+                Dispersion::Sellmeier {
+                    a: s.f64("a")?.unwrap_or(1.0),
+                    terms: b.into_iter().zip(c).collect(),
+                    k,
+                }
+            }
+            ["table"] => {
+                let path = o.str("table")?.unwrap_or_default();
+                let text =
+                    (self.load)(path).map_err(|why| Error::invalid(o.key("table"), path, why))?;
+                Dispersion::Table(NkTable::from_csv(path, &text).map_err(|e| e.within(key))?)
+            }
+            ["drude_lorentz"] => drude_lorentz(&o.map["drude_lorentz"], &o.key("drude_lorentz"))?,
+            ["mix"] => {
+                let rule = match o.str("mix")? {
+                    Some("bruggeman") => MixingRule::Bruggeman,
+                    Some("maxwell_garnett") => MixingRule::MaxwellGarnett,
+                    other => {
+                        return Err(Error::invalid(
+                            o.key("mix"),
+                            other.unwrap_or(""),
+                            "expected \"bruggeman\" or \"maxwell_garnett\"",
+                        ));
+                    }
+                };
+                let part = |role: &str| -> Result<Dispersion> {
+                    let name = o
+                        .str(role)?
+                        .ok_or_else(|| o.missing(role, "a material name"))?;
+                    Ok(self.dispersion(name, &o.key(role), &mut chain.clone())?.0)
+                };
+                Dispersion::Mixture {
+                    rule,
+                    host: Box::new(part("host")?),
+                    guest: Box::new(part("guest")?),
+                    fraction: o
+                        .f64("fraction")?
+                        .ok_or_else(|| o.missing("fraction", "the guest's volume fraction 0–1"))?,
+                }
+            }
+            _ => {
+                return Err(Error::invalid(
+                    key,
+                    show(v),
+                    format!("give exactly one model: {}", MODEL_KEYS.join(", ")),
+                ));
+            }
+        };
+        d.validate().map_err(|e| e.within(key))?;
+        Ok(d)
+    }
+}
+
+fn drude_lorentz(v: &Value, key: &str) -> Result<Dispersion> {
+    let o = Obj::new(v, key)?;
+    o.only(&[
+        "eps_inf",
+        "plasma_ev",
+        "drude_strength",
+        "drude_damping_ev",
+        "oscillators",
+    ])?;
+    let oscillators = match o.get("oscillators") {
+        None => Vec::new(),
+        Some(Value::Array(xs)) => xs
+            .iter()
+            .enumerate()
+            .map(|(i, x)| {
+                let p = Obj::new(x, format!("{}[{i}]", o.key("oscillators")))?;
+                p.only(&["strength", "energy_ev", "damping_ev"])?;
+                Ok(Oscillator {
+                    strength: p.req_f64("strength")?,
+                    energy_ev: p.req_f64("energy_ev")?,
+                    damping_ev: p.req_f64("damping_ev")?,
+                })
+            })
+            .collect::<Result<_>>()?,
+        Some(other) => {
+            return Err(Error::invalid(
+                o.key("oscillators"),
+                show(other),
+                "expected a list",
+            ));
+        }
+    };
+    Ok(Dispersion::DrudeLorentz {
+        eps_inf: o.f64("eps_inf")?.unwrap_or(1.0),
+        plasma_ev: o.req_f64("plasma_ev")?,
+        drude_strength: o.f64("drude_strength")?.unwrap_or(1.0),
+        drude_damping_ev: o.req_f64("drude_damping_ev")?,
+        oscillators,
+    })
+}

@@ -1,0 +1,312 @@
+//! The layer design as written (layers, repeat groups, variables, jitter) and
+//! its expansion into optics stacks.
+
+use rand::SeedableRng;
+use rand::rngs::StdRng;
+use rand_distr::{Distribution, Normal};
+use serde_json::Value;
+
+use super::json::{Obj, pair, show};
+use super::media::Registry;
+use super::{Disorder, MAX_REPEAT};
+use crate::error::{Error, Result};
+use crate::optics::Node;
+
+/// Thickness jitter: absolute or relative standard deviation.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Sigma {
+    /// σ in nm.
+    Nm(f64),
+    /// σ in percent of the layer's thickness.
+    Pct(f64),
+}
+
+impl Sigma {
+    fn of(self, thickness_nm: f64) -> f64 {
+        match self {
+            Sigma::Nm(s) => s,
+            Sigma::Pct(p) => thickness_nm * p / 100.0,
+        }
+    }
+}
+
+/// One homogeneous layer of the design.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Layer {
+    /// Index into the scene's media.
+    pub medium: usize,
+    /// Nominal thickness in nm.
+    pub thickness_nm: f64,
+    /// Bounds the design tools may move the thickness within.
+    pub vary_nm: Option<(f64, f64)>,
+    /// The layer's own jitter, overriding the scene's `disorder`.
+    pub sigma: Option<Sigma>,
+    /// JSON pointer of the layer in the scene document.
+    pub pointer: String,
+}
+
+/// A repeat group.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Repeat {
+    /// Number of periods.
+    pub count: u64,
+    /// One period.
+    pub items: Vec<Item>,
+    /// Thickness scale of the last period relative to the first (1 = no grading).
+    pub chirp_scale: f64,
+}
+
+/// An element of the design.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Item {
+    /// A layer.
+    Layer(Layer),
+    /// A repeated group.
+    Repeat(Repeat),
+}
+
+pub(super) fn parse_items(v: &Value, path: &str, media: &mut Registry) -> Result<Vec<Item>> {
+    let list = v
+        .as_array()
+        .ok_or_else(|| Error::invalid(path, show(v), "expected a list of layers"))?;
+    let pointer = format!(
+        "/{}",
+        path.replace('.', "/").replace('[', "/").replace(']', "")
+    );
+    list.iter()
+        .enumerate()
+        .map(|(i, item)| {
+            parse_item(
+                item,
+                &format!("{path}[{i}]"),
+                &format!("{pointer}/{i}"),
+                media,
+            )
+        })
+        .collect()
+}
+
+fn parse_item(v: &Value, path: &str, pointer: &str, media: &mut Registry) -> Result<Item> {
+    let o = Obj::new(v, path)?;
+    if o.get("repeat").is_some() {
+        o.only(&["repeat", "stack", "chirp_scale"])?;
+        let count = o.u64("repeat")?.unwrap_or(0);
+        if count == 0 || count > MAX_REPEAT {
+            return Err(Error::invalid(
+                o.key("repeat"),
+                show(&o.map["repeat"]),
+                format!("must be a whole number from 1 to {MAX_REPEAT}"),
+            ));
+        }
+        let inner = o
+            .get("stack")
+            .ok_or_else(|| o.missing("stack", "the layers of one period"))?;
+        let items = parse_items(inner, &o.key("stack"), media)?;
+        if items.is_empty() {
+            return Err(Error::invalid(
+                o.key("stack"),
+                "[]",
+                "a repeat group needs at least one layer",
+            ));
+        }
+        let chirp_scale = o.f64("chirp_scale")?.unwrap_or(1.0);
+        if chirp_scale <= 0.0 {
+            return Err(Error::invalid(
+                o.key("chirp_scale"),
+                chirp_scale,
+                "must be greater than zero",
+            ));
+        }
+        return Ok(Item::Repeat(Repeat {
+            count,
+            items,
+            chirp_scale,
+        }));
+    }
+    o.only(&[
+        "material",
+        "thickness_nm",
+        "vary_nm",
+        "sigma_nm",
+        "sigma_pct",
+        "note",
+    ])?;
+    let name = o
+        .str("material")?
+        .ok_or_else(|| o.missing("material", "a material name (or `repeat` for a group)"))?;
+    let medium = media.resolve(name, &o.key("material"))?;
+    let thickness_nm = o.req_f64("thickness_nm")?;
+    if thickness_nm < 0.0 {
+        return Err(Error::invalid(
+            o.key("thickness_nm"),
+            thickness_nm,
+            "must be ≥ 0",
+        ));
+    }
+    let vary_nm = o
+        .get("vary_nm")
+        .map(|v| pair(v, &o.key("vary_nm")))
+        .transpose()?;
+    if let Some((lo, hi)) = vary_nm {
+        if lo < 0.0 || hi < lo {
+            return Err(Error::invalid(
+                o.key("vary_nm"),
+                format!("[{lo}, {hi}]"),
+                "needs 0 ≤ low ≤ high",
+            ));
+        }
+    }
+    let sigma = parse_sigma(&o)?;
+    Ok(Item::Layer(Layer {
+        medium,
+        thickness_nm,
+        vary_nm,
+        sigma,
+        pointer: pointer.to_string(),
+    }))
+}
+
+fn parse_sigma(o: &Obj) -> Result<Option<Sigma>> {
+    let (nm, pct) = (o.f64("sigma_nm")?, o.f64("sigma_pct")?);
+    let sigma = match (nm, pct) {
+        (Some(_), Some(_)) => {
+            return Err(Error::invalid(
+                o.key("sigma_pct"),
+                pct.unwrap(),
+                "give sigma_nm or sigma_pct, not both",
+            ));
+        }
+        (Some(s), None) => Some(Sigma::Nm(s)),
+        (None, Some(p)) => Some(Sigma::Pct(p)),
+        (None, None) => None,
+    };
+    if let Some(Sigma::Nm(s) | Sigma::Pct(s)) = sigma {
+        if s < 0.0 {
+            return Err(Error::invalid(
+                o.key(if nm.is_some() {
+                    "sigma_nm"
+                } else {
+                    "sigma_pct"
+                }),
+                s,
+                "must be ≥ 0",
+            ));
+        }
+    }
+    Ok(sigma)
+}
+
+pub(super) fn parse_disorder(v: Option<&Value>, items: &[Item]) -> Result<Option<Disorder>> {
+    let Some(v) = v else {
+        let any_own = any_layer(items, &|l| l.sigma.is_some());
+        return Ok(any_own.then_some(Disorder {
+            sigma: None,
+            realizations: 32,
+            seed: 1,
+        }));
+    };
+    let o = Obj::new(v, "disorder")?;
+    o.only(&["sigma_nm", "sigma_pct", "realizations", "seed"])?;
+    let realizations = o.u64("realizations")?.unwrap_or(32);
+    if !(1..=100_000).contains(&realizations) {
+        return Err(Error::invalid(
+            o.key("realizations"),
+            realizations,
+            "must be from 1 to 100000",
+        ));
+    }
+    Ok(Some(Disorder {
+        sigma: parse_sigma(&o)?,
+        realizations: realizations as usize,
+        seed: o.u64("seed")?.unwrap_or(1),
+    }))
+}
+
+fn any_layer(items: &[Item], pred: &dyn Fn(&Layer) -> bool) -> bool {
+    items.iter().any(|i| match i {
+        Item::Layer(l) => pred(l),
+        Item::Repeat(r) => any_layer(&r.items, pred),
+    })
+}
+
+/// Layer nodes after expansion (a powered repeat counts its period once).
+pub(super) fn expanded_layers(items: &[Item], jittered: bool) -> u64 {
+    items
+        .iter()
+        .map(|i| match i {
+            Item::Layer(_) => 1,
+            Item::Repeat(r) => {
+                let inner = expanded_layers(&r.items, jittered);
+                if expands(r, jittered) {
+                    inner.saturating_mul(r.count)
+                } else {
+                    inner
+                }
+            }
+        })
+        .fold(0u64, u64::saturating_add)
+}
+
+fn expands(r: &Repeat, jittered: bool) -> bool {
+    r.chirp_scale != 1.0 || jittered
+}
+
+/// One node list per realisation: the ideal design when there is no
+/// disorder, otherwise `realizations` seeded random draws.
+pub(super) fn realise(items: &[Item], disorder: Option<&Disorder>) -> Vec<Vec<Node>> {
+    match disorder {
+        None => vec![emit(items, 1.0, &mut None)],
+        Some(d) => {
+            let mut rng = StdRng::seed_from_u64(d.seed);
+            (0..d.realizations)
+                .map(|_| emit(items, 1.0, &mut Some((&mut rng, d.sigma))))
+                .collect()
+        }
+    }
+}
+
+type Jitter<'r> = Option<(&'r mut StdRng, Option<Sigma>)>;
+
+/// Expands `items` at thickness `scale`, drawing jitter when `jitter` is set.
+/// Graded repeats scale linearly from 1 at the first period to `chirp_scale`
+/// at the last.
+fn emit(items: &[Item], scale: f64, jitter: &mut Jitter) -> Vec<Node> {
+    let mut out = Vec::new();
+    for item in items {
+        match item {
+            Item::Layer(l) => {
+                let nominal = l.thickness_nm * scale;
+                let thickness_nm = match jitter {
+                    Some((rng, default)) => match l.sigma.or(*default) {
+                        Some(s) if s.of(nominal) > 0.0 => {
+                            let draw = Normal::new(nominal, s.of(nominal))
+                                .expect("σ is finite and positive");
+                            draw.sample(*rng).max(0.0)
+                        }
+                        _ => nominal,
+                    },
+                    None => nominal,
+                };
+                out.push(Node::Layer {
+                    medium: l.medium,
+                    thickness_nm,
+                });
+            }
+            Item::Repeat(r) => {
+                if expands(r, jitter.is_some()) {
+                    let steps = (r.count.max(2) - 1) as f64;
+                    for p in 0..r.count {
+                        let s = scale * (1.0 + (r.chirp_scale - 1.0) * p as f64 / steps);
+                        out.extend(emit(&r.items, s, jitter));
+                    }
+                } else {
+                    out.push(Node::Repeat {
+                        count: r.count,
+                        nodes: emit(&r.items, scale, jitter),
+                    });
+                }
+            }
+        }
+    }
+    out
+}
