@@ -61,8 +61,10 @@ impl Field {
         }
     }
 
-    /// Multiplies by the layer matrix [[cos δ, i sin δ/η], [i η sin δ, cos δ]]
-    /// (Macleod, *Thin-Film Optical Filters*, 2010, eq. 2.96).
+    /// Multiplies by the layer matrix [[cos δ, −i sin δ/η], [−i η sin δ, cos δ]]
+    /// (Born & Wolf, *Principles of Optics*, 7th ed. 1999, §1.6.2 eq. 33; the
+    /// signs of i belong to the n + i·k convention used throughout, where
+    /// Macleod's n − i·k convention writes +i).
     #[inline]
     pub fn through_layer(&mut self, ph: &Phase, eta: Complex64, real: bool) {
         let [b, c] = self.v;
@@ -70,11 +72,11 @@ impl Field {
             let (cs, sn, e) = (ph.cos.re, ph.sin.re, eta.re);
             let (x, y) = (sn / e, sn * e);
             self.v = [
-                b * cs + Complex64::new(-x * c.im, x * c.re),
-                Complex64::new(-y * b.im, y * b.re) + c * cs,
+                b * cs + Complex64::new(x * c.im, -x * c.re),
+                Complex64::new(y * b.im, -y * b.re) + c * cs,
             ];
         } else {
-            let is = Complex64::i() * ph.sin;
+            let is = -Complex64::i() * ph.sin;
             self.v = [b * ph.cos + is / eta * c, is * eta * b + c * ph.cos];
             self.log += ph.log_scale;
         }
@@ -121,9 +123,9 @@ impl Mat {
         }
     }
 
-    /// The characteristic matrix of one layer.
+    /// The characteristic matrix of one layer (same form as [`Field::through_layer`]).
     pub fn layer(ph: &Phase, eta: Complex64) -> Self {
-        let is = Complex64::i() * ph.sin;
+        let is = -Complex64::i() * ph.sin;
         Mat {
             m: [[ph.cos, is / eta], [is * eta, ph.cos]],
             log: ph.log_scale,

@@ -1,0 +1,66 @@
+//! Helpers shared by the integration tests.
+#![allow(dead_code)]
+
+use std::f64::consts::PI;
+
+use lamella::optics::{Exit, MediumTerms, Node, Rt, Stack};
+use num_complex::Complex64;
+
+/// Complex index shorthand.
+pub fn c(n: f64, k: f64) -> Complex64 {
+    Complex64::new(n, k)
+}
+
+/// A layer node.
+pub fn layer(medium: usize, thickness_nm: f64) -> Node {
+    Node::Layer {
+        medium,
+        thickness_nm,
+    }
+}
+
+/// Stack on a semi-infinite exit medium.
+pub fn stack(incident: usize, nodes: Vec<Node>, exit: usize) -> Stack {
+    Stack {
+        incident,
+        nodes,
+        exit: Exit::Medium(exit),
+    }
+}
+
+/// R and T of `stack` with media indices `n` at one wavelength and angle.
+pub fn rt_at(stack: &Stack, n: &[Complex64], wl_nm: f64, angle_deg: f64) -> Rt {
+    let beta = n[stack.incident].re * angle_deg.to_radians().sin();
+    let terms: Vec<MediumTerms> = n.iter().map(|&x| MediumTerms::new(x, beta)).collect();
+    stack.rt(&terms, 2.0 * PI / wl_nm)
+}
+
+/// Single film (index n1, thickness d) between media n0 and n2 by the Airy
+/// sum with complex Fresnel coefficients (Born & Wolf, *Principles of Optics*,
+/// 7th ed. 1999, §1.6.4 eq. 57–58 and §13.4 for absorbing films). p is
+/// handled with magnetic-field amplitudes so that T_p = Re(q₂/ε₂)/(q₀/ε₀)·|t|².
+pub fn airy(n0: f64, n1: Complex64, n2: Complex64, d: f64, wl: f64, angle_deg: f64) -> Rt {
+    let beta = n0 * angle_deg.to_radians().sin();
+    let q = |n: Complex64| {
+        let z = (n * n - beta * beta).sqrt();
+        if z.im < 0.0 { -z } else { z }
+    };
+    let n0c = c(n0, 0.0);
+    let (q0, q1, q2) = (q(n0c), q(n1), q(n2));
+    let delta = 2.0 * PI / wl * d * q1;
+    let e1 = (Complex64::i() * delta).exp();
+    let e2 = e1 * e1;
+    let pol = |y0: Complex64, y1: Complex64, y2: Complex64| {
+        let r01 = (y0 - y1) / (y0 + y1);
+        let r12 = (y1 - y2) / (y1 + y2);
+        let t01 = 2.0 * y0 / (y0 + y1);
+        let t12 = 2.0 * y1 / (y1 + y2);
+        let den = 1.0 + r01 * r12 * e2;
+        let r = (r01 + r12 * e2) / den;
+        let t = t01 * t12 * e1 / den;
+        (r.norm_sqr(), y2.re / y0.re * t.norm_sqr())
+    };
+    let (rs, ts) = pol(q0, q1, q2);
+    let (rp, tp) = pol(q0 / (n0c * n0c), q1 / (n1 * n1), q2 / (n2 * n2));
+    Rt { rs, rp, ts, tp }
+}
