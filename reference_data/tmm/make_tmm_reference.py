@@ -25,9 +25,9 @@ Self-checks (assertions) before anything is written:
 * absorbing cases: 0 <= A = 1 - R - T <= 1 and A > 0 when some layer has k > 0;
 * every single-layer case: R and T against the Airy summation of a single film
   with complex Fresnel coefficients (Born & Wolf, Principles of Optics,
-  7th ed. 1999, section 1.6.4 / 7.6.1), for both polarisations;
+  7th ed. 1999, section 1.6 (section from memory)), for both polarisations;
 * every case: R and T against an independent product of characteristic
-  matrices (Born & Wolf, Principles of Optics, 7th ed. 1999, section 1.6.2),
+  matrices (Born & Wolf, Principles of Optics, 7th ed. 1999, section 1.6 (section from memory)),
   for both polarisations, to 1e-12.
 """
 
@@ -103,7 +103,7 @@ def run_tmm(case):
 
 
 def airy_single_film(n0, n1, n2, d, wavelength, angle_deg):
-    """R, T of one film (Born & Wolf, Principles of Optics, 1999, sec. 1.6.4 and 7.6.1).
+    """R, T of one film (Born & Wolf, Principles of Optics, 7th ed. 1999, sec. 1.6).
 
     n1 may be complex (n + ik, absorbing for k > 0); n0 and n2 are real.
     Returns arrays [R_s, R_p], [T_s, T_p].
@@ -141,7 +141,7 @@ def airy_single_film(n0, n1, n2, d, wavelength, angle_deg):
 def characteristic_matrix_stack(case, wavelength, angle_deg):
     """R, T of a stack from the product of characteristic matrices.
 
-    Born & Wolf, Principles of Optics, 7th ed. 1999, section 1.6.2 (time factor
+    Born & Wolf, Principles of Optics, 7th ed. 1999, section 1.6 (time factor
     exp(-i w t), N = n + ik). Returns arrays [R_s, R_p], [T_s, T_p].
     """
     n0, ns = case["incident_n"], case["substrate_n"]
