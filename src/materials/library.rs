@@ -36,8 +36,8 @@ fn cauchy(a: f64, b: f64, c: f64) -> Dispersion {
 }
 
 /// Lorentz–Drude model with ε∞ = 1 from the parameters as tabulated by
-/// Rakić, Djurišić, Elazar & Majewski (Applied Optics 37, 5271, 1998,
-/// Table 1): plasma energy ħω_p, Drude f₀ and Γ₀, and per oscillator
+/// Rakić, Djurišić, Elazar & Majewski (Applied Optics 37, 5271, 1998):
+/// plasma energy ħω_p, Drude f₀ and Γ₀, and per oscillator
 /// (f_j, Γ_j, ω_j), all energies in eV.
 fn rakic(plasma_ev: f64, f0: f64, gamma0_ev: f64, oscillators: &[(f64, f64, f64)]) -> Dispersion {
     Dispersion::DrudeLorentz {
