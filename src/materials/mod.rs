@@ -14,7 +14,7 @@ use num_complex::Complex64;
 use crate::error::{Error, Result};
 
 /// hc in eV·nm, for converting wavelength to photon energy (CODATA 2018).
-pub const HC_EV_NM: f64 = 1239.841_984;
+pub const HC_EV_NM: f64 = 1_239.841_984;
 
 /// One Lorentz oscillator of a [`Dispersion::DrudeLorentz`] model.
 #[derive(Debug, Clone, PartialEq)]
@@ -48,6 +48,23 @@ pub enum Dispersion {
         c: f64,
         /// Extinction coefficient.
         k: f64,
+    },
+    /// Cauchy's n with an extinction coefficient that decays exponentially
+    /// with wavelength: n = A + B/λ² + C/λ⁴, k = k₀·exp(−λ/λ_k), λ in µm
+    /// (the form fitted to melanin by Stavenga, Leertouwer, Osorio & Wilts,
+    /// "High refractive index of melanin in shiny occipital feathers of a
+    /// bird of paradise", Light: Science & Applications 4, e243, 2015).
+    CauchyExpK {
+        /// A (dimensionless).
+        a: f64,
+        /// B in µm².
+        b: f64,
+        /// C in µm⁴.
+        c: f64,
+        /// Extinction coefficient k₀ extrapolated to λ = 0.
+        k0: f64,
+        /// Decay length λ_k of k in µm (> 0).
+        k_decay_um: f64,
     },
     /// Sellmeier's formula n² = A + Σ B_i λ² / (λ² − C_i) with λ in µm and
     /// C_i in µm² (Sellmeier 1871; Malitson 1965 for the form with A = 1).
@@ -110,6 +127,16 @@ impl Dispersion {
                 let l2 = um * um;
                 Complex64::new(a + b / l2 + c / (l2 * l2), *k)
             }
+            Dispersion::CauchyExpK {
+                a,
+                b,
+                c,
+                k0,
+                k_decay_um,
+            } => {
+                let l2 = um * um;
+                Complex64::new(a + b / l2 + c / (l2 * l2), k0 * (-um / k_decay_um).exp())
+            }
             Dispersion::Sellmeier { a, terms, k } => {
                 let l2 = um * um;
                 let n2 = a + terms.iter().map(|(b, c)| b * l2 / (l2 - c)).sum::<f64>();
@@ -156,6 +183,7 @@ impl Dispersion {
         match self {
             Dispersion::Constant { .. } => "constant",
             Dispersion::Cauchy { .. } => "cauchy",
+            Dispersion::CauchyExpK { .. } => "cauchy-exp-k",
             Dispersion::Sellmeier { .. } => "sellmeier",
             Dispersion::Table(_) => "table",
             Dispersion::DrudeLorentz { .. } => "drude-lorentz",
@@ -219,6 +247,34 @@ impl Dispersion {
                 finite("cauchy.b", *b)?;
                 finite("cauchy.c", *c)?;
                 nonneg_k(*k)
+            }
+            Dispersion::CauchyExpK {
+                a,
+                b,
+                c,
+                k0,
+                k_decay_um,
+            } => {
+                finite("cauchy.a", *a)?;
+                finite("cauchy.b", *b)?;
+                finite("cauchy.c", *c)?;
+                finite("k0", *k0)?;
+                if *k0 < 0.0 {
+                    return Err(Error::invalid(
+                        "k0",
+                        k0,
+                        "must be ≥ 0 (gain media are not modelled)",
+                    ));
+                }
+                finite("k_decay_um", *k_decay_um)?;
+                if *k_decay_um <= 0.0 {
+                    return Err(Error::invalid(
+                        "k_decay_um",
+                        k_decay_um,
+                        "must be greater than zero",
+                    ));
+                }
+                Ok(())
             }
             Dispersion::Sellmeier { a, terms, k } => {
                 finite("sellmeier.a", *a)?;
@@ -322,5 +378,36 @@ mod tests {
     #[test]
     fn negative_k_is_refused() {
         assert!(Dispersion::Constant { n: 1.5, k: -0.1 }.validate().is_err());
+    }
+
+    #[test]
+    fn cauchy_exp_k_evaluates_and_validates() {
+        let m = Dispersion::CauchyExpK {
+            a: 1.6,
+            b: 0.02,
+            c: 0.0,
+            k0: 0.5,
+            k_decay_um: 0.25,
+        };
+        let n = m.index(500.0).unwrap();
+        assert!((n.re - (1.6 + 0.02 / 0.25)).abs() < 1e-12);
+        assert!((n.im - 0.5 * (-2.0f64).exp()).abs() < 1e-12);
+        assert!(m.validate().is_ok());
+        let zero_decay = Dispersion::CauchyExpK {
+            a: 1.6,
+            b: 0.0,
+            c: 0.0,
+            k0: 0.5,
+            k_decay_um: 0.0,
+        };
+        assert!(zero_decay.validate().is_err());
+        let negative_k0 = Dispersion::CauchyExpK {
+            a: 1.6,
+            b: 0.0,
+            c: 0.0,
+            k0: -0.1,
+            k_decay_um: 0.3,
+        };
+        assert!(negative_k0.validate().is_err());
     }
 }

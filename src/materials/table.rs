@@ -23,7 +23,7 @@ impl NkTable {
             ));
         }
         for (i, w) in wl_nm.windows(2).enumerate() {
-            if !(w[1] > w[0]) {
+            if w[1].partial_cmp(&w[0]) != Some(std::cmp::Ordering::Greater) {
                 return Err(Error::invalid(
                     format!("{key} row {}", i + 2),
                     w[1],
