@@ -27,5 +27,5 @@ pub fn run() -> CliResult {
             m.source
         ));
     }
-    write_out(None, text.as_bytes())
+    write_out(None, &[text.into_bytes()])
 }

@@ -51,6 +51,6 @@ pub fn load_scene(path: &Path) -> Result<Scene, Failure> {
 }
 
 /// Writes output, mapping failures to exit code 1.
-pub fn write_out(path: Option<&Path>, bytes: &[u8]) -> CliResult {
-    output::emit(path, bytes).map_err(|e| Failure::io(path.unwrap_or(Path::new("<stdout>")), e))
+pub fn write_out(path: Option<&Path>, chunks: &[Vec<u8>]) -> CliResult {
+    output::emit(path, chunks).map_err(|e| Failure::io(path.unwrap_or(Path::new("<stdout>")), e))
 }

@@ -5,18 +5,23 @@ use std::fs;
 use std::io::{self, Write};
 use std::path::Path;
 
-/// Writes `bytes` to `path` atomically, or to stdout when `path` is `None`.
-/// Special files such as `/dev/null` are written in place.
-pub fn emit(path: Option<&Path>, bytes: &[u8]) -> io::Result<()> {
+/// Writes the concatenated `chunks` to `path` atomically, or to stdout when
+/// `path` is `None`. Special files such as `/dev/null` are written in place.
+pub fn emit(path: Option<&Path>, chunks: &[Vec<u8>]) -> io::Result<()> {
+    let write_all = |out: &mut dyn Write| -> io::Result<()> {
+        for c in chunks {
+            out.write_all(c)?;
+        }
+        out.flush()
+    };
     let Some(path) = path else {
-        let mut out = io::stdout().lock();
-        return match out.write_all(bytes).and_then(|_| out.flush()) {
+        return match write_all(&mut io::stdout().lock()) {
             Err(e) if e.kind() == io::ErrorKind::BrokenPipe => Ok(()),
             other => other,
         };
     };
     if fs::metadata(path).is_ok_and(|m| !m.is_file()) {
-        return fs::write(path, bytes);
+        return write_all(&mut fs::OpenOptions::new().write(true).open(path)?);
     }
     let dir = path
         .parent()
@@ -30,7 +35,9 @@ pub fn emit(path: Option<&Path>, bytes: &[u8]) -> io::Result<()> {
         name.to_string_lossy(),
         std::process::id()
     ));
-    let result = fs::write(&tmp, bytes).and_then(|_| fs::rename(&tmp, path));
+    let result = fs::File::create(&tmp)
+        .and_then(|mut f| write_all(&mut f))
+        .and_then(|_| fs::rename(&tmp, path));
     if result.is_err() {
         let _ = fs::remove_file(&tmp);
     }

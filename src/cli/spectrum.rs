@@ -1,9 +1,9 @@
 //! `lamella spectrum`: R, T and A per polarization on the scene's grid.
 
-use std::fmt::Write as _;
 use std::path::Path;
 
 use lamella::optics::Spectra;
+use rayon::prelude::*;
 
 use super::{CliResult, Failure, load_scene, write_out};
 
@@ -35,11 +35,11 @@ pub fn run(scene_path: &Path, format: Format, out: Option<&Path>) -> CliResult {
     let spectra = scene
         .spectra()
         .map_err(|e| Failure::input(format!("{}: {e}", scene_path.display())))?;
-    let text = match format {
+    let chunks = match format {
         Format::Csv => csv(&spectra),
-        Format::Json => json(&scene.title, &spectra),
+        Format::Json => vec![json(&scene.title, &spectra).into_bytes()],
     };
-    write_out(out, text.as_bytes())
+    write_out(out, &chunks)
 }
 
 fn row_values(s: &Spectra, a: usize, w: usize) -> [f64; 9] {
@@ -58,23 +58,36 @@ fn row_values(s: &Spectra, a: usize, w: usize) -> [f64; 9] {
     ]
 }
 
-/// Numbers print in the shortest form that reads back to the same f64.
-fn csv(s: &Spectra) -> String {
-    let mut out = String::with_capacity(s.rt.len() * 180 + 64);
-    out.push_str(&COLUMNS.join(","));
-    out.push('\n');
-    for a in 0..s.angles_deg.len() {
-        for w in 0..s.wavelengths_nm.len() {
-            for (i, v) in row_values(s, a, w).iter().enumerate() {
-                if i > 0 {
-                    out.push(',');
-                }
-                let _ = write!(out, "{v:?}");
+/// Rows per angle block, formatted in parallel; numbers print in the
+/// shortest form that reads back to the same f64.
+fn csv(s: &Spectra) -> Vec<Vec<u8>> {
+    let mut header = COLUMNS.join(",").into_bytes();
+    header.push(b'\n');
+    let mut num = ryu::Buffer::new();
+    let wavelengths: Vec<String> = s
+        .wavelengths_nm
+        .iter()
+        .map(|&w| num.format(w).to_string())
+        .collect();
+    let blocks = (0..s.angles_deg.len()).into_par_iter().map(|a| {
+        let mut num = ryu::Buffer::new();
+        let angle = num.format(s.angles_deg[a]).to_string();
+        let mut out = Vec::with_capacity(wavelengths.len() * 190);
+        for (w, wl) in wavelengths.iter().enumerate() {
+            out.extend_from_slice(wl.as_bytes());
+            out.push(b',');
+            out.extend_from_slice(angle.as_bytes());
+            for v in &row_values(s, a, w)[2..] {
+                out.push(b',');
+                out.extend_from_slice(num.format(*v).as_bytes());
             }
-            out.push('\n');
+            out.push(b'\n');
         }
-    }
-    out
+        out
+    });
+    std::iter::once(header)
+        .chain(blocks.collect::<Vec<_>>())
+        .collect()
 }
 
 fn json(title: &str, s: &Spectra) -> String {

@@ -61,7 +61,7 @@ const RAKIC: &str = "Rakić, Djurišić, Elazar & Majewski, Optical properties o
 const RAKIC_NM: (f64, f64) = (248.0, 12400.0);
 const SULTANOVA: &str = "Sultanova, Kasarova & Nikolov, Dispersion properties of optical polymers, Acta Phys. Pol. A 116, 585 (2009)";
 const SULTANOVA_NM: (f64, f64) = (436.0, 1052.0);
-const LEERTOUWER: &str = "Leertouwer, Wilts & Stavenga, Refractive index and dispersion of butterfly chitin and bird keratin, Opt. Express 19, 24061 (2011)";
+const LEERTOUWER: &str = "Leertouwer, Wilts & Stavenga, Opt. Express 19, 24061 (2011)";
 /// Visible and near-infrared span used for the entries recalled from memory.
 const TYPICAL_NM: (f64, f64) = (380.0, 1000.0);
 
@@ -144,6 +144,17 @@ pub fn all() -> Vec<Material> {
         ),
         entry(
             "tio2",
+            Dispersion::Cauchy {
+                a: 2.26,
+                b: 0.0425,
+                c: 0.0,
+                k: 0.0,
+            },
+            TYPICAL_NM,
+            "typical evaporated rutile-like TiO2 film, n(550 nm) ≈ 2.40, below bulk rutile (from memory)",
+        ),
+        entry(
+            "rutile",
             pole_form(5.913, &[(0.2441, 0.0803)]),
             (430.0, 1530.0),
             "DeVore, Refractive indices of rutile and sphalerite, JOSA 41, 416 (1951), rutile ordinary ray",
@@ -454,7 +465,7 @@ mod tests {
         // Malitson 1962: ordinary index of sapphire at 587.6 nm is 1.768.
         assert_near("al2o3", 587.6, 1.768, 1e-3);
         // Rutile ordinary ray n = 2.613 at 589 nm (DeVore 1951).
-        assert_near("tio2", 589.0, 2.613, 3e-3);
+        assert_near("rutile", 589.0, 2.613, 3e-3);
         // Cubic ZnS n = 2.368 at 589 nm (Debenham 1984).
         assert_near("zns", 589.0, 2.368, 3e-3);
     }
@@ -470,7 +481,7 @@ mod tests {
 
     #[test]
     fn chitin_and_keratin_match_measured_points() {
-        // Leertouwer, Wilts & Stavenga 2011, abstract: chitin (butterfly scales)
+        // Leertouwer, Wilts & Stavenga 2011, abstract: chitin (insect scale)
         // 1.572, 1.552, 1.541 and keratin (goose barbules) 1.569, 1.556, 1.548
         // at 400, 500 and 600 nm.
         for (wl, chitin, keratin) in [

@@ -66,18 +66,18 @@ impl Field {
     /// signs of i belong to the n + i·k convention used throughout, where
     /// Macleod's n − i·k convention writes +i).
     #[inline]
-    pub fn through_layer(&mut self, ph: &Phase, eta: Complex64, real: bool) {
+    pub fn through_layer(&mut self, ph: &Phase, eta: Complex64, inv_eta: Complex64, real: bool) {
         let [b, c] = self.v;
         if real {
-            let (cs, sn, e) = (ph.cos.re, ph.sin.re, eta.re);
-            let (x, y) = (sn / e, sn * e);
+            let (cs, sn) = (ph.cos.re, ph.sin.re);
+            let (x, y) = (sn * inv_eta.re, sn * eta.re);
             self.v = [
                 b * cs + Complex64::new(x * c.im, -x * c.re),
                 Complex64::new(y * b.im, -y * b.re) + c * cs,
             ];
         } else {
             let is = -Complex64::i() * ph.sin;
-            self.v = [b * ph.cos + is / eta * c, is * eta * b + c * ph.cos];
+            self.v = [b * ph.cos + is * inv_eta * c, is * eta * b + c * ph.cos];
             self.log += ph.log_scale;
         }
         self.renormalise();
@@ -124,10 +124,10 @@ impl Mat {
     }
 
     /// The characteristic matrix of one layer (same form as [`Field::through_layer`]).
-    pub fn layer(ph: &Phase, eta: Complex64) -> Self {
+    pub fn layer(ph: &Phase, eta: Complex64, inv_eta: Complex64) -> Self {
         let is = -Complex64::i() * ph.sin;
         Mat {
-            m: [[ph.cos, is / eta], [is * eta, ph.cos]],
+            m: [[ph.cos, is * inv_eta], [is * eta, ph.cos]],
             log: ph.log_scale,
         }
     }
@@ -199,6 +199,91 @@ impl Mat {
                 *z *= inv;
             }
             self.log += big.ln();
+        }
+    }
+}
+
+/// A characteristic matrix of lossless, propagating layers only:
+/// [[a, −i·b], [−i·c, d]] with a, b, c, d real, times e^{log}. Products of
+/// such matrices keep the form, so a quarter of the arithmetic suffices.
+#[derive(Debug, Clone, Copy)]
+pub struct RealMat {
+    a: f64,
+    b: f64,
+    c: f64,
+    d: f64,
+    log: f64,
+}
+
+impl RealMat {
+    /// The identity.
+    pub fn identity() -> Self {
+        RealMat {
+            a: 1.0,
+            b: 0.0,
+            c: 0.0,
+            d: 1.0,
+            log: 0.0,
+        }
+    }
+
+    /// One lossless layer with real phase `ph` and real admittance `eta`.
+    pub fn layer(ph: &Phase, eta: f64, inv_eta: f64) -> Self {
+        let (cs, sn) = (ph.cos.re, ph.sin.re);
+        RealMat {
+            a: cs,
+            b: sn * inv_eta,
+            c: eta * sn,
+            d: cs,
+            log: 0.0,
+        }
+    }
+
+    /// The product `self · rhs`.
+    pub fn mul(&self, r: &RealMat) -> RealMat {
+        let mut out = RealMat {
+            a: self.a * r.a - self.b * r.c,
+            b: self.a * r.b + self.b * r.d,
+            c: self.c * r.a + self.d * r.c,
+            d: self.d * r.d - self.c * r.b,
+            log: self.log + r.log,
+        };
+        let big = out
+            .a
+            .abs()
+            .max(out.b.abs())
+            .max(out.c.abs())
+            .max(out.d.abs());
+        if big > BIG {
+            let inv = 1.0 / big;
+            (out.a, out.b, out.c, out.d) = (out.a * inv, out.b * inv, out.c * inv, out.d * inv);
+            out.log += big.ln();
+        }
+        out
+    }
+
+    /// `self^n` by binary powering.
+    pub fn pow(&self, mut n: u64) -> RealMat {
+        let (mut base, mut acc) = (*self, RealMat::identity());
+        while n > 0 {
+            if n & 1 == 1 {
+                acc = acc.mul(&base);
+            }
+            n >>= 1;
+            if n > 0 {
+                base = base.mul(&base);
+            }
+        }
+        acc
+    }
+
+    /// The same matrix in complex form.
+    pub fn complex(&self) -> Mat {
+        let re = |x: f64| Complex64::new(x, 0.0);
+        let mi = |x: f64| Complex64::new(0.0, -x);
+        Mat {
+            m: [[re(self.a), mi(self.b)], [mi(self.c), re(self.d)]],
+            log: self.log,
         }
     }
 }

@@ -13,6 +13,10 @@ pub struct MediumTerms {
     pub eta_s: Complex64,
     /// Tilted admittance for p: η_p = n²/q.
     pub eta_p: Complex64,
+    /// 1/η_s, so layers multiply instead of divide.
+    pub inv_eta_s: Complex64,
+    /// 1/η_p.
+    pub inv_eta_p: Complex64,
     /// True when n and q are real: the layer is lossless and the wave
     /// propagates, so the cheap real path applies.
     pub real: bool,
@@ -27,6 +31,19 @@ impl MediumTerms {
     /// Optics* (7th ed., 1999), §1.5.4 and §13.2.
     pub fn new(n: Complex64, beta: f64) -> Self {
         let n2 = n * n;
+        if n.im == 0.0 && n2.re > beta * beta {
+            let q = (n2.re - beta * beta).sqrt();
+            let re = |x: f64| Complex64::new(x, 0.0);
+            let eta_p = n2.re / q;
+            return MediumTerms {
+                q: re(q),
+                eta_s: re(q),
+                eta_p: re(eta_p),
+                inv_eta_s: re(1.0 / q),
+                inv_eta_p: re(1.0 / eta_p),
+                real: true,
+            };
+        }
         let arg = n2 - beta * beta;
         // Force +0 on the imaginary part so a lossless evanescent wave gets +i·|q|.
         let arg = Complex64::new(arg.re, if arg.im == 0.0 { 0.0 } else { arg.im });
@@ -35,10 +52,13 @@ impl MediumTerms {
             q = -q;
         }
         let real = n.im == 0.0 && q.im == 0.0;
+        let eta_p = n2 / q;
         MediumTerms {
             q,
             eta_s: q,
-            eta_p: n2 / q,
+            eta_p,
+            inv_eta_s: 1.0 / q,
+            inv_eta_p: 1.0 / eta_p,
             real,
         }
     }

@@ -3,7 +3,7 @@
 
 use num_complex::Complex64;
 
-use super::matrix::{Field, Mat, Phase};
+use super::matrix::{Field, Mat, Phase, RealMat};
 use super::medium::MediumTerms;
 
 /// One element of a stack, listed from the incident side.
@@ -140,16 +140,62 @@ fn apply(nodes: &[Node], terms: &[MediumTerms], k0: f64, fs: &mut Field, fp: &mu
             } => {
                 let t = &terms[*medium];
                 let ph = Phase::new(k0 * thickness_nm, t.q);
-                fs.through_layer(&ph, t.eta_s, t.real);
-                fp.through_layer(&ph, t.eta_p, t.real);
+                fs.through_layer(&ph, t.eta_s, t.inv_eta_s, t.real);
+                fp.through_layer(&ph, t.eta_p, t.inv_eta_p, t.real);
             }
             Node::Repeat { count, nodes } => {
-                let (ms, mp) = product(nodes, terms, k0);
-                fs.through(&ms.pow(*count));
-                fp.through(&mp.pow(*count));
+                let (ms, mp) = repeat(nodes, *count, terms, k0);
+                fs.through(&ms);
+                fp.through(&mp);
             }
         }
     }
+}
+
+/// The matrices (s, p) of `count` periods of `nodes`, by the real-arithmetic
+/// path when every layer in them is lossless and propagating.
+fn repeat(nodes: &[Node], count: u64, terms: &[MediumTerms], k0: f64) -> (Mat, Mat) {
+    if all_real(nodes, terms) {
+        let (s, p) = product_real(nodes, terms, k0);
+        (s.pow(count).complex(), p.pow(count).complex())
+    } else {
+        let (s, p) = product(nodes, terms, k0);
+        (s.pow(count), p.pow(count))
+    }
+}
+
+fn all_real(nodes: &[Node], terms: &[MediumTerms]) -> bool {
+    nodes.iter().all(|n| match n {
+        Node::Layer { medium, .. } => terms[*medium].real,
+        Node::Repeat { nodes, .. } => all_real(nodes, terms),
+    })
+}
+
+/// [`product`] for lossless, propagating layers.
+fn product_real(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> (RealMat, RealMat) {
+    let (mut ms, mut mp) = (RealMat::identity(), RealMat::identity());
+    for node in nodes {
+        let (ns, np) = match node {
+            Node::Layer {
+                medium,
+                thickness_nm,
+            } => {
+                let t = &terms[*medium];
+                let ph = Phase::new(k0 * thickness_nm, t.q);
+                (
+                    RealMat::layer(&ph, t.eta_s.re, t.inv_eta_s.re),
+                    RealMat::layer(&ph, t.eta_p.re, t.inv_eta_p.re),
+                )
+            }
+            Node::Repeat { count, nodes } => {
+                let (s, p) = product_real(nodes, terms, k0);
+                (s.pow(*count), p.pow(*count))
+            }
+        };
+        ms = ms.mul(&ns);
+        mp = mp.mul(&np);
+    }
+    (ms, mp)
 }
 
 /// The characteristic matrices (s, p) of `nodes`: M₁·M₂·…, incident side first.
@@ -163,12 +209,12 @@ fn product(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> (Mat, Mat) {
             } => {
                 let t = &terms[*medium];
                 let ph = Phase::new(k0 * thickness_nm, t.q);
-                (Mat::layer(&ph, t.eta_s), Mat::layer(&ph, t.eta_p))
+                (
+                    Mat::layer(&ph, t.eta_s, t.inv_eta_s),
+                    Mat::layer(&ph, t.eta_p, t.inv_eta_p),
+                )
             }
-            Node::Repeat { count, nodes } => {
-                let (s, p) = product(nodes, terms, k0);
-                (s.pow(*count), p.pow(*count))
-            }
+            Node::Repeat { count, nodes } => repeat(nodes, *count, terms, k0),
         };
         ms = ms.mul(&ns);
         mp = mp.mul(&np);
