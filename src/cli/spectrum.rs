@@ -63,14 +63,14 @@ fn row_values(s: &Spectra, a: usize, w: usize) -> [f64; 9] {
 fn csv(s: &Spectra) -> Vec<Vec<u8>> {
     let mut header = COLUMNS.join(",").into_bytes();
     header.push(b'\n');
-    let mut num = ryu::Buffer::new();
+    let mut num = zmij::Buffer::new();
     let wavelengths: Vec<String> = s
         .wavelengths_nm
         .iter()
         .map(|&w| num.format(w).to_string())
         .collect();
     let blocks = (0..s.angles_deg.len()).into_par_iter().map(|a| {
-        let mut num = ryu::Buffer::new();
+        let mut num = zmij::Buffer::new();
         let angle = num.format(s.angles_deg[a]).to_string();
         let mut out = Vec::with_capacity(wavelengths.len() * 190);
         for (w, wl) in wavelengths.iter().enumerate() {
