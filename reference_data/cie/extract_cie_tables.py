@@ -1,16 +1,16 @@
 """Writes the CIE tables used by `src/colorimetry/` as CSV files next to this script.
 
 Source of the numbers: the CIE tables of CIE 015:2018 "Colorimetry, 4th edition"
-(colour-matching functions, Table 1 and 2; illuminants, Tables 5 to 10), as
+(colour-matching functions and illuminants), as
 distributed in colour-science 0.4.7 (PyPI, `pip install colour-science==0.4.7`).
 
 * CIE 1931 2° and CIE 1964 10° colour-matching functions, 360–830 nm, 1 nm.
-* Illuminant A, 360–830 nm, 1 nm: computed from Planck's law as CIE 015:2018 §4.1
+* Illuminant A, 360–830 nm, 1 nm: computed from Planck's law as CIE 015:2018
   defines it (c2 = 1.435e-2 m·K, T = 2848 K, normalised to 100 at 560 nm), by
   `colour.sd_CIE_standard_illuminant_A`.
 * D65 and D50, 5 nm: colour-science tabulates 300–780 nm; the CIE tables run to
   830 nm, so 785–830 nm are computed with the CIE daylight method of CIE 015:2018
-  §4.1 (S0 + M1 S1 + M2 S2, M1 and M2 rounded to three decimals) by
+  (S0 + M1 S1 + M2 S2, M1 and M2 rounded to three decimals) by
   `colour.sd_CIE_illuminant_D_series`. That method reproduces the tabulated
   300–780 nm values to 1e-5 relative (checked below) and gives the CIE's 830 nm
   values (60.3125 for D65).
@@ -60,7 +60,7 @@ for file, key in [
 a = colour.sd_CIE_standard_illuminant_A(colour.SpectralShape(360, 830, 1))
 write_illuminant("A", a.wavelengths, a.values)
 
-# CIE 015:2018 §4.1: D65 and D50 are the daylight phases at nominal CCTs of
+# CIE 015:2018: D65 and D50 are the daylight phases at nominal CCTs of
 # 6500 K and 5000 K scaled by 1.4388/1.4380 (the change of c2).
 for name, cct in [("D65", 6500), ("D50", 5000)]:
     table = colour.SDS_ILLUMINANTS[name]

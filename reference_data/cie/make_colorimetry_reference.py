@@ -11,6 +11,8 @@ The computation is aligned with the one under test so both evaluate the same sum
 * `k` is left to colour-science: 100 / sum(S ybar dλ), i.e. Y = 100 for the
   perfect reflecting diffuser;
 * CIELAB uses the computed white of the same grid, illuminant and observer;
+* ΔE*ab, ΔE*94 (graphic arts) and ΔE00 between consecutive samples by
+  `colour.delta_E` (methods "CIE 1976", "CIE 1994", "CIE 2000");
 * sRGB: Bradford adaptation from that white to the sRGB white (0.95047, 1, 1.08883)
   and the matrices derived from the IEC 61966-2-1 primaries and that white
   (the 4-decimal matrix printed in IEC 61966-2-1 differs by up to 1e-4).
@@ -67,6 +69,7 @@ for gi, (lo, hi, step) in enumerate(GRIDS):
     wl = shape.wavelengths
     spectra = [random_spectrum(rng, wl) for _ in range(SPECTRA_PER_GRID)]
     spectra[0][:] = 1.0  # the perfect reflecting diffuser
+    spectra[1][:] = np.round(np.exp(-0.5 * ((wl - 520.0) / 12.0) ** 2), 6)  # a narrow green band
     out["grids"].append({"from": lo, "to": hi, "step": step, "spectra": [s.tolist() for s in spectra]})
     for obs, cmf_file in OBSERVERS.items():
         cmfs = colour.MultiSpectralDistributions(on_grid(cmf_file, wl), wl)
@@ -86,6 +89,17 @@ for gi, (lo, hi, step) in enumerate(GRIDS):
                                  "srgb": srgb.tolist()})
             out["cases"].append({"grid": gi, "illuminant": ill, "observer": obs, "white": white.tolist(),
                                  "expected": expected})
+
+# Colour differences between consecutive samples of every case, by colour.delta_E.
+out["differences"] = []
+for case in out["cases"]:
+    labs = [e["lab"] for e in case["expected"]]
+    for lab1, lab2 in zip(labs, labs[1:]):
+        out["differences"].append({
+            "lab1": lab1, "lab2": lab2,
+            **{key: float(colour.delta_E(np.array(lab1), np.array(lab2), method=method))
+               for key, method in [("de76", "CIE 1976"), ("de94", "CIE 1994"), ("de2000", "CIE 2000")]},
+        })
 
 with open(HERE / "colorimetry_reference.json", "w") as f:
     json.dump(out, f, indent=None, separators=(",", ":"))

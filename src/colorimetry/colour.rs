@@ -16,7 +16,7 @@ use crate::error::{Error, Result};
 const GAMUT_TOLERANCE: f64 = 1e-9;
 
 /// CIELAB L*, a*, b* of `xyz` relative to the reference white `white` (both
-/// on one scale), CIE 015:2018 §8.2.1 eqs. 8.3–8.8 (computed by `palette`,
+/// on one scale), CIE 015:2018 (computed by `palette`,
 /// with the tristimulus values divided by the white beforehand so that
 /// palette's equal-energy white point E = (1, 1, 1) stands for any white).
 pub fn xyz_to_lab(xyz: [f64; 3], white: [f64; 3]) -> [f64; 3] {
@@ -26,14 +26,14 @@ pub fn xyz_to_lab(xyz: [f64; 3], white: [f64; 3]) -> [f64; 3] {
 }
 
 /// Inverse of [`xyz_to_lab`]: tristimulus values on the scale of `white`
-/// (CIE 015:2018 §8.2.1, the inverse equations).
+/// (CIE 015:2018, the inverse equations).
 pub fn lab_to_xyz(lab: [f64; 3], white: [f64; 3]) -> [f64; 3] {
     let rel = Xyz::<E, f64>::from_color_unclamped(Lab::<E, f64>::new(lab[0], lab[1], lab[2]));
     [rel.x * white[0], rel.y * white[1], rel.z * white[2]]
 }
 
-/// L*, C*ab, h_ab (degrees in [0, 360)) from L*, a*, b* (CIE 015:2018 §8.2.2,
-/// eqs. 8.9–8.10; computed by `palette`).
+/// L*, C*ab, h_ab (degrees in [0, 360)) from L*, a*, b* (CIE 015:2018;
+/// computed by `palette`).
 pub fn lab_to_lch(lab: [f64; 3]) -> [f64; 3] {
     let lch = Lch::<E, f64>::from_color_unclamped(Lab::<E, f64>::new(lab[0], lab[1], lab[2]));
     [lch.l, lch.chroma, lch.hue.into_positive_degrees() % 360.0]
@@ -45,7 +45,7 @@ fn lch_to_lab([l, c, h]: [f64; 3]) -> [f64; 3] {
     [l, c * co, c * s]
 }
 
-/// Chromaticity x, y = X/(X+Y+Z), Y/(X+Y+Z) (CIE 015:2018 §7.3, eq. 7.11);
+/// Chromaticity x, y = X/(X+Y+Z), Y/(X+Y+Z) (CIE 015:2018);
 /// for black (X+Y+Z = 0) that of `white`.
 pub fn chromaticity(xyz: [f64; 3], white: [f64; 3]) -> [f64; 2] {
     let sum = xyz[0] + xyz[1] + xyz[2];
@@ -187,7 +187,7 @@ fn encode(linear: f64) -> f64 {
 }
 
 /// Linear RGB matrix of a space: the RGB → XYZ matrix derived from its
-/// primaries and white (SMPTE RP 177-1993 §3.3; computed by `palette`).
+/// primaries and white (SMPTE RP 177-1993; computed by `palette`).
 fn rgb_to_xyz(space: RgbSpace) -> Mat3<f64> {
     match space {
         RgbSpace::Srgb => rgb_to_xyz_matrix::<encoding::Srgb, f64>(),

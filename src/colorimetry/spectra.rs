@@ -8,7 +8,7 @@ use std::sync::OnceLock;
 use crate::error::{Error, Result};
 
 /// Columns against wavelength, strictly increasing in wavelength, linearly
-/// interpolated (CIE 015:2018 §7.2.1 allows linear interpolation of tabulated data).
+/// interpolated (linear interpolation of tabulated data as CIE 015:2018 allows).
 #[derive(Debug, Clone, PartialEq)]
 pub(crate) struct Table {
     wl_nm: Vec<f64>,
@@ -115,7 +115,7 @@ fn embedded(
 const CMF_HEADER: &[&str] = &["wavelength_nm", "xbar", "ybar", "zbar"];
 const POWER_HEADER: &[&str] = &["wavelength_nm", "power"];
 
-/// A CIE standard colorimetric observer (CIE 015:2018 §3).
+/// A CIE standard colorimetric observer (CIE 015:2018).
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum Observer {
     /// CIE 1931 standard colorimetric observer (2° field).
@@ -134,7 +134,7 @@ impl Observer {
     }
 
     /// Colour-matching functions x̄, ȳ, z̄ at 360–830 nm in 1 nm steps
-    /// (CIE 015:2018 Tables 1 and 2).
+    /// (CIE 015:2018).
     pub(crate) fn cmfs(self) -> &'static Table {
         static CIE1931: OnceLock<Table> = OnceLock::new();
         static CIE1964: OnceLock<Table> = OnceLock::new();
@@ -180,7 +180,7 @@ impl fmt::Display for Observer {
 
 macro_rules! builtin_illuminants {
     ($($name:literal => $file:literal),* $(,)?) => {
-        /// Names of the built-in illuminants (CIE 015:2018 Tables 5–10).
+        /// Names of the built-in illuminants (CIE 015:2018).
         pub const BUILT_IN_ILLUMINANTS: &[&str] = &[$($name),*];
 
         /// The embedded table of a built-in illuminant, by canonical name.
@@ -301,7 +301,7 @@ mod tests {
         for o in [Observer::Cie1931_2, Observer::Cie1964_10] {
             assert_eq!(o.cmfs().span(), (360.0, 830.0));
         }
-        // CIE 015:2018 Table 1: ȳ(555 nm) = 1.0 (2°); x̄(600 nm) = 1.0622 (2°).
+        // CIE 015:2018, CIE 1931 2° observer: ȳ(555 nm) = 1.0; x̄(600 nm) = 1.0622.
         let c = Observer::Cie1931_2.cmfs();
         assert_eq!(c.at(1, 555.0), Some(1.0));
         assert!((c.at(0, 600.0).unwrap() - 1.0622).abs() < 1e-12);

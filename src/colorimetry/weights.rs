@@ -7,10 +7,10 @@ use super::spectra::{Illuminant, Observer};
 /// Per-wavelength tristimulus weights for one (grid, illuminant, observer):
 /// W_x(λ_i) = k S(λ_i) x̄(λ_i) (likewise y, z) with k = 100 / Σ S(λ_i) ȳ(λ_i),
 /// so that X = Σ W_x R and the perfect reflecting diffuser has Y = 100
-/// (CIE 015:2018 §7.1, eqs. 7.1–7.3, by summation over the grid; the interval
+/// (CIE 015:2018, by summation over the grid; the interval
 /// Δλ cancels in k for the evenly spaced grids a scene describes). S, x̄, ȳ, z̄
 /// are put onto the grid by linear interpolation of the tabulated values
-/// (CIE 015:2018 §7.2.1).
+/// (CIE 015:2018).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Weights {
     wx: Vec<f64>,
@@ -127,7 +127,7 @@ mod tests {
         (x / (x + y + z), y / (x + y + z))
     }
 
-    /// CIE 015:2018 Table 3 (2° observer): D65 x, y = 0.3127, 0.3290;
+    /// CIE 015:2018 (2° observer): D65 x, y = 0.3127, 0.3290;
     /// A x, y = 0.44757, 0.40745.
     #[test]
     fn white_chromaticities_match_cie_015() {
