@@ -388,7 +388,7 @@ mod tests {
         // (the white is sRGB's own, so no adaptation is involved).
         let lin = chroma
             .rgb
-            .map(|v| <encoding::Srgb as encoding::IntoLinear<f64, f64>>::into_linear(v));
+            .map(<encoding::Srgb as encoding::IntoLinear<f64, f64>>::into_linear);
         let xyz_back = multiply_3x3_and_vec3(rgb_to_xyz(RgbSpace::Srgb), lin).map(|v| v * 100.0);
         let lch_back = lab_to_lch(xyz_to_lab(xyz_back, white));
         assert!((lch_back[0] - 70.0).abs() < 1e-4, "{lch_back:?}");
@@ -399,7 +399,10 @@ mod tests {
         );
         assert!(lch_back[1] < clip.lch[1]);
         // On the gamut boundary: one channel at 0 or 1.
-        assert!(lin.iter().any(|&v| v < 1e-6 || v > 1.0 - 1e-6), "{lin:?}");
+        assert!(
+            lin.iter().any(|&v| !(1e-6..=1.0 - 1e-6).contains(&v)),
+            "{lin:?}"
+        );
         // Display P3 is wider than sRGB.
         let p3 = Colour::new(
             lab_to_xyz([70.0, -80.0, 60.0], white),

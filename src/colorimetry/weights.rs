@@ -76,18 +76,17 @@ impl Weights {
         for w in [&mut wx, &mut wy, &mut wz] {
             w.iter_mut().for_each(|v| *v *= k);
         }
-        let white = [wx.iter().sum(), wy.iter().sum(), wz.iter().sum()];
+        let white: [f64; 3] = [wx.iter().sum(), wy.iter().sum(), wz.iter().sum()];
+        if white.iter().any(|&v| !(v > 0.0)) {
+            return Err(Error::invalid(
+                "illuminant",
+                illuminant.name(),
+                format!(
+                    "its white X, Y, Z = {white:?} on this grid has a zero component, so CIELAB is undefined"
+                ),
+            ));
+        }
         Ok(Weights { wx, wy, wz, white })
-    }
-
-    /// Number of grid points.
-    pub fn len(&self) -> usize {
-        self.wx.len()
-    }
-
-    /// Always false: a grid has at least one point.
-    pub fn is_empty(&self) -> bool {
-        self.wx.is_empty()
     }
 
     /// Tristimulus values X, Y, Z (0–100 scale) of a reflectance or
@@ -170,5 +169,10 @@ mod tests {
         assert!(Weights::new(&[], &d65, Observer::Cie1931_2).is_err());
         let dark = Illuminant::from_csv("dark", "wavelength_nm,power\n300,0\n900,0\n").unwrap();
         assert!(Weights::new(&grid(380.0, 780.0, 5.0), &dark, Observer::Cie1931_2).is_err());
+        // Deep red light only: z̄ is zero there, so the white has Z = 0.
+        let red = Illuminant::from_csv("red", "wavelength_nm,power\n380,0\n690,0\n700,1\n780,1\n")
+            .unwrap();
+        let err = Weights::new(&grid(380.0, 780.0, 5.0), &red, Observer::Cie1931_2).unwrap_err();
+        assert!(err.to_string().contains("zero component"), "{err}");
     }
 }
