@@ -145,10 +145,11 @@ impl Colour {
     /// Describes the tristimulus values `xyz` (0–100) seen under a light whose
     /// perfect reflector gives `white` (from [`super::Weights::white`]).
     ///
-    /// RGB: Bradford chromatic adaptation from `white` to the D65 white of the
-    /// RGB space, (0.95047, 1, 1.08883) (common practice; an identity when the
-    /// light is D65 itself up to the difference between the computed and this
-    /// white), then the linear RGB matrix and transfer curve from `palette`.
+    /// RGB: Bradford chromatic adaptation from `white` to the RGB space's D65
+    /// white (0.95047, 1, 1.08883) (common practice), applied under D65 too,
+    /// where it only absorbs the small difference between the white computed
+    /// on the grid and that one; so the perfect reflector is always RGB white.
+    /// Then the linear RGB matrix and the transfer curve, clipping to 0–1.
     pub fn new(xyz: [f64; 3], white: [f64; 3], options: &ColourOptions) -> Colour {
         let display = Display::new(white, options.space);
         let lab = xyz_to_lab(xyz, white);
@@ -197,7 +198,8 @@ fn rgb_to_xyz(space: RgbSpace) -> Mat3<f64> {
 
 /// The linearised Bradford chromatic adaptation from `white` to the D65 white
 /// (0.95047, 1, 1.08883): M⁻¹ · diag(M·w_D65 / M·w) · M with M the Bradford
-/// matrix (Lam 1985; linearised form of ICC.1:2010 Annex E). M from `palette`;
+/// matrix (K. M. Lam, "Metamerism and colour constancy", PhD thesis, University
+/// of Bradford, 1985; linearised form as in ICC.1:2010 Annex E). M from `palette`;
 /// its inverse is computed rather than taken as printed so that `white` maps
 /// onto the D65 white to round-off.
 fn bradford_to_d65(white: [f64; 3]) -> Mat3<f64> {
