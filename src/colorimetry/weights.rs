@@ -1,0 +1,178 @@
+//! Tristimulus integration by weighted summation over the scene's wavelength grid.
+
+use crate::error::{Error, Result};
+
+use super::spectra::{Illuminant, Observer};
+
+/// Per-wavelength tristimulus weights for one (grid, illuminant, observer):
+/// W_x(λ_i) = k S(λ_i) x̄(λ_i) (likewise y, z) with k = 100 / Σ S(λ_i) ȳ(λ_i),
+/// so that X = Σ W_x R and the perfect reflecting diffuser has Y = 100
+/// (CIE 015:2018, by summation over the grid; the interval
+/// Δλ cancels in k for the evenly spaced grids a scene describes). S, x̄, ȳ, z̄
+/// are put onto the grid by linear interpolation of the tabulated values
+/// (CIE 015:2018).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Weights {
+    wx: Vec<f64>,
+    wy: Vec<f64>,
+    wz: Vec<f64>,
+    white: [f64; 3],
+}
+
+impl Weights {
+    /// Weights for the grid `wavelengths_nm`. Every grid point must lie inside
+    /// both the observer's table (360–830 nm) and the illuminant's; a point
+    /// outside is an error naming it (no silent zero weight).
+    pub fn new(
+        wavelengths_nm: &[f64],
+        illuminant: &Illuminant,
+        observer: Observer,
+    ) -> Result<Self> {
+        if wavelengths_nm.is_empty() {
+            return Err(Error::invalid("wavelengths", "(none)", "the grid is empty"));
+        }
+        let cmfs = observer.cmfs();
+        let light = illuminant.table();
+        let n = wavelengths_nm.len();
+        let (mut wx, mut wy, mut wz) = (
+            Vec::with_capacity(n),
+            Vec::with_capacity(n),
+            Vec::with_capacity(n),
+        );
+        for (i, &wl) in wavelengths_nm.iter().enumerate() {
+            let outside = |(lo, hi): (f64, f64), what: String| {
+                Error::invalid(
+                    format!("wavelengths[{i}]"),
+                    wl,
+                    format!("outside {what} ({lo}–{hi} nm)"),
+                )
+            };
+            let s = light.at(0, wl).ok_or_else(|| {
+                outside(
+                    light.span(),
+                    format!("the table of illuminant {}", illuminant.name()),
+                )
+            })?;
+            let cmf = |c| cmfs.at(c, wl);
+            let (Some(x), Some(y), Some(z)) = (cmf(0), cmf(1), cmf(2)) else {
+                return Err(outside(
+                    cmfs.span(),
+                    format!("the colour-matching functions of {observer}"),
+                ));
+            };
+            wx.push(s * x);
+            wy.push(s * y);
+            wz.push(s * z);
+        }
+        let sum_y: f64 = wy.iter().sum();
+        if !(sum_y > 0.0) {
+            return Err(Error::invalid(
+                "illuminant",
+                illuminant.name(),
+                "has no power where the observer sees on this grid (Σ S ȳ = 0)",
+            ));
+        }
+        let k = 100.0 / sum_y;
+        for w in [&mut wx, &mut wy, &mut wz] {
+            w.iter_mut().for_each(|v| *v *= k);
+        }
+        let white: [f64; 3] = [wx.iter().sum(), wy.iter().sum(), wz.iter().sum()];
+        if white.iter().any(|&v| !(v > 0.0)) {
+            return Err(Error::invalid(
+                "illuminant",
+                illuminant.name(),
+                format!(
+                    "its white X, Y, Z = {white:?} on this grid has a zero component, so CIELAB is undefined"
+                ),
+            ));
+        }
+        Ok(Weights { wx, wy, wz, white })
+    }
+
+    /// Tristimulus values X, Y, Z (0–100 scale) of a reflectance or
+    /// transmittance spectrum (fractions 0–1) on the grid: three dot products.
+    ///
+    /// # Panics
+    /// If `spectrum` does not have one value per grid point (a programming
+    /// error: spectra are computed on the grid the weights were made for).
+    pub fn xyz(&self, spectrum: &[f64]) -> [f64; 3] {
+        assert_eq!(
+            spectrum.len(),
+            self.wx.len(),
+            "spectrum length differs from the grid"
+        );
+        let dot = |w: &[f64]| w.iter().zip(spectrum).map(|(a, b)| a * b).sum();
+        [dot(&self.wx), dot(&self.wy), dot(&self.wz)]
+    }
+
+    /// X, Y, Z of the perfect reflecting diffuser summed over the same grid,
+    /// illuminant and observer (Y = 100): the CIELAB reference white.
+    pub fn white(&self) -> [f64; 3] {
+        self.white
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::grid::Range;
+
+    fn grid(from: f64, to: f64, step: f64) -> Vec<f64> {
+        Range { from, to, step }.points("w").unwrap()
+    }
+
+    fn chromaticity(w: &Weights) -> (f64, f64) {
+        let [x, y, z] = w.white();
+        (x / (x + y + z), y / (x + y + z))
+    }
+
+    /// CIE 015:2018 (2° observer): D65 x, y = 0.3127, 0.3290;
+    /// A x, y = 0.44757, 0.40745.
+    #[test]
+    fn white_chromaticities_match_cie_015() {
+        for step in [1.0, 5.0] {
+            for (name, x0, y0) in [("D65", 0.3127, 0.3290), ("A", 0.44757, 0.40745)] {
+                let ill = Illuminant::builtin(name).unwrap();
+                let w = Weights::new(&grid(360.0, 830.0, step), &ill, Observer::Cie1931_2).unwrap();
+                let (x, y) = chromaticity(&w);
+                assert!(
+                    (x - x0).abs() < 1e-4 && (y - y0).abs() < 1e-4,
+                    "{name} {step}: {x} {y}"
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn perfect_reflector_has_y_100_on_any_grid() {
+        let g = grid(400.0, 700.0, 7.0);
+        let w = Weights::new(
+            &g,
+            &Illuminant::builtin("F11").unwrap(),
+            Observer::Cie1964_10,
+        )
+        .unwrap();
+        let xyz = w.xyz(&vec![1.0; g.len()]);
+        assert!((xyz[1] - 100.0).abs() < 1e-12);
+        assert_eq!(xyz, w.white());
+        assert_eq!(w.xyz(&vec![0.0; g.len()]), [0.0; 3]);
+    }
+
+    #[test]
+    fn grid_points_outside_the_tables_are_refused() {
+        let d65 = Illuminant::builtin("D65").unwrap();
+        let err = Weights::new(&[350.0, 400.0], &d65, Observer::Cie1931_2).unwrap_err();
+        assert!(err.to_string().contains("wavelengths[0] = 350"), "{err}");
+        let f2 = Illuminant::builtin("F2").unwrap();
+        let err = Weights::new(&grid(360.0, 830.0, 10.0), &f2, Observer::Cie1931_2).unwrap_err();
+        assert!(err.to_string().contains("illuminant F2"), "{err}");
+        assert!(Weights::new(&[], &d65, Observer::Cie1931_2).is_err());
+        let dark = Illuminant::from_csv("dark", "wavelength_nm,power\n300,0\n900,0\n").unwrap();
+        assert!(Weights::new(&grid(380.0, 780.0, 5.0), &dark, Observer::Cie1931_2).is_err());
+        // Deep red light only: z̄ is zero there, so the white has Z = 0.
+        let red = Illuminant::from_csv("red", "wavelength_nm,power\n380,0\n690,0\n700,1\n780,1\n")
+            .unwrap();
+        let err = Weights::new(&grid(380.0, 780.0, 5.0), &red, Observer::Cie1931_2).unwrap_err();
+        assert!(err.to_string().contains("zero component"), "{err}");
+    }
+}
