@@ -2,6 +2,7 @@
 //! characteristic-matrix method, optical constants, colorimetry and the
 //! design tools built on them. The library does no file or terminal I/O.
 
+pub mod angle_colour;
 pub mod colorimetry;
 pub mod error;
 pub mod grid;

@@ -29,6 +29,20 @@ enum Command {
         #[arg(short = 'o', long = "output")]
         output: Option<PathBuf>,
     },
+    /// CIE XYZ, xy, CIELAB, LCh, sRGB and hex at every angle of a scene, with
+    /// the colour travel between angles.
+    Color {
+        /// Scene file (JSON).
+        scene: PathBuf,
+        /// Output format.
+        #[arg(long, value_enum, default_value = "table")]
+        format: cli::color::Format,
+        #[command(flatten)]
+        view: cli::color::ViewArgs,
+        /// Write to this file (atomically) instead of stdout.
+        #[arg(short = 'o', long = "output")]
+        output: Option<PathBuf>,
+    },
     /// List the built-in materials: model, valid range, n and k at 550 nm, source.
     Materials,
 }
@@ -48,6 +62,12 @@ fn main() -> ExitCode {
             format,
             output,
         } => cli::spectrum::run(&scene, format, output.as_deref()),
+        Command::Color {
+            scene,
+            format,
+            view,
+            output,
+        } => cli::color::run(&scene, format, &view, output.as_ref()),
         Command::Materials => cli::materials::run(),
     };
     match result {

@@ -1,5 +1,6 @@
 //! The command-line front end: argument definitions and glue.
 
+pub mod color;
 pub mod materials;
 pub mod output;
 pub mod spectrum;

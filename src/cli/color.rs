@@ -1,0 +1,260 @@
+//! `lamella color`: CIE XYZ, CIELAB, sRGB and the colour travel at every angle.
+
+use std::io::IsTerminal;
+use std::path::{Path, PathBuf};
+
+use lamella::angle_colour::{Polarization, Side, Viewing, angle_colours};
+use lamella::colorimetry::{
+    Colour, ColourOptions, GamutMapping, Illuminant, RgbSpace, delta_e2000, travel,
+};
+use serde_json::{Value, json};
+
+use super::{CliResult, Failure, load_scene, write_out};
+
+/// Output format of the colour table.
+#[derive(Debug, Clone, Copy, clap::ValueEnum)]
+pub enum Format {
+    /// A list of records, one per angle.
+    Json,
+    /// One row per angle.
+    Csv,
+    /// A readable table with a colour swatch per row on a true-colour terminal.
+    Table,
+}
+
+/// Flags shared by every command that turns spectra into colour.
+#[derive(Debug, Clone, clap::Args)]
+pub struct ViewArgs {
+    /// Reflected or transmitted light.
+    #[arg(long, default_value = "reflect", value_parser = ["reflect", "transmit"])]
+    pub side: String,
+    /// Illuminant name (D65, D50, A, E, F2, F7, F11, LED-B1…LED-V2) or a
+    /// `wavelength_nm,power` CSV file; overrides the scene.
+    #[arg(long)]
+    pub illuminant: Option<String>,
+    /// Observer (CIE1931_2 or CIE1964_10); overrides the scene.
+    #[arg(long)]
+    pub observer: Option<String>,
+    /// Polarization of the light.
+    #[arg(long, default_value = "unpolarized", value_parser = ["unpolarized", "s", "p"])]
+    pub polarization: String,
+    /// Out-of-gamut colours: clip each channel, or reduce chroma at constant
+    /// CIELAB lightness and hue.
+    #[arg(long, default_value = "clip", value_parser = ["clip", "chroma"])]
+    pub gamut: String,
+}
+
+impl ViewArgs {
+    /// The scene's viewing with these overrides.
+    pub fn viewing(
+        &self,
+        scene: &lamella::scene::Scene,
+        scene_path: &Path,
+    ) -> Result<Viewing, Failure> {
+        let bad = |e: lamella::Error| Failure::input(format!("{}: {e}", scene_path.display()));
+        let mut v = Viewing::of_scene(scene).map_err(bad)?;
+        if let Some(name) = &self.illuminant {
+            v.illuminant = if name.to_ascii_lowercase().ends_with(".csv") {
+                let text = std::fs::read_to_string(name)
+                    .map_err(|e| Failure::input(format!("--illuminant {name}: {e}")))?;
+                Illuminant::from_csv(name, &text)
+                    .map_err(|e| Failure::input(format!("--illuminant: {e}")))?
+            } else {
+                Illuminant::builtin(name)
+                    .map_err(|e| Failure::input(format!("--illuminant: {e}")))?
+            };
+        }
+        if let Some(o) = &self.observer {
+            v.observer = o
+                .parse()
+                .map_err(|e| Failure::input(format!("--observer: {e}")))?;
+        }
+        v.side = self.side.parse::<Side>().map_err(bad)?;
+        v.polarization = self.polarization.parse::<Polarization>().map_err(bad)?;
+        v.options = ColourOptions {
+            space: RgbSpace::Srgb,
+            gamut: self.gamut.parse::<GamutMapping>().map_err(bad)?,
+        };
+        Ok(v)
+    }
+}
+
+/// Runs the command.
+pub fn run(scene_path: &Path, format: Format, view: &ViewArgs, out: Option<&PathBuf>) -> CliResult {
+    let scene = load_scene(scene_path)?;
+    let viewing = view.viewing(&scene, scene_path)?;
+    let bad = |e: lamella::Error| Failure::input(format!("{}: {e}", scene_path.display()));
+    let spectra = scene.spectra().map_err(bad)?;
+    let colours = angle_colours(&spectra, &viewing).map_err(bad)?;
+    let records = records(&spectra.angles_deg, &colours);
+    let text = match format {
+        Format::Json => serde_json::to_string_pretty(&records).expect("records serialise") + "\n",
+        Format::Csv => csv(&records),
+        Format::Table => table(
+            &scene.title,
+            &viewing,
+            &spectra.angles_deg,
+            &colours,
+            out.is_none() && std::io::stdout().is_terminal(),
+        ),
+    };
+    write_out(out.map(PathBuf::as_path), &[text.into_bytes()])
+}
+
+/// Record keys in output order (`srgb` is three columns in CSV).
+const KEYS: [&str; 17] = [
+    "angle_deg",
+    "X",
+    "Y",
+    "Z",
+    "x",
+    "y",
+    "L",
+    "a",
+    "b",
+    "C",
+    "h",
+    "srgb",
+    "hex",
+    "in_gamut",
+    "hue_shift_deg",
+    "delta_e00_from_first",
+    "delta_e00_per_deg",
+];
+
+/// One JSON object per angle, keys in [`KEYS`] order.
+fn records(angles: &[f64], colours: &[Colour]) -> Vec<Value> {
+    let first = &colours[0];
+    colours
+        .iter()
+        .enumerate()
+        .map(|(i, c)| {
+            let hue_shift = wrap180(c.lch[2] - first.lch[2]);
+            // Rate of change toward the next angle (the previous one for the last angle).
+            let (j, k) = if i + 1 < colours.len() {
+                (i, i + 1)
+            } else {
+                (i.saturating_sub(1), i)
+            };
+            let rate = if j == k {
+                0.0
+            } else {
+                delta_e2000(colours[j].lab, colours[k].lab) / (angles[k] - angles[j]).abs()
+            };
+            json!({
+                "angle_deg": angles[i],
+                "X": c.xyz[0], "Y": c.xyz[1], "Z": c.xyz[2],
+                "x": c.xy[0], "y": c.xy[1],
+                "L": c.lab[0], "a": c.lab[1], "b": c.lab[2],
+                "C": c.lch[1], "h": c.lch[2],
+                "srgb": c.rgb, "hex": c.hex, "in_gamut": c.in_gamut,
+                "hue_shift_deg": hue_shift,
+                "delta_e00_from_first": delta_e2000(first.lab, c.lab),
+                "delta_e00_per_deg": rate,
+            })
+        })
+        .collect()
+}
+
+fn wrap180(d: f64) -> f64 {
+    let w = (d + 180.0).rem_euclid(360.0) - 180.0;
+    if w == -180.0 { 180.0 } else { w }
+}
+
+fn csv(records: &[Value]) -> String {
+    let mut out = String::new();
+    let header: Vec<String> = KEYS
+        .iter()
+        .flat_map(|k| {
+            if *k == "srgb" {
+                vec!["srgb_r".into(), "srgb_g".into(), "srgb_b".into()]
+            } else {
+                vec![k.to_string()]
+            }
+        })
+        .collect();
+    out.push_str(&header.join(","));
+    out.push('\n');
+    for r in records {
+        let cells: Vec<String> = KEYS
+            .iter()
+            .flat_map(|k| match &r[*k] {
+                Value::Array(xs) => xs.iter().map(Value::to_string).collect(),
+                Value::String(s) => vec![s.clone()],
+                other => vec![other.to_string()],
+            })
+            .collect();
+        out.push_str(&cells.join(","));
+        out.push('\n');
+    }
+    out
+}
+
+fn table(title: &str, v: &Viewing, angles: &[f64], colours: &[Colour], swatches: bool) -> String {
+    let mut out = format!(
+        "{}\n{} light, {} {}, {}\n\n",
+        if title.is_empty() {
+            "(untitled scene)"
+        } else {
+            title
+        },
+        v.polarization.name(),
+        v.side.name(),
+        v.illuminant.name(),
+        v.observer.name(),
+    );
+    out.push_str(&format!(
+        "{:>7} {:>7} {:>7} {:>7} {:>7} {:>7} {:>7}  {:<7} {:>5}  {}\n",
+        "angle°",
+        "Y",
+        "L*",
+        "a*",
+        "b*",
+        "C*",
+        "h°",
+        "hex",
+        "gamut",
+        if swatches { "swatch" } else { "" }
+    ));
+    for (a, c) in angles.iter().zip(colours) {
+        let [red, green, blue] = c.rgb.map(|x| (x * 255.0).round() as u8);
+        let swatch = if swatches {
+            format!("\x1b[48;2;{red};{green};{blue}m        \x1b[0m")
+        } else {
+            String::new()
+        };
+        out.push_str(&format!(
+            "{a:>7.1} {:>7.2} {:>7.2} {:>7.2} {:>7.2} {:>7.2} {:>7.1}  {:<7} {:>5}  {swatch}\n",
+            c.xyz[1],
+            c.lab[0],
+            c.lab[1],
+            c.lab[2],
+            c.lch[1],
+            c.lch[2],
+            c.hex,
+            if c.in_gamut { "in" } else { "OUT" },
+        ));
+    }
+    if colours.len() >= 2 {
+        let samples: Vec<(f64, [f64; 3])> = angles
+            .iter()
+            .copied()
+            .zip(colours.iter().map(|c| c.lab))
+            .collect();
+        if let Ok(t) = travel(&samples) {
+            out.push_str(&format!(
+                "\ncolour travel {}°→{}°: hue {:+.1}°, ΔE00 {:.2}; fastest change {:.2} ΔE00/° near {:.1}°\n",
+                angles[0],
+                angles[angles.len() - 1],
+                t.hue_change_deg,
+                t.delta_e2000,
+                t.steepest_rate_per_deg,
+                t.steepest_angle_deg
+            ));
+        }
+    }
+    if colours.iter().any(|c| !c.in_gamut) {
+        out.push_str("OUT: outside the sRGB gamut; the swatch and hex are an approximation.\n");
+    }
+    out
+}
