@@ -59,7 +59,10 @@ fn colour_overhead_ratio() {
         let colour = fastest(31, || {
             black_box(angle_colours(&spectra, &viewing).unwrap());
         });
-        println!("{name}: colour for every angle costs {:.1} % on top of the spectrum", 100.0 * colour / spectrum);
+        println!(
+            "{name}: colour for every angle costs {:.1} % on top of the spectrum",
+            100.0 * colour / spectrum
+        );
     }
 }
 
@@ -67,6 +70,8 @@ criterion_group!(benches, engine, colour);
 
 fn main() {
     benches();
-    criterion::Criterion::default().configure_from_args().final_summary();
+    criterion::Criterion::default()
+        .configure_from_args()
+        .final_summary();
     colour_overhead_ratio();
 }

@@ -23,7 +23,7 @@ impl Phase {
     /// Phase thickness δ = (2π/λ)·d·q for a layer; `k0d` = 2π d / λ.
     pub fn new(k0d: f64, q: Complex64) -> Self {
         let (a, b) = (k0d * q.re, k0d * q.im);
-        let (sa, ca) = a.sin_cos();
+        let (sa, ca) = super::trig::sin_cos(a);
         if b == 0.0 {
             return Phase {
                 cos: Complex64::new(ca, 0.0),
