@@ -80,7 +80,6 @@ impl Field {
             self.v = [b * ph.cos + is * inv_eta * c, is * eta * b + c * ph.cos];
             self.log += ph.log_scale;
         }
-        self.renormalise();
     }
 
     /// Multiplies by a scaled matrix.
@@ -90,8 +89,11 @@ impl Field {
         self.renormalise();
     }
 
+    /// Moves a large magnitude into the scale. [`Field::through_layer`] leaves
+    /// this to the caller, who calls it every few layers: one lossless layer
+    /// multiplies the magnitude by at most max(|η|, 1/|η|) + 1.
     #[inline]
-    fn renormalise(&mut self) {
+    pub fn renormalise(&mut self) {
         let big = self
             .v
             .iter()

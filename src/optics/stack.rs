@@ -132,7 +132,11 @@ impl Stack {
 
 /// Carries the exit fields through `nodes` toward the incident side.
 fn apply(nodes: &[Node], terms: &[MediumTerms], k0: f64, fs: &mut Field, fp: &mut Field) {
-    for node in nodes.iter().rev() {
+    for (i, node) in nodes.iter().rev().enumerate() {
+        if i % 8 == 7 {
+            fs.renormalise();
+            fp.renormalise();
+        }
         match node {
             Node::Layer {
                 medium,
@@ -150,6 +154,8 @@ fn apply(nodes: &[Node], terms: &[MediumTerms], k0: f64, fs: &mut Field, fp: &mu
             }
         }
     }
+    fs.renormalise();
+    fp.renormalise();
 }
 
 /// The matrices (s, p) of `count` periods of `nodes`, by the real-arithmetic
