@@ -99,7 +99,7 @@ impl Stack {
                 // Single-pass intensity attenuation in the sheet, exp(−2 Im δ).
                 let alpha = (-2.0 * k0 * thickness_nm * sheet.q.im).exp();
                 let back = |eta_sheet: Complex64, eta_behind: Option<Complex64>| match eta_behind {
-                    Some(eb) => interface(eta_sheet, eb),
+                    Some(eb) => coherent(eta_sheet, eb, &Field::exit(eb)),
                     None => (0.0, 0.0),
                 };
                 let eb = |pol_s: bool| match behind {
@@ -229,24 +229,19 @@ fn product(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> (Mat, Mat) {
 }
 
 /// R and T from the incident admittance, the exit admittance and the field
-/// (B, C) at the front face: R = |(η₀B − C)/(η₀B + C)|²,
-/// T = 4 Re(η₀) Re(η_m) / |η₀B + C|² (Macleod, *Thin-Film Optical Filters*,
-/// 2010, eq. 2.99–2.100), with the field's scale e^{log} divided out of T.
+/// (B, C) at the front face: r = (η₀B − C)/(η₀B + C) and the tangential
+/// amplitude t = 2η₀/(η₀B + C) (Macleod, *Thin-Film Optical Filters*, 2010,
+/// eq. 2.99–2.100), R = |r|², T = |t|² Re(η_m)/Re(η₀), with the field's scale
+/// e^{log} divided out of T. For a lossless incident medium this is Macleod's
+/// T = 4η₀ Re(η_m)/|η₀B + C|²; from inside an absorbing sheet it is the
+/// convention of Byrnes, "Multilayer optical calculations", arXiv:1603.02720
+/// (2016), eq. 14–15, written with tilted admittances.
 fn coherent(eta0: Complex64, eta_m: Complex64, f: &Field) -> (f64, f64) {
     let [b, c] = f.v;
     let den = eta0 * b + c;
     let r = (eta0 * b - c) / den;
-    let t = 4.0 * eta0.re * eta_m.re / den.norm_sqr() * (-2.0 * f.log).exp();
+    let t = 4.0 * eta0.norm_sqr() * eta_m.re / (eta0.re * den.norm_sqr()) * (-2.0 * f.log).exp();
     (r.norm_sqr(), t)
-}
-
-/// Reflectance and transmittance of a bare interface from admittance `a` into `b`.
-fn interface(a: Complex64, b: Complex64) -> (f64, f64) {
-    let den = a + b;
-    (
-        ((a - b) / den).norm_sqr(),
-        4.0 * a.re * b.re / den.norm_sqr(),
-    )
 }
 
 /// A coherent stack (matrix `m`) on a thick sheet whose back face reflects
