@@ -3,7 +3,7 @@
 
 use num_complex::Complex64;
 
-use super::matrix::{Field, Mat, Phase, RealMat};
+use super::matrix::{Field, Mat, Phase, RealPair};
 use super::medium::MediumTerms;
 
 /// One element of a stack, listed from the incident side.
@@ -162,8 +162,7 @@ fn apply(nodes: &[Node], terms: &[MediumTerms], k0: f64, fs: &mut Field, fp: &mu
 /// path when every layer in them is lossless and propagating.
 fn repeat(nodes: &[Node], count: u64, terms: &[MediumTerms], k0: f64) -> (Mat, Mat) {
     if all_real(nodes, terms) {
-        let (s, p) = product_real(nodes, terms, k0);
-        (s.pow(count).complex(), p.pow(count).complex())
+        product_real(nodes, terms, k0).pow(count).complex()
     } else {
         let (s, p) = product(nodes, terms, k0);
         (s.pow(count), p.pow(count))
@@ -177,31 +176,28 @@ fn all_real(nodes: &[Node], terms: &[MediumTerms]) -> bool {
     })
 }
 
-/// [`product`] for lossless, propagating layers.
-fn product_real(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> (RealMat, RealMat) {
-    let (mut ms, mut mp) = (RealMat::identity(), RealMat::identity());
+/// [`product`] for lossless, propagating layers, both polarizations at once.
+fn product_real(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> RealPair {
+    let mut m = RealPair::identity();
     for node in nodes {
-        let (ns, np) = match node {
+        let next = match node {
             Node::Layer {
                 medium,
                 thickness_nm,
             } => {
                 let t = &terms[*medium];
                 let ph = Phase::new(k0 * thickness_nm, t.q);
-                (
-                    RealMat::layer(&ph, t.eta_s.re, t.inv_eta_s.re),
-                    RealMat::layer(&ph, t.eta_p.re, t.inv_eta_p.re),
+                RealPair::layer(
+                    &ph,
+                    [t.eta_s.re, t.eta_p.re],
+                    [t.inv_eta_s.re, t.inv_eta_p.re],
                 )
             }
-            Node::Repeat { count, nodes } => {
-                let (s, p) = product_real(nodes, terms, k0);
-                (s.pow(*count), p.pow(*count))
-            }
+            Node::Repeat { count, nodes } => product_real(nodes, terms, k0).pow(*count),
         };
-        ms = ms.mul(&ns);
-        mp = mp.mul(&np);
+        m = m.mul(&next);
     }
-    (ms, mp)
+    m
 }
 
 /// The characteristic matrices (s, p) of `nodes`: M₁·M₂·…, incident side first.
