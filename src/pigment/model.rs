@@ -59,7 +59,7 @@
 //! lossless; its thickness does not enter.
 //!
 //! Cost: the platelet's R and T are computed once on a grid of internal
-//! angles (every [`TABLE_STEP_DEG`]°) and the extinction a(θ') on a coarser
+//! angles (every [`TABLE_STEP_DEG`]°, quadratic interpolation) and the extinction a(θ') on a coarser
 //! grid, so one geometry costs a few dozen operations per wavelength.
 
 use std::f64::consts::PI;
@@ -214,19 +214,23 @@ impl PlateletTable {
         }
     }
 
-    /// R and T at internal angle `theta` (radians) and wavelength index `w`,
-    /// linear in angle; angles beyond the last node take its values.
+    /// R and T at internal angle `theta` (radians) and wavelength index `w`
+    /// by three-point (quadratic) Lagrange interpolation about the nearest
+    /// node, which follows the quadratic bottom of an interference minimum;
+    /// angles beyond the last node take its values.
     fn at(&self, theta: f64, w: usize) -> Rt {
-        let x = theta.to_degrees() / TABLE_STEP_DEG;
-        let k = (x.max(0.0) as usize).min(TABLE_ANGLES - 2);
-        let f = (x - k as f64).clamp(0.0, 1.0);
-        let (a, b) = (self.rt[k * self.nw + w], self.rt[(k + 1) * self.nw + w]);
-        let mix = |p: f64, q: f64| p + (q - p) * f;
+        let x = (theta.to_degrees() / TABLE_STEP_DEG).clamp(0.0, (TABLE_ANGLES - 1) as f64);
+        let k = (x.round() as usize).clamp(1, TABLE_ANGLES - 2);
+        let u = x - k as f64;
+        let l = [0.5 * u * (u - 1.0), 1.0 - u * u, 0.5 * u * (u + 1.0)];
+        let node = |j: usize| self.rt[(k + j - 1) * self.nw + w];
+        let (a, b, c) = (node(0), node(1), node(2));
+        let mix = |p: f64, q: f64, r: f64| (l[0] * p + l[1] * q + l[2] * r).clamp(0.0, 1.0);
         Rt {
-            rs: mix(a.rs, b.rs),
-            rp: mix(a.rp, b.rp),
-            ts: mix(a.ts, b.ts),
-            tp: mix(a.tp, b.tp),
+            rs: mix(a.rs, b.rs, c.rs),
+            rp: mix(a.rp, b.rp, c.rp),
+            ts: mix(a.ts, b.ts, c.ts),
+            tp: mix(a.tp, b.tp, c.tp),
         }
     }
 }
