@@ -333,3 +333,44 @@ fn bad_coating_sections_are_refused_with_the_key() {
         assert!(err.contains(key), "{err} should name {key}");
     }
 }
+
+/// Energy balance without platelets: a white Lambertian background under a
+/// clear binder of index 1 is the perfect diffuser (R_F = 1 by the
+/// definition of the reflectance factor, CIE 015:2018); under a binder of
+/// index 1.5 all light that enters comes back out, so the hemispherical
+/// integral of R_F cos θ / π equals the surface transmittance T(θ_i)
+/// (Fresnel, Born & Wolf, *Principles of Optics*, 7th ed. 1999, §1.5.3).
+#[test]
+fn a_white_background_alone_conserves_energy() {
+    for n in [1.0, 1.5] {
+        let mut s = scene(&coating_scene(
+            n,
+            r#"{"binder": "clear", "platelet": [{"material": "tio2", "thickness_nm": 50}],
+                "platelet_coverage": 0, "background": "white"}"#,
+            50.0,
+        ));
+        let coating = Coating::from_scene(&mut s).unwrap();
+        let model = Model::new(&s, &coating).unwrap();
+        let nw = s.wavelengths_nm.len();
+        let theta_i = 30f64.to_radians();
+        let ill = [-theta_i.sin(), 0.0, theta_i.cos()];
+        // ∫ R_F cos θ sin θ dθ · 2 = ∫ R_F d(sin² θ), midpoint rule.
+        let k = 4000;
+        let mut albedo = 0.0;
+        let mut rf = vec![0.0; nw];
+        for j in 0..k {
+            let s2 = (j as f64 + 0.5) / k as f64;
+            model.reflectance_factor(ill, [s2.sqrt(), 0.0, (1.0 - s2).sqrt()], &mut rf);
+            if n == 1.0 {
+                assert!(rf.iter().all(|r| (r - 1.0).abs() < 1e-12), "{rf:?}");
+            }
+            albedo += rf[0] / k as f64;
+        }
+        let (ts, tp) = fresnel_t(n, theta_i);
+        let expected = 0.5 * (ts + tp);
+        assert!(
+            (albedo - expected).abs() < 2e-3,
+            "n = {n}: {albedo} vs {expected}"
+        );
+    }
+}
