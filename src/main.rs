@@ -48,6 +48,7 @@ enum Command {
     /// 45as15 (illumination 45°, detection 15° from the specular direction
     /// toward the normal): reflectance factor, XYZ, CIELAB, C*, h, sRGB, hex
     /// and gamut per geometry, the flop index and the hue travel.
+    #[command(after_help = cli::multiangle::HELP)]
     Multiangle {
         /// Scene file (JSON) with a `coating` section.
         scene: PathBuf,

@@ -295,6 +295,16 @@ fn multiangle_command_reports_every_geometry() {
         "--gamut",
         "--output",
         "45as15",
+        "45as-15",
+        "15as80",
+        "tilt_sigma_deg",
+        "tilt_density",
+        "platelet_coverage",
+        "background",
+        "detection_azimuth_deg",
+        "flop_index",
+        "hue_travel_deg",
+        "surface_gloss_Y",
     ] {
         assert!(help.contains(flag), "{flag} missing from --help");
     }

@@ -10,6 +10,38 @@ use serde_json::{Value, json};
 use super::color::ViewArgs;
 use super::{CliResult, Failure, load_scene, write_out};
 
+/// The scene's `coating` keys and the output keys, shown by `--help`.
+pub const HELP: &str = "\
+Scene `coating` keys:
+  binder             material name of the clear binder (lossless, n ≥ 1; e.g. define
+                     {\"n\": 1.5} under `materials`)
+  platelet           the platelet's layers, same syntax as `stack` (repeat, vary_nm,
+                     sigma_nm / sigma_pct for an uneven core)
+  disorder           {realizations, seed, sigma_nm | sigma_pct} for the platelet layers
+  tilt_sigma_deg     Gaussian spread of platelet normals (density per solid angle
+                     ∝ exp(−tilt²/2σ²)), 0.05–60; default 10
+  tilt_density       instead: [[tilt_deg, weight], …] density per solid angle from 0°
+  platelet_coverage  platelet area per unit coating area, 0–20; default 1
+  background         \"black\" (default), \"white\", {\"reflectance\": 0–1} or
+                     {\"reflectance\": [[nm, R], …]} (Lambertian)
+  geometries         \"45\" (default: 45as-15, 45as15, 45as25, 45as45, 45as75, 45as110),
+                     \"15\" (15as-45, 15as-15, 15as15, 15as25, 15as45, 15as80), a name
+                     ILLUMINATIONasASPECULAR, or a list of names, sets and objects
+                     {illumination_deg, aspecular_deg, name?} (in-plane) or
+                     {illumination_deg, detection_deg, detection_azimuth_deg, name?}
+                     (any pair; azimuth 0 = specular side, 180 = illumination side)
+  notes              free text
+Geometry names: 45as15 = illumination 45° from the normal, detection 15° from the
+specular direction toward the normal (30° on the specular side); 45as-15 detects at
+60°; 45as110 at 65° on the illumination side.
+Output per geometry: name, illumination_deg, aspecular_deg, in_plane, X, Y, Z, L, a, b,
+C, h, srgb, hex, in_gamut, reflectance_factor (with --spectra). Also flop_index =
+2.69 (L*15 − L*110)^1.11 / (L*45)^0.86 from 45as15, 45as45, 45as110 (null with
+flop_note otherwise), hue_travel_deg (net hue change along the listed geometries) and
+surface_gloss_Y (the binder surface's mirror reflection, excluded from every geometry).
+Reflectance factor: radiance relative to a perfect white diffuser under the same
+geometry (Y = 100 for the perfect diffuser).";
+
 /// Output format.
 #[derive(Debug, Clone, Copy, clap::ValueEnum)]
 pub enum Format {
