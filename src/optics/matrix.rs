@@ -207,16 +207,17 @@ impl Mat {
 
 /// The characteristic matrices of lossless, propagating layers for both
 /// polarizations at once (lane 0: s, lane 1: p): [[a, −i·b], [−i·c, d]] with
-/// a, b, c, d real, times e^{log} (one scale for both lanes). Products of
-/// such matrices keep the form, so a quarter of the complex arithmetic
-/// suffices, and the two lanes run side by side in vector registers.
+/// a, b, c, d real, times e^{log} (a scale per lane: in a long stop band the
+/// two polarizations grow at different rates). Products of such matrices keep
+/// the form, so a quarter of the complex arithmetic suffices, and the two
+/// lanes run side by side in vector registers.
 #[derive(Debug, Clone, Copy)]
 pub struct RealPair {
     a: [f64; 2],
     b: [f64; 2],
     c: [f64; 2],
     d: [f64; 2],
-    log: f64,
+    log: [f64; 2],
 }
 
 impl RealPair {
@@ -227,7 +228,7 @@ impl RealPair {
             b: [0.0; 2],
             c: [0.0; 2],
             d: [1.0; 2],
-            log: 0.0,
+            log: [0.0; 2],
         }
     }
 
@@ -240,7 +241,7 @@ impl RealPair {
             b: [sn * inv_eta[0], sn * inv_eta[1]],
             c: [sn * eta[0], sn * eta[1]],
             d: [cs; 2],
-            log: 0.0,
+            log: [0.0; 2],
         }
     }
 
@@ -252,23 +253,24 @@ impl RealPair {
             b: lanes(&|i| self.a[i] * r.b[i] + self.b[i] * r.d[i]),
             c: lanes(&|i| self.c[i] * r.a[i] + self.d[i] * r.c[i]),
             d: lanes(&|i| self.d[i] * r.d[i] - self.c[i] * r.b[i]),
-            log: self.log + r.log,
+            log: lanes(&|i| self.log[i] + r.log[i]),
         };
-        let big = (0..2).fold(0.0f64, |m, i| {
-            m.max(out.a[i].abs())
+        let big = lanes(&|i| {
+            out.a[i]
+                .abs()
                 .max(out.b[i].abs())
                 .max(out.c[i].abs())
                 .max(out.d[i].abs())
         });
-        if big > BIG {
-            let inv = 1.0 / big;
-            for i in 0..2 {
+        if big[0] > BIG || big[1] > BIG {
+            for (i, &m) in big.iter().enumerate().filter(|(_, m)| **m > BIG) {
+                let inv = 1.0 / m;
                 out.a[i] *= inv;
                 out.b[i] *= inv;
                 out.c[i] *= inv;
                 out.d[i] *= inv;
+                out.log[i] += m.ln();
             }
-            out.log += big.ln();
         }
         out
     }
@@ -297,7 +299,7 @@ impl RealPair {
                 [re(self.a[i]), mi(self.b[i])],
                 [mi(self.c[i]), re(self.d[i])],
             ],
-            log: self.log,
+            log: self.log[i],
         };
         (lane(0), lane(1))
     }
