@@ -47,6 +47,24 @@ enum Command {
         #[arg(short = 'o', long = "output")]
         output: Option<PathBuf>,
     },
+    /// Colour of an effect-pigment coating (the scene's `coating`: platelets
+    /// in a binder over a background) at multi-angle geometries such as
+    /// 45as15 (illumination 45°, detection 15° from the specular direction
+    /// toward the normal): reflectance factor, XYZ, CIELAB, C*, h, sRGB, hex
+    /// and gamut per geometry, the flop index and the hue travel.
+    #[command(after_help = cli::multiangle::HELP)]
+    Multiangle {
+        /// Scene file (JSON) with a `coating` section.
+        scene: PathBuf,
+        /// Output format.
+        #[arg(long, value_enum, default_value = "table")]
+        format: cli::multiangle::Format,
+        #[command(flatten)]
+        args: cli::multiangle::Args,
+        /// Write to this file (atomically) instead of stdout.
+        #[arg(short = 'o', long = "output")]
+        output: Option<PathBuf>,
+    },
     /// List the built-in materials: model, valid range, n and k at 550 nm, source.
     Materials,
 }
@@ -73,6 +91,12 @@ fn main() -> ExitCode {
             display_p3,
             output,
         } => cli::color::run(&scene, format, &view, display_p3, output.as_ref()),
+        Command::Multiangle {
+            scene,
+            format,
+            args,
+            output,
+        } => cli::multiangle::run(&scene, format, &args, output.as_ref()),
         Command::Materials => cli::materials::run(),
     };
     match result {

@@ -2,6 +2,7 @@
 
 pub mod color;
 pub mod materials;
+pub mod multiangle;
 pub mod output;
 pub mod spectrum;
 
