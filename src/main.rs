@@ -36,7 +36,7 @@ enum Command {
         scene: PathBuf,
         /// Output format.
         #[arg(long, value_enum, default_value = "table")]
-        format: cli::color::Format,
+        format: cli::RecordFormat,
         #[command(flatten)]
         view: cli::color::ViewArgs,
         /// Also give Display P3 values (`display_p3`, `display_p3_hex`,
@@ -58,7 +58,7 @@ enum Command {
         scene: PathBuf,
         /// Output format.
         #[arg(long, value_enum, default_value = "table")]
-        format: cli::multiangle::Format,
+        format: cli::RecordFormat,
         #[command(flatten)]
         args: cli::multiangle::Args,
         /// Write to this file (atomically) instead of stdout.

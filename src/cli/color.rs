@@ -9,18 +9,7 @@ use lamella::colorimetry::{
 };
 use serde_json::{Value, json};
 
-use super::{CliResult, Failure, load_scene, write_out};
-
-/// Output format of the colour table.
-#[derive(Debug, Clone, Copy, clap::ValueEnum)]
-pub enum Format {
-    /// A list of records, one per angle.
-    Json,
-    /// One row per angle.
-    Csv,
-    /// A readable table with a colour swatch per row on a true-colour terminal.
-    Table,
-}
+use super::{CliResult, Failure, RecordFormat, load_scene, write_out};
 
 /// Flags shared by every command that turns spectra into colour.
 #[derive(Debug, Clone, clap::Args)]
@@ -82,7 +71,7 @@ impl ViewArgs {
 /// Runs the command.
 pub fn run(
     scene_path: &Path,
-    format: Format,
+    format: RecordFormat,
     view: &ViewArgs,
     display_p3: bool,
     out: Option<&PathBuf>,
@@ -110,9 +99,11 @@ pub fn run(
         }
     }
     let text = match format {
-        Format::Json => serde_json::to_string_pretty(&records).expect("records serialise") + "\n",
-        Format::Csv => csv(&records),
-        Format::Table => table(
+        RecordFormat::Json => {
+            serde_json::to_string_pretty(&records).expect("records serialise") + "\n"
+        }
+        RecordFormat::Csv => csv(&records),
+        RecordFormat::Table => table(
             &scene.title,
             &viewing,
             &spectra.angles_deg,

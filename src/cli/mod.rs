@@ -10,6 +10,17 @@ use std::path::{Path, PathBuf};
 
 use lamella::scene::Scene;
 
+/// Output format of commands that print one record per angle or geometry.
+#[derive(Debug, Clone, Copy, clap::ValueEnum)]
+pub enum RecordFormat {
+    /// A list of records (JSON).
+    Json,
+    /// One row per record.
+    Csv,
+    /// A readable table with a colour swatch per row on a true-colour terminal.
+    Table,
+}
+
 /// A failure with the exit code it maps to.
 #[derive(Debug)]
 pub struct Failure {

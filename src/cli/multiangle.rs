@@ -8,7 +8,7 @@ use lamella::pigment::{Coating, Measurement, Model, measure, parse_name};
 use serde_json::{Value, json};
 
 use super::color::ViewArgs;
-use super::{CliResult, Failure, load_scene, write_out};
+use super::{CliResult, Failure, RecordFormat, load_scene, write_out};
 
 /// The scene's `coating` keys and the output keys, shown by `--help`.
 pub const HELP: &str = "\
@@ -42,17 +42,6 @@ surface_gloss_Y (the binder surface's mirror reflection, excluded from every geo
 Reflectance factor: radiance relative to a perfect white diffuser under the same
 geometry (Y = 100 for the perfect diffuser).";
 
-/// Output format.
-#[derive(Debug, Clone, Copy, clap::ValueEnum)]
-pub enum Format {
-    /// One object with a record per geometry.
-    Json,
-    /// One row per geometry.
-    Csv,
-    /// A readable table with a colour swatch per row on a true-colour terminal.
-    Table,
-}
-
 /// Flags of the command.
 #[derive(Debug, Clone, clap::Args)]
 pub struct Args {
@@ -80,7 +69,12 @@ pub struct Args {
 }
 
 /// Runs the command.
-pub fn run(scene_path: &Path, format: Format, args: &Args, out: Option<&PathBuf>) -> CliResult {
+pub fn run(
+    scene_path: &Path,
+    format: RecordFormat,
+    args: &Args,
+    out: Option<&PathBuf>,
+) -> CliResult {
     let bad = |e: lamella::Error| Failure::input(format!("{}: {e}", scene_path.display()));
     let mut scene = load_scene(scene_path)?;
     let mut coating = Coating::from_scene(&mut scene).map_err(bad)?;
@@ -104,7 +98,7 @@ pub fn run(scene_path: &Path, format: Format, args: &Args, out: Option<&PathBuf>
     let model = Model::new(&scene, &coating).map_err(bad)?;
     let m = measure(&model, &coating.geometries, &weights, &viewing.options);
     let text = match format {
-        Format::Json => {
+        RecordFormat::Json => {
             let mut doc = json!({
                 "title": scene.title,
                 "illuminant": viewing.illuminant.name(),
@@ -122,8 +116,8 @@ pub fn run(scene_path: &Path, format: Format, args: &Args, out: Option<&PathBuf>
             }
             serde_json::to_string_pretty(&doc).expect("records serialise") + "\n"
         }
-        Format::Csv => csv(&m, &scene.wavelengths_nm, args.spectra),
-        Format::Table => table(
+        RecordFormat::Csv => csv(&m, &scene.wavelengths_nm, args.spectra),
+        RecordFormat::Table => table(
             &scene.title,
             &m,
             viewing.illuminant.name(),

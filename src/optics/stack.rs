@@ -98,32 +98,18 @@ impl Stack {
                 let (ms, mp) = product(&self.nodes, terms, k0);
                 // Single-pass intensity attenuation in the sheet, exp(−2 Im δ).
                 let alpha = (-2.0 * k0 * thickness_nm * sheet.q.im).exp();
-                let back = |eta_sheet: Complex64, eta_behind: Option<Complex64>| match eta_behind {
-                    Some(eb) => coherent(eta_sheet, eb, &Field::exit(eb)),
-                    None => (0.0, 0.0),
+                // One polarization: its admittance picked from each medium's terms.
+                let pol = |m: &Mat, eta: fn(&MediumTerms) -> Complex64| {
+                    let back = match behind {
+                        Behind::Medium(b) => {
+                            coherent(eta(sheet), eta(&terms[b]), &Field::exit(eta(&terms[b])))
+                        }
+                        Behind::Black => (0.0, 0.0),
+                    };
+                    incoherent(m, eta(inc), eta(sheet), back, alpha)
                 };
-                let eb = |pol_s: bool| match behind {
-                    Behind::Medium(b) => Some(if pol_s {
-                        terms[b].eta_s
-                    } else {
-                        terms[b].eta_p
-                    }),
-                    Behind::Black => None,
-                };
-                let (rs, ts) = incoherent(
-                    &ms,
-                    inc.eta_s,
-                    sheet.eta_s,
-                    back(sheet.eta_s, eb(true)),
-                    alpha,
-                );
-                let (rp, tp) = incoherent(
-                    &mp,
-                    inc.eta_p,
-                    sheet.eta_p,
-                    back(sheet.eta_p, eb(false)),
-                    alpha,
-                );
+                let (rs, ts) = pol(&ms, |t| t.eta_s);
+                let (rp, tp) = pol(&mp, |t| t.eta_p);
                 Rt { rs, rp, ts, tp }
             }
         }
