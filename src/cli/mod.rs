@@ -13,7 +13,7 @@ use lamella::scene::Scene;
 /// Output format of commands that print one record per angle or geometry.
 #[derive(Debug, Clone, Copy, clap::ValueEnum)]
 pub enum RecordFormat {
-    /// A list of records (JSON).
+    /// JSON: the records with their keys.
     Json,
     /// One row per record.
     Csv,
