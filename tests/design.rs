@@ -55,6 +55,7 @@ fn settings(goals: Vec<Goal>, seed: u64) -> MatchSettings {
         budget: Budget {
             max_evals: 40_000,
             good_enough: 0.03,
+            handover: 0.5,
             seed,
         },
     }

@@ -134,6 +134,7 @@ pub fn match_colour(
     let mut budget = settings.budget;
     if settings.brightness_weight != 0.0 {
         budget.good_enough = f64::NEG_INFINITY;
+        budget.handover = f64::NEG_INFINITY;
     }
     let found = search::minimise(&cost, vars.len(), budget, progress);
     let x = to_x(&found.u);

@@ -20,6 +20,9 @@ pub struct Budget {
     pub max_evals: usize,
     /// Stop as soon as the cost falls below this.
     pub good_enough: f64,
+    /// The global stage hands over to local refinement once its best cost
+    /// falls below this (or when it stalls).
+    pub handover: f64,
     /// Seed of the global stage; the search is deterministic for a seed.
     pub seed: u64,
 }
@@ -107,7 +110,6 @@ pub fn minimise(
     for round in 0u64.. {
         // Global stage: until it is close enough for a local method to
         // finish, stalls, or the budget is spent.
-        let handover = (20.0 * budget.good_enough).max(0.5);
         let mut last = (f64::INFINITY, 0u64);
         let solver = Solver::build(
             De::default(),
@@ -120,10 +122,10 @@ pub fn minimise(
         .pop_num(pop)
         .task(|ctx| {
             let b = ctx.best.get_eval();
-            if b < last.0 - 1e-3 {
+            if b < last.0 * 0.99 {
                 last = (b, ctx.r#gen);
             }
-            b < handover || ctx.r#gen - last.1 > 30 || evals() >= budget.max_evals
+            b < budget.handover || ctx.r#gen - last.1 > 30 || evals() >= budget.max_evals
         })
         .solve();
         // Local stage from the best few distinct members.

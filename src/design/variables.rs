@@ -64,7 +64,7 @@ fn walk(items: &[Item], f: &mut dyn FnMut(&crate::scene::Layer)) {
     }
 }
 
-fn walk_mut(items: &mut [Item], f: &mut dyn FnMut(&mut crate::scene::Layer)) {
+pub(super) fn walk_mut(items: &mut [Item], f: &mut dyn FnMut(&mut crate::scene::Layer)) {
     for item in items {
         match item {
             Item::Layer(l) => f(l),
