@@ -31,7 +31,7 @@ struct Fast {
 }
 
 /// Buffers one thread reuses between designs.
-struct Workspace {
+pub struct Workspace {
     stack: Option<Stack>,
     terms: Vec<MediumTerms>,
     spectrum: Vec<f64>,
@@ -150,6 +150,8 @@ impl Evaluator {
     /// Evaluates the design with thicknesses `x` (nm, one per variable) and,
     /// when `dn` is given, the real index of medium m shifted by `dn[m]`
     /// (never the incident medium's); hands the results to `f`.
+    /// Buffers are taken from a shared pool; hot loops that own a
+    /// [`Workspace`] call [`Evaluator::eval_in`] instead.
     pub fn eval<R>(&self, x: &[f64], dn: Option<&[f64]>, f: impl FnOnce(&Output) -> R) -> R {
         let mut ws = self
             .pool
@@ -157,16 +159,28 @@ impl Evaluator {
             .expect("pool lock")
             .pop()
             .unwrap_or_else(|| self.workspace());
-        self.fill(x, dn, &mut ws);
-        let r = f(&Output {
-            spectrum: &ws.spectrum,
-            xyz: &ws.xyz,
-        });
+        let r = self.eval_in(&mut ws, x, dn, f);
         self.pool.lock().expect("pool lock").push(ws);
         r
     }
 
-    fn workspace(&self) -> Workspace {
+    /// [`Evaluator::eval`] with the caller's buffers.
+    pub fn eval_in<R>(
+        &self,
+        ws: &mut Workspace,
+        x: &[f64],
+        dn: Option<&[f64]>,
+        f: impl FnOnce(&Output) -> R,
+    ) -> R {
+        self.fill(x, dn, ws);
+        f(&Output {
+            spectrum: &ws.spectrum,
+            xyz: &ws.xyz,
+        })
+    }
+
+    /// Fresh buffers for [`Evaluator::eval_in`].
+    pub fn workspace(&self) -> Workspace {
         Workspace {
             stack: self.fast.as_ref().map(|f| f.stack.clone()),
             terms: Vec::with_capacity(self.index.len()),

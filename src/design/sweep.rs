@@ -124,12 +124,15 @@ pub fn lines(
             let mut out = Vec::with_capacity((end - start) as usize * (120 + 24 * dim));
             let mut num = zmij::Buffer::new();
             let (mut u, mut x) = (vec![0.0; dim], vec![0.0; dim]);
+            let mut ws = eval.workspace();
             for i in start..end {
                 plan.unit(i, dim, &mut u);
                 for ((x, u), v) in x.iter_mut().zip(&u).zip(vars) {
                     *x = v.low_nm + u * (v.high_nm - v.low_nm);
                 }
-                let c = eval.eval(&x, None, |o| Colour::new(o.xyz[0], white, &options));
+                let c = eval.eval_in(&mut ws, &x, None, |o| {
+                    Colour::new(o.xyz[0], white, &options)
+                });
                 out.extend_from_slice(b"{\"index\":");
                 out.extend_from_slice(i.to_string().as_bytes());
                 out.extend_from_slice(b",\"thicknesses_nm\":[");
