@@ -28,7 +28,7 @@ fn five_layer(angles: &str) -> Scene {
   "angles_deg": {angles}
 }}"#
     );
-    Scene::from_json(text, &|_| Err("no files".into())).unwrap()
+    Scene::from_json(&text, &|_| Err("no files".into())).unwrap()
 }
 
 /// The scene with thicknesses `x` written in, re-read from its document.
