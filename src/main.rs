@@ -39,6 +39,10 @@ enum Command {
         format: cli::color::Format,
         #[command(flatten)]
         view: cli::color::ViewArgs,
+        /// Also give Display P3 values (`display_p3`, `display_p3_hex`,
+        /// `display_p3_in_gamut`) beside sRGB.
+        #[arg(long)]
+        display_p3: bool,
         /// Write to this file (atomically) instead of stdout.
         #[arg(short = 'o', long = "output")]
         output: Option<PathBuf>,
@@ -76,8 +80,9 @@ fn main() -> ExitCode {
             scene,
             format,
             view,
+            display_p3,
             output,
-        } => cli::color::run(&scene, format, &view, output.as_ref()),
+        } => cli::color::run(&scene, format, &view, display_p3, output.as_ref()),
         Command::Match(a) => cli::matching::run(&a),
         Command::Tolerance(a) => cli::tolerance::run(&a),
         Command::Fit(a) => cli::fit::run(&a),

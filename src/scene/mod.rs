@@ -307,9 +307,28 @@ impl Scene {
     }
 }
 
+/// A grid written as `{"from", "to", "step"}` or as a list of increasing values.
 fn grid(top: &Obj, key: &str, default: Range) -> Result<Vec<f64>> {
     let range = match top.get(key) {
         None => default,
+        Some(Value::Array(xs)) => {
+            let points = xs
+                .iter()
+                .enumerate()
+                .map(|(i, x)| json::number(x, &format!("{key}[{i}]")))
+                .collect::<Result<Vec<f64>>>()?;
+            if points.is_empty() {
+                return Err(Error::invalid(key, "[]", "needs at least one value"));
+            }
+            if let Some(i) = points.windows(2).position(|w| w[1] <= w[0]) {
+                return Err(Error::invalid(
+                    format!("{key}[{}]", i + 1),
+                    points[i + 1],
+                    "values must increase strictly",
+                ));
+            }
+            return Ok(points);
+        }
         Some(v) => {
             let o = Obj::new(v, key)?;
             o.only(&["from", "to", "step"])?;
