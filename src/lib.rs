@@ -4,6 +4,7 @@
 
 pub mod angle_colour;
 pub mod colorimetry;
+pub mod design;
 pub mod error;
 pub mod grid;
 pub mod materials;

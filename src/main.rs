@@ -65,6 +65,16 @@ enum Command {
         #[arg(short = 'o', long = "output")]
         output: Option<PathBuf>,
     },
+    /// Optimise the `vary_nm` thicknesses toward a target colour (ΔE00) at
+    /// one or more angles; writes the optimised scene and a JSON report.
+    Match(Box<cli::matching::MatchArgs>),
+    /// Monte Carlo tolerance of a design: ΔE00 percentiles, yield and the
+    /// layers the colour is most sensitive to.
+    Tolerance(Box<cli::tolerance::ToleranceArgs>),
+    /// Fit the `vary_nm` thicknesses to a measured reflectance spectrum.
+    Fit(Box<cli::fit::FitArgs>),
+    /// Evaluate many designs over the `vary_nm` ranges as JSON lines.
+    Sweep(Box<cli::sweep::SweepArgs>),
     /// List the built-in materials: model, valid range, n and k at 550 nm, source.
     Materials,
 }
@@ -97,6 +107,10 @@ fn main() -> ExitCode {
             args,
             output,
         } => cli::multiangle::run(&scene, format, &args, output.as_ref()),
+        Command::Match(a) => cli::matching::run(&a),
+        Command::Tolerance(a) => cli::tolerance::run(&a),
+        Command::Fit(a) => cli::fit::run(&a),
+        Command::Sweep(a) => cli::sweep::run(&a),
         Command::Materials => cli::materials::run(),
     };
     match result {

@@ -1,10 +1,15 @@
 //! The command-line front end: argument definitions and glue.
 
 pub mod color;
+pub mod design_args;
+pub mod fit;
+pub mod matching;
 pub mod materials;
 pub mod multiangle;
 pub mod output;
 pub mod spectrum;
+pub mod sweep;
+pub mod tolerance;
 
 use std::path::{Path, PathBuf};
 
