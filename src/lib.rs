@@ -8,6 +8,7 @@ pub mod error;
 pub mod grid;
 pub mod materials;
 pub mod optics;
+pub mod render;
 pub mod scene;
 
 pub use error::{Error, Result};

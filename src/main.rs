@@ -43,6 +43,9 @@ enum Command {
         #[arg(short = 'o', long = "output")]
         output: Option<PathBuf>,
     },
+    /// A preview image of an object (sphere, cylinder, torus, bottle, wavy
+    /// sheet or OBJ mesh) wearing the coating, shaded from the real spectra.
+    Render(cli::render::RenderArgs),
     /// List the built-in materials: model, valid range, n and k at 550 nm, source.
     Materials,
 }
@@ -68,6 +71,7 @@ fn main() -> ExitCode {
             view,
             output,
         } => cli::color::run(&scene, format, &view, output.as_ref()),
+        Command::Render(args) => cli::render::run(&args),
         Command::Materials => cli::materials::run(),
     };
     match result {

@@ -3,6 +3,7 @@
 pub mod color;
 pub mod materials;
 pub mod output;
+pub mod render;
 pub mod spectrum;
 
 use std::path::{Path, PathBuf};
