@@ -127,9 +127,11 @@ impl Mesh {
         ])
     }
 
-    /// A square sheet with gentle waves: y = 0.12 sin(1.5πx) cos(πz) over
-    /// x, z in [−1, 1], shaded on both sides.
+    /// A square sheet with gentle waves, y = 0.12 sin(1.5πx) cos(πz) over
+    /// x, z in [−1, 1], then tilted 60° about the x axis to face the default
+    /// camera like a sample card on an easel; shaded on both sides.
     pub fn sheet() -> Mesh {
+        let tilt = glam::Quat::from_rotation_x(60f32.to_radians());
         let n = 160;
         let (a, kx, kz) = (0.12f32, 1.5 * PI, PI);
         let mut positions = Vec::new();
@@ -141,8 +143,8 @@ impl Mesh {
                 let y = a * (kx * x).sin() * (kz * z).cos();
                 let dx = a * kx * (kx * x).cos() * (kz * z).cos();
                 let dz = -a * kz * (kx * x).sin() * (kz * z).sin();
-                positions.push(Vec3::new(x, y, z));
-                normals.push(Vec3::new(-dx, 1.0, -dz).normalize());
+                positions.push(tilt * Vec3::new(x, y, z));
+                normals.push(tilt * Vec3::new(-dx, 1.0, -dz).normalize());
             }
         }
         let mut triangles = Vec::new();
