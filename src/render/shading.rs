@@ -89,12 +89,15 @@ pub struct Shader {
     base: Option<Vec3>,
 }
 
+/// A spectrum per angle of the table grid.
+type PerAngle = Vec<Vec<f64>>;
+
 /// R and T (unpolarized) per angle of the grid 0…90° in steps of `STEP`,
 /// per wavelength. The last row is the grazing limit R = 1, T = 0, which any
 /// stack reaches as cos θ₀ → 0 with a lossless incident medium (the Fresnel
 /// coefficients of the first interface tend to −1; Born & Wolf, *Principles
 /// of Optics*, 7th ed. 1999, §1.5.2).
-fn film(scene: &Scene) -> Result<(Vec<Vec<f64>>, Vec<Vec<f64>>)> {
+fn film(scene: &Scene) -> Result<(PerAngle, PerAngle)> {
     let wl = &scene.wavelengths_nm;
     let n = (90.0 / STEP).round() as usize;
     let angles: Vec<f64> = (0..n).map(|i| i as f64 * STEP).collect();
@@ -104,7 +107,7 @@ fn film(scene: &Scene) -> Result<(Vec<Vec<f64>>, Vec<Vec<f64>>)> {
         wl,
         &angles,
     );
-    let (mut r, mut t): (Vec<Vec<f64>>, Vec<Vec<f64>>) = (0..n)
+    let (mut r, mut t): (PerAngle, PerAngle) = (0..n)
         .map(|a| {
             let rt = spectra.at_angle(a);
             (
