@@ -10,6 +10,7 @@ pub mod grid;
 pub mod materials;
 pub mod optics;
 pub mod pigment;
+pub mod render;
 pub mod scene;
 
 pub use error::{Error, Result};

@@ -75,6 +75,9 @@ enum Command {
     Fit(Box<cli::fit::FitArgs>),
     /// Evaluate many designs over the `vary_nm` ranges as JSON lines.
     Sweep(Box<cli::sweep::SweepArgs>),
+    /// A preview image of an object (sphere, cylinder, torus, bottle, wavy
+    /// sheet or OBJ mesh) wearing the coating, shaded from the real spectra.
+    Render(cli::render::RenderArgs),
     /// List the built-in materials: model, valid range, n and k at 550 nm, source.
     Materials,
 }
@@ -111,6 +114,7 @@ fn main() -> ExitCode {
         Command::Tolerance(a) => cli::tolerance::run(&a),
         Command::Fit(a) => cli::fit::run(&a),
         Command::Sweep(a) => cli::sweep::run(&a),
+        Command::Render(args) => cli::render::run(&args),
         Command::Materials => cli::materials::run(),
     };
     match result {

@@ -7,6 +7,7 @@ pub mod matching;
 pub mod materials;
 pub mod multiangle;
 pub mod output;
+pub mod render;
 pub mod spectrum;
 pub mod sweep;
 pub mod tolerance;

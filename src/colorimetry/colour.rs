@@ -4,7 +4,7 @@
 use std::str::FromStr;
 
 use palette::convert::FromColorUnclamped;
-use palette::encoding::{self, FromLinear};
+use palette::encoding::{self, FromLinear, IntoLinear};
 use palette::lms::matrix::{Bradford, XyzToLms};
 use palette::matrix::{matrix_inverse, multiply_3x3, multiply_3x3_and_vec3, rgb_to_xyz_matrix};
 use palette::white_point::{D65, E, WhitePoint};
@@ -151,7 +151,7 @@ impl Colour {
     /// on the grid and that one; so the perfect reflector is always RGB white.
     /// Then the linear RGB matrix and the transfer curve, clipping to 0–1.
     pub fn new(xyz: [f64; 3], white: [f64; 3], options: &ColourOptions) -> Colour {
-        let display = Display::new(white, options.space);
+        let display = RgbDisplay::new(white, options.space);
         let lab = xyz_to_lab(xyz, white);
         let lch = lab_to_lch(lab);
         let linear = display.linear(xyz);
@@ -161,7 +161,7 @@ impl Colour {
             GamutMapping::Chroma if in_gamut => linear,
             GamutMapping::Chroma => display.reduce_chroma(lch, white),
         };
-        let rgb = mapped.map(|c| encode(c.clamp(0.0, 1.0)));
+        let rgb = mapped.map(|c| srgb_encode(c.clamp(0.0, 1.0)));
         let [r, g, b] = rgb.map(|c| (c * 255.0).round() as u8);
         Colour {
             xyz,
@@ -182,7 +182,7 @@ impl Colour {
 /// `c.rgb` for in-gamut colours.
 pub fn rgb_to_xyz_under(rgb: [f64; 3], white: [f64; 3], space: RgbSpace) -> [f64; 3] {
     let linear = rgb.map(<encoding::Srgb as encoding::IntoLinear<f64, f64>>::into_linear);
-    let to_xyz = matrix_inverse(Display::new(white, space).to_rgb);
+    let to_xyz = matrix_inverse(RgbDisplay::new(white, space).to_rgb);
     multiply_3x3_and_vec3(to_xyz, linear).map(|v| v * 100.0)
 }
 
@@ -194,8 +194,13 @@ fn inside(rgb: [f64; 3]) -> bool {
 
 /// The sRGB transfer curve (IEC 61966-2-1: 12.92·L up to 0.0031308, else
 /// 1.055·L^(1/2.4) − 0.055), shared by Display P3; computed by `palette`.
-fn encode(linear: f64) -> f64 {
+pub fn srgb_encode(linear: f64) -> f64 {
     <encoding::Srgb as FromLinear<f64, f64>>::from_linear(linear)
+}
+
+/// Inverse of [`srgb_encode`] (IEC 61966-2-1); computed by `palette`.
+pub fn srgb_decode(encoded: f64) -> f64 {
+    <encoding::Srgb as IntoLinear<f64, f64>>::into_linear(encoded)
 }
 
 /// Linear RGB matrix of a space: the RGB → XYZ matrix derived from its
@@ -231,19 +236,20 @@ fn bradford_to_d65(white: [f64; 3]) -> Mat3<f64> {
 /// followed by XYZ → RGB, as one matrix. The RGB matrix is derived from the
 /// primaries rather than taken as printed, so the D65 white maps to exactly
 /// (1, 1, 1) and the perfect reflector is in gamut at 1e-9.
-struct Display {
+pub struct RgbDisplay {
     to_rgb: Mat3<f64>,
 }
 
-impl Display {
-    fn new(white: [f64; 3], space: RgbSpace) -> Self {
-        Display {
+impl RgbDisplay {
+    /// The rendering for a light whose perfect reflector gives `white`.
+    pub fn new(white: [f64; 3], space: RgbSpace) -> Self {
+        RgbDisplay {
             to_rgb: multiply_3x3(matrix_inverse(rgb_to_xyz(space)), bradford_to_d65(white)),
         }
     }
 
     /// Linear RGB (unclipped) of X, Y, Z on the 0–100 scale.
-    fn linear(&self, xyz: [f64; 3]) -> [f64; 3] {
+    pub fn linear(&self, xyz: [f64; 3]) -> [f64; 3] {
         multiply_3x3_and_vec3(self.to_rgb, xyz.map(|v| v / 100.0))
     }
 
@@ -276,14 +282,14 @@ mod tests {
         Range { from, to, step }.points("w").unwrap()
     }
 
-    /// IEC 61966-2-1: linear segment up to 0.0031308 (slope 12.92), encode(0.5) ≈ 0.7354.
+    /// IEC 61966-2-1: linear segment up to 0.0031308 (slope 12.92), srgb_encode(0.5) ≈ 0.7354.
     #[test]
     fn srgb_transfer_curve_matches_iec_61966_2_1() {
-        assert!((encode(0.0031308) - 12.92 * 0.0031308).abs() < 1e-12);
-        assert!((encode(0.0031308) - 0.040449936).abs() < 1e-8);
-        assert!((encode(0.5) - 0.735356983).abs() < 1e-8);
-        assert_eq!(encode(0.0), 0.0);
-        assert!((encode(1.0) - 1.0).abs() < 1e-15);
+        assert!((srgb_encode(0.0031308) - 12.92 * 0.0031308).abs() < 1e-12);
+        assert!((srgb_encode(0.0031308) - 0.040449936).abs() < 1e-8);
+        assert!((srgb_encode(0.5) - 0.735356983).abs() < 1e-8);
+        assert_eq!(srgb_encode(0.0), 0.0);
+        assert!((srgb_encode(1.0) - 1.0).abs() < 1e-15);
     }
 
     /// IEC 61966-2-1 primaries: XYZ of red, green, blue = columns of
@@ -303,7 +309,7 @@ mod tests {
         for (got, want) in [m[0], m[3], m[6]].into_iter().zip([0.4124, 0.2126, 0.0193]) {
             assert!((got - want).abs() < 1e-4, "{got} vs {want}");
         }
-        let red = Display::new(D65_SRGB_WHITE, RgbSpace::Srgb).linear([41.24, 21.26, 1.93]);
+        let red = RgbDisplay::new(D65_SRGB_WHITE, RgbSpace::Srgb).linear([41.24, 21.26, 1.93]);
         assert!((red[0] - 1.0).abs() < 2e-4 && red[1].abs() < 2e-4 && red[2].abs() < 2e-4);
     }
 

@@ -1,7 +1,7 @@
 //! Scene files: the validated description of a coating problem, built from
 //! JSON in one place so that everything downstream can trust it.
 
-mod json;
+pub(crate) mod json;
 mod media;
 mod stack;
 

@@ -1,0 +1,560 @@
+//! Preview settings: defaults, the scene's `preview` object, and the
+//! `key=value` light notation shared by the scene file and the command line.
+
+use std::str::FromStr;
+
+use serde_json::Value;
+
+use super::camera::View;
+use crate::colorimetry::srgb_decode;
+use crate::error::{Error, Result};
+use crate::scene::json::{Obj, show};
+
+/// The object wearing the coating.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Shape {
+    /// A sphere.
+    Sphere,
+    /// A cylinder with flat caps.
+    Cylinder,
+    /// A torus.
+    Torus,
+    /// A bottle (surface of revolution).
+    Bottle,
+    /// A wavy sheet (height field).
+    Sheet,
+    /// A Wavefront OBJ file (path as written; the caller reads it).
+    Mesh(String),
+}
+
+impl FromStr for Shape {
+    type Err = Error;
+    fn from_str(s: &str) -> Result<Self> {
+        Ok(match s {
+            "sphere" => Shape::Sphere,
+            "cylinder" => Shape::Cylinder,
+            "torus" => Shape::Torus,
+            "bottle" => Shape::Bottle,
+            "sheet" => Shape::Sheet,
+            _ => match s.strip_prefix("mesh:") {
+                Some(path) if !path.is_empty() => Shape::Mesh(path.to_string()),
+                _ => {
+                    return Err(Error::invalid(
+                        "shape",
+                        s,
+                        "expected sphere, cylinder, torus, bottle, sheet or mesh:PATH.obj",
+                    ));
+                }
+            },
+        })
+    }
+}
+
+/// What lies under the film.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Base {
+    /// Absorbs all the light the film transmits.
+    Black,
+    /// A diffuse colour (linear sRGB reflectances 0–1); white is (1, 1, 1).
+    Diffuse([f64; 3]),
+}
+
+impl FromStr for Base {
+    type Err = Error;
+    fn from_str(s: &str) -> Result<Self> {
+        let bad = || Error::invalid("base", s, "expected black, white or #RRGGBB");
+        match s {
+            "black" => Ok(Base::Black),
+            "white" => Ok(Base::Diffuse([1.0; 3])),
+            _ => {
+                let hex = s.strip_prefix('#').ok_or_else(bad)?;
+                if hex.len() != 6 || !hex.chars().all(|c| c.is_ascii_hexdigit()) {
+                    return Err(bad());
+                }
+                let channel =
+                    |i: usize| u8::from_str_radix(&hex[i..i + 2], 16).map(|v| v as f64 / 255.0);
+                let rgb = [channel(0), channel(2), channel(4)];
+                Ok(Base::Diffuse(
+                    rgb.map(|c| srgb_decode(c.expect("hex digits checked"))),
+                ))
+            }
+        }
+    }
+}
+
+/// Where a light comes from.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Source {
+    /// Uniform radiance from every direction.
+    Sky,
+    /// A distant disc of angular diameter `size_deg` (0: a directional light),
+    /// `azimuth_deg` to the right of the line of sight and `elevation_deg` above it,
+    /// seen from the object; fixed to the camera.
+    Disc {
+        /// Degrees to the right of the direction toward the eye.
+        azimuth_deg: f64,
+        /// Degrees above it.
+        elevation_deg: f64,
+        /// Angular diameter in degrees.
+        size_deg: f64,
+    },
+}
+
+/// A light with its strength and spectrum.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Light {
+    /// Direction and extent.
+    pub source: Source,
+    /// Strength: a white diffuser facing a disc light of intensity 1, or in a
+    /// sky of intensity 1, renders at linear value 1 (Y = 100).
+    pub intensity: f64,
+    /// Built-in illuminant name; `None`: the scene's illuminant.
+    pub illuminant: Option<String>,
+}
+
+const LIGHT_KEYS: &[&str] = &[
+    "type",
+    "azimuth_deg",
+    "elevation_deg",
+    "size_deg",
+    "intensity",
+    "illuminant",
+];
+
+impl Light {
+    /// A light from `(key, value)` pairs with keys from [`LIGHT_KEYS`]:
+    /// `type` (sky, area or directional), `azimuth_deg`, `elevation_deg`,
+    /// `size_deg` (area only), `intensity`, `illuminant`. `path` names errors.
+    fn from_pairs(pairs: &[(String, Value)], path: &str) -> Result<Light> {
+        let key = |k: &str| format!("{path}.{k}");
+        let get = |k: &str| pairs.iter().find(|(n, _)| n == k).map(|(_, v)| v);
+        if let Some((k, v)) = pairs
+            .iter()
+            .find(|(k, _)| !LIGHT_KEYS.contains(&k.as_str()))
+        {
+            return Err(Error::invalid(
+                key(k),
+                show(v),
+                format!("unknown key (expected one of: {})", LIGHT_KEYS.join(", ")),
+            ));
+        }
+        let number = |k: &str, default: f64| -> Result<f64> {
+            match get(k) {
+                None => Ok(default),
+                Some(v) => match v.as_f64().or_else(|| v.as_str()?.parse().ok()) {
+                    Some(x) if x.is_finite() => Ok(x),
+                    _ => Err(Error::invalid(key(k), show(v), "expected a finite number")),
+                },
+            }
+        };
+        let text = |v: &Value| v.as_str().map(str::to_string).unwrap_or_else(|| show(v));
+        let kind = get("type")
+            .map(text)
+            .ok_or_else(|| Error::invalid(key("type"), "(missing)", "sky, area or directional"))?;
+        let intensity = number("intensity", 1.0)?;
+        if !(0.0..=1e6).contains(&intensity) {
+            return Err(Error::invalid(
+                key("intensity"),
+                intensity,
+                "must lie from 0 to 1e6",
+            ));
+        }
+        let only =
+            |allowed: &[&str]| match pairs.iter().find(|(k, _)| !allowed.contains(&k.as_str())) {
+                Some((k, v)) => Err(Error::invalid(
+                    key(k),
+                    show(v),
+                    format!("not a key of a {kind} light"),
+                )),
+                None => Ok(()),
+            };
+        let source = match kind.as_str() {
+            "sky" => {
+                only(&["type", "intensity", "illuminant"])?;
+                Source::Sky
+            }
+            "area" | "directional" => {
+                let size_deg = if kind == "area" {
+                    number("size_deg", 20.0)?
+                } else {
+                    only(&[
+                        "type",
+                        "azimuth_deg",
+                        "elevation_deg",
+                        "intensity",
+                        "illuminant",
+                    ])?;
+                    0.0
+                };
+                if !(0.0..=120.0).contains(&size_deg) {
+                    return Err(Error::invalid(
+                        key("size_deg"),
+                        size_deg,
+                        "must lie from 0° to 120°",
+                    ));
+                }
+                Source::Disc {
+                    azimuth_deg: number("azimuth_deg", 0.0)?,
+                    elevation_deg: number("elevation_deg", 0.0)?,
+                    size_deg,
+                }
+            }
+            _ => {
+                return Err(Error::invalid(
+                    key("type"),
+                    &kind,
+                    "expected sky, area or directional",
+                ));
+            }
+        };
+        Ok(Light {
+            source,
+            intensity,
+            illuminant: get("illuminant").map(text),
+        })
+    }
+}
+
+impl FromStr for Light {
+    type Err = Error;
+
+    /// `TYPE[,key=value…]`, e.g. `area,azimuth_deg=-40,elevation_deg=30,size_deg=20,intensity=2,illuminant=A`.
+    fn from_str(s: &str) -> Result<Light> {
+        let mut parts = s.split(',').map(str::trim);
+        let kind = parts.next().unwrap_or_default();
+        let mut pairs = vec![("type".to_string(), Value::String(kind.to_string()))];
+        for part in parts {
+            let (k, v) = part
+                .split_once('=')
+                .ok_or_else(|| Error::invalid("light", s, format!("`{part}` is not key=value")))?;
+            pairs.push((k.trim().to_string(), Value::String(v.trim().to_string())));
+        }
+        Light::from_pairs(&pairs, "light")
+    }
+}
+
+/// Everything a preview render needs besides the scene and the mesh.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Settings {
+    /// The object.
+    pub shape: Shape,
+    /// Image width in pixels.
+    pub width: u32,
+    /// Image height in pixels.
+    pub height: u32,
+    /// Supersampling factor per axis (1–8).
+    pub ssaa: u32,
+    /// Linear scale applied before the tone curve.
+    pub exposure: f64,
+    /// Whether the highlight-compressing tone curve is applied.
+    pub tone: bool,
+    /// Width of the microfacet (or flake) orientation distribution in degrees:
+    /// arctan of the rms slope; 0 is a mirror-smooth film.
+    pub roughness_deg: f64,
+    /// What lies under the film.
+    pub base: Base,
+    /// The lights.
+    pub lights: Vec<Light>,
+    /// The camera.
+    pub view: View,
+    /// Frames of a full turn (0: one still).
+    pub turntable: u32,
+}
+
+/// Keys of the scene's `preview` object.
+pub const PREVIEW_KEYS: &[&str] = &[
+    "shape",
+    "size",
+    "ssaa",
+    "exposure",
+    "tone",
+    "roughness_deg",
+    "base",
+    "lights",
+    "orbit_deg",
+    "elevation_deg",
+    "fov_deg",
+    "distance",
+    "turntable",
+];
+
+impl Default for Settings {
+    /// An 800 × 800 sphere on a black base, 2 × 2 supersampled, lit by a dim
+    /// sky and a large key light up and to the left.
+    fn default() -> Self {
+        Settings {
+            shape: Shape::Sphere,
+            width: 800,
+            height: 800,
+            ssaa: 2,
+            exposure: 1.0,
+            tone: true,
+            roughness_deg: 0.0,
+            base: Base::Black,
+            lights: vec![
+                Light {
+                    source: Source::Sky,
+                    intensity: 0.6,
+                    illuminant: None,
+                },
+                Light {
+                    source: Source::Disc {
+                        azimuth_deg: -35.0,
+                        elevation_deg: 30.0,
+                        size_deg: 24.0,
+                    },
+                    intensity: 1.2,
+                    illuminant: None,
+                },
+            ],
+            view: View {
+                orbit_deg: 0.0,
+                elevation_deg: 20.0,
+                fov_deg: 30.0,
+                distance: None,
+            },
+            turntable: 0,
+        }
+    }
+}
+
+/// `WxH` to a size (each 1–16384).
+pub fn parse_size(s: &str) -> Result<(u32, u32)> {
+    let bad = || {
+        Error::invalid(
+            "size",
+            s,
+            "expected WxH with each side from 1 to 16384, e.g. 800x600",
+        )
+    };
+    let (w, h) = s.split_once(['x', 'X']).ok_or_else(bad)?;
+    let side = |t: &str| match t.trim().parse::<u32>() {
+        Ok(v @ 1..=16384) => Ok(v),
+        _ => Err(bad()),
+    };
+    Ok((side(w)?, side(h)?))
+}
+
+impl Settings {
+    /// The defaults overridden by the scene document's `preview` object (if any).
+    pub fn from_document(document: &Value) -> Result<Settings> {
+        let mut s = Settings::default();
+        let Some(v) = document.get("preview") else {
+            return Ok(s);
+        };
+        let o = Obj::new(v, "preview")?;
+        o.only(PREVIEW_KEYS)?;
+        let within = |e: Error| e.within("preview");
+        if let Some(t) = o.str("shape")? {
+            s.shape = t.parse().map_err(within)?;
+        }
+        if let Some(t) = o.str("size")? {
+            (s.width, s.height) = parse_size(t).map_err(within)?;
+        }
+        if let Some(n) = o.u64("ssaa")? {
+            s.ssaa = n.min(u32::MAX as u64) as u32;
+        }
+        if let Some(x) = o.f64("exposure")? {
+            s.exposure = x;
+        }
+        match o.get("tone") {
+            None => {}
+            Some(Value::Bool(b)) => s.tone = *b,
+            Some(Value::String(t)) => s.tone = parse_tone(t).map_err(within)?,
+            Some(other) => {
+                return Err(Error::invalid(
+                    o.key("tone"),
+                    show(other),
+                    "expected on or off",
+                ));
+            }
+        }
+        if let Some(x) = o.f64("roughness_deg")? {
+            s.roughness_deg = x;
+        }
+        if let Some(t) = o.str("base")? {
+            s.base = t.parse().map_err(within)?;
+        }
+        if let Some(v) = o.get("lights") {
+            let list = v.as_array().ok_or_else(|| {
+                Error::invalid(o.key("lights"), show(v), "expected a list of lights")
+            })?;
+            s.lights = list
+                .iter()
+                .enumerate()
+                .map(|(i, l)| {
+                    let path = format!("preview.lights[{i}]");
+                    let obj = Obj::new(l, path.clone())?;
+                    let pairs: Vec<(String, Value)> = obj
+                        .map
+                        .iter()
+                        .map(|(k, v)| (k.clone(), v.clone()))
+                        .collect();
+                    Light::from_pairs(&pairs, &path)
+                })
+                .collect::<Result<_>>()?;
+        }
+        if let Some(x) = o.f64("orbit_deg")? {
+            s.view.orbit_deg = x;
+        }
+        if let Some(x) = o.f64("elevation_deg")? {
+            s.view.elevation_deg = x;
+        }
+        if let Some(x) = o.f64("fov_deg")? {
+            s.view.fov_deg = x;
+        }
+        if let Some(x) = o.f64("distance")? {
+            s.view.distance = Some(x);
+        }
+        if let Some(n) = o.u64("turntable")? {
+            s.turntable = n.min(u32::MAX as u64) as u32;
+        }
+        Ok(s)
+    }
+
+    /// Checks every range (called before rendering, after flags override).
+    pub fn check(&self) -> Result<()> {
+        if !(1..=8).contains(&self.ssaa) {
+            return Err(Error::invalid(
+                "ssaa",
+                self.ssaa,
+                "must be a whole number from 1 to 8",
+            ));
+        }
+        if (self.width as u64 * self.height as u64) * (self.ssaa as u64).pow(2) > 1 << 28 {
+            return Err(Error::invalid(
+                "size",
+                format!("{}x{} with ssaa {}", self.width, self.height, self.ssaa),
+                "more than 2^28 samples; lower the size or ssaa",
+            ));
+        }
+        if !(self.exposure > 0.0 && self.exposure <= 1e6) {
+            return Err(Error::invalid(
+                "exposure",
+                self.exposure,
+                "must be above 0 and at most 1e6",
+            ));
+        }
+        if !(0.0..=60.0).contains(&self.roughness_deg) {
+            return Err(Error::invalid(
+                "roughness_deg",
+                self.roughness_deg,
+                "must lie from 0° to 60°",
+            ));
+        }
+        if self.lights.is_empty() {
+            return Err(Error::invalid(
+                "lights",
+                "[]",
+                "at least one light is needed",
+            ));
+        }
+        if self.turntable > 3600 {
+            return Err(Error::invalid(
+                "turntable",
+                self.turntable,
+                "at most 3600 frames",
+            ));
+        }
+        self.view.check()
+    }
+}
+
+/// `on`/`off` (also true/false, yes/no).
+pub fn parse_tone(s: &str) -> Result<bool> {
+    match s {
+        "on" | "true" | "yes" => Ok(true),
+        "off" | "false" | "no" => Ok(false),
+        _ => Err(Error::invalid("tone", s, "expected on or off")),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use serde_json::json;
+
+    #[test]
+    fn preview_object_overrides_defaults() {
+        let doc = json!({"preview": {
+            "shape": "torus", "size": "320x200", "ssaa": 3, "exposure": 1.5, "tone": "off",
+            "roughness_deg": 8, "base": "#808080", "orbit_deg": 15, "elevation_deg": 30,
+            "fov_deg": 40, "distance": 5, "turntable": 12,
+            "lights": [{"type": "sky", "intensity": 0.5},
+                       {"type": "area", "azimuth_deg": 30, "size_deg": 10, "illuminant": "A"}]
+        }});
+        let s = Settings::from_document(&doc).unwrap();
+        assert_eq!(s.shape, Shape::Torus);
+        assert_eq!((s.width, s.height, s.ssaa, s.turntable), (320, 200, 3, 12));
+        assert!(!s.tone && s.exposure == 1.5 && s.roughness_deg == 8.0);
+        let Base::Diffuse(grey) = s.base else {
+            panic!()
+        };
+        assert!((grey[0] - 0.2158605).abs() < 1e-6, "{grey:?}"); // IEC 61966-2-1 decode of 128/255
+        assert_eq!(s.lights.len(), 2);
+        assert_eq!(s.lights[1].illuminant.as_deref(), Some("A"));
+        assert_eq!(s.view.distance, Some(5.0));
+        s.check().unwrap();
+    }
+
+    #[test]
+    fn unknown_or_bad_preview_keys_are_named() {
+        for (doc, needle) in [
+            (json!({"preview": {"shap": "sphere"}}), "preview.shap"),
+            (json!({"preview": {"shape": "cube"}}), "preview.shape"),
+            (json!({"preview": {"size": "100"}}), "preview.size"),
+            (
+                json!({"preview": {"lights": [{"type": "area", "colour": 1}]}}),
+                "preview.lights[0].colour",
+            ),
+            (
+                json!({"preview": {"lights": [{"type": "sky", "size_deg": 3}]}}),
+                "preview.lights[0].size_deg",
+            ),
+            (json!({"preview": {"base": "grey"}}), "preview.base"),
+            (json!({"preview": {"tone": 3}}), "preview.tone"),
+        ] {
+            let err = Settings::from_document(&doc).unwrap_err().to_string();
+            assert!(err.contains(needle), "{err}");
+        }
+    }
+
+    #[test]
+    fn light_notation() {
+        let l: Light = "area,azimuth_deg=-40,elevation_deg=30,size_deg=10,intensity=2"
+            .parse()
+            .unwrap();
+        assert_eq!(
+            l.source,
+            Source::Disc {
+                azimuth_deg: -40.0,
+                elevation_deg: 30.0,
+                size_deg: 10.0
+            }
+        );
+        assert_eq!(l.intensity, 2.0);
+        assert!("sky,intensity=x".parse::<Light>().is_err());
+        assert!("lamp".parse::<Light>().is_err());
+        assert!("directional,size_deg=3".parse::<Light>().is_err());
+        assert_eq!(parse_size("1024x768").unwrap(), (1024, 768));
+        assert!(parse_size("0x5").is_err());
+    }
+
+    #[test]
+    fn ranges_are_checked() {
+        let mut s = Settings::default();
+        s.check().unwrap();
+        s.ssaa = 9;
+        assert!(s.check().is_err());
+        s = Settings {
+            roughness_deg: 70.0,
+            ..Settings::default()
+        };
+        assert!(s.check().is_err());
+        s = Settings {
+            exposure: 0.0,
+            ..Settings::default()
+        };
+        assert!(s.check().is_err());
+    }
+}
