@@ -12,5 +12,6 @@ pub mod optics;
 pub mod pigment;
 pub mod render;
 pub mod scene;
+pub mod tabulated;
 
 pub use error::{Error, Result};
