@@ -1,8 +1,10 @@
 //! The command-line front end: argument definitions and glue.
 
+pub mod chart;
 pub mod color;
 pub mod materials;
 pub mod output;
+pub mod report;
 pub mod spectrum;
 
 use std::path::{Path, PathBuf};
