@@ -3,11 +3,8 @@
 
 use plotters::coord::Shift;
 use plotters::prelude::*;
-use plotters::style::text_anchor::{HPos, Pos, VPos};
 
-use super::style::{
-    self, Caption, FRAME, INK, SERIES, Series, Style, frame, legend, mesh, sparse_labels, swatch,
-};
+use super::style::{self, Caption, FRAME, SERIES, Series, Style, frame, legend, mesh, swatch};
 use super::{Chart, DrawResult};
 use crate::angle_colour::Viewing;
 use crate::error::Result;
@@ -118,42 +115,8 @@ impl Chart for AbTravel {
                         + Circle::new((0, 0), r, line.stroke_width(s.line(1.5)))
                 },
             ))?;
-            let pixels: Vec<(i32, i32)> = pts.iter().map(|p| chart.backend_coord(p)).collect();
-            let base = chart.plotting_area().get_base_pixel();
-            let area = chart.plotting_area().strip_coord_spec();
-            for i in sparse_labels(&pixels, s.px(46.0) as f64) {
-                let (a, b) = (
-                    pixels[i.saturating_sub(1)],
-                    pixels[(i + 1).min(pixels.len() - 1)],
-                );
-                let (dx, dy) = ((b.0 - a.0) as f64, (b.1 - a.1) as f64);
-                let n = dx.hypot(dy).max(1e-9);
-                let (nx, ny) = (dy / n, -dx / n);
-                let d = s.px(14.0) as f64;
-                let hp = if nx > 0.3 {
-                    HPos::Left
-                } else if nx < -0.3 {
-                    HPos::Right
-                } else {
-                    HPos::Center
-                };
-                let vp = if ny > 0.3 {
-                    VPos::Top
-                } else if ny < -0.3 {
-                    VPos::Bottom
-                } else {
-                    VPos::Center
-                };
-                area.draw(&Text::new(
-                    format!("{}°", style::tick(&series.angles[i])),
-                    (
-                        pixels[i].0 - base.0 + (nx * d) as i32,
-                        pixels[i].1 - base.1 + (ny * d) as i32,
-                    ),
-                    s.text(13.0, INK).pos(Pos::new(hp, vp)),
-                ))?;
-            }
         }
+        style::angle_labels(&chart, &s, &self.series, &|c| (c.lab[1], c.lab[2]))?;
         if self.series.len() > 1 {
             legend(&chart.plotting_area().strip_coord_spec(), &s, &self.series)?;
         }
@@ -178,7 +141,7 @@ impl AbTravel {
         let mut chart = ChartBuilder::on(area)
             .margin_top(s.px(8.0))
             .margin_left(s.px(20.0))
-            .margin_right(s.px(10.0))
+            .margin_right(s.px(26.0))
             .x_label_area_size(s.px(62.0))
             .y_label_area_size(s.px(64.0))
             .build_cartesian_2d(lo..hi, 0.0..100.0)?;

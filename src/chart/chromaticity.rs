@@ -9,8 +9,7 @@ use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::canvas::{Canvas, Svg};
 use super::style::{
-    self, Caption, INK, MUTED, SERIES, Series, Style, clip, frame, legend, mesh, sparse_labels,
-    swatch,
+    self, Caption, INK, MUTED, SERIES, Series, Style, clip, frame, legend, mesh, swatch,
 };
 use super::{Chart, DrawResult};
 use crate::angle_colour::Viewing;
@@ -82,8 +81,9 @@ impl Chromaticity {
         let s = Style::new(size);
         let body = frame(&root, &self.caption, &s).expect("SVG drawing cannot fail");
         let (full, _) = self.panels(&body, &s);
+        let (xr, yr) = whole(&full, &s);
         let chart = self
-            .build(&full, &s, (0.0, 0.8), (0.0, 0.9))
+            .build(&full, &s, xr, yr)
             .expect("SVG drawing cannot fail");
         chart.backend_coord(&xy)
     }
@@ -97,7 +97,7 @@ impl Chromaticity {
         let (w, h) = body.dim_in_pixel();
         let plot_h = h as i32 - s.px(62.0) - s.px(8.0);
         let left = (plot_h as f64 * 0.8 / 0.9) as i32 + s.px(74.0) + s.px(30.0);
-        body.split_horizontally(left.min(w as i32 / 2))
+        body.split_horizontally(left.min(w as i32 * 52 / 100))
     }
 
     fn build<'a, DB: DrawingBackend>(
@@ -174,10 +174,11 @@ impl Chromaticity {
                     self.locus[i.saturating_sub(3)],
                     self.locus[(i + 3).min(self.locus.len() - 1)],
                 );
-                // Outward normal of the locus (it runs anticlockwise from violet).
+                // Outward normal of the locus, which runs clockwise from
+                // violet in xy (up the blue side, down the red side).
                 let (dx, dy) = (b.1 - a.1, b.2 - a.2);
                 let n = dx.hypot(dy).max(1e-12);
-                let (nx, ny) = (dy / n, -dx / n);
+                let (nx, ny) = (-dy / n, dx / n);
                 let p = (self.locus[i].1, self.locus[i].2);
                 let (px, py) = chart.backend_coord(&p);
                 let out = s.px(8.0) as f64;
@@ -220,11 +221,13 @@ impl Chromaticity {
                     + PathElement::new(vec![(-m, 0), (m, 0)], INK.stroke_width(s.line(2.0)))
                     + PathElement::new(vec![(0, -m), (0, m)], INK.stroke_width(s.line(2.0))),
             ))?;
-            chart.draw_series(std::iter::once(Text::new(
+            let (px, py) = chart.backend_coord(&(wx, wy));
+            let base = chart.plotting_area().get_base_pixel();
+            chart.plotting_area().strip_coord_spec().draw(&Text::new(
                 format!("{} white", self.light),
-                (wx, wy),
+                (px - base.0 + m + s.px(3.0), py - base.1 + m),
                 s.text(13.0, INK).pos(Pos::new(HPos::Left, VPos::Top)),
-            )))?;
+            ))?;
         }
         Ok(())
     }
@@ -246,43 +249,9 @@ impl Chromaticity {
                     + Circle::new((0, 0), r, swatch(c).filled())
                     + Circle::new((0, 0), r, line.stroke_width(s.line(1.5)))
             }))?;
-            if labels {
-                let pixels: Vec<(i32, i32)> = pts.iter().map(|p| chart.backend_coord(p)).collect();
-                for i in sparse_labels(&pixels, s.px(46.0) as f64) {
-                    // Offset to the left of the direction of travel.
-                    let (a, b) = (
-                        pixels[i.saturating_sub(1)],
-                        pixels[(i + 1).min(pixels.len() - 1)],
-                    );
-                    let (dx, dy) = ((b.0 - a.0) as f64, (b.1 - a.1) as f64);
-                    let n = dx.hypot(dy).max(1e-9);
-                    let (nx, ny) = (dy / n, -dx / n);
-                    let d = s.px(14.0) as f64;
-                    let h = if nx > 0.3 {
-                        HPos::Left
-                    } else if nx < -0.3 {
-                        HPos::Right
-                    } else {
-                        HPos::Center
-                    };
-                    let v = if ny > 0.3 {
-                        VPos::Top
-                    } else if ny < -0.3 {
-                        VPos::Bottom
-                    } else {
-                        VPos::Center
-                    };
-                    let base = chart.plotting_area().get_base_pixel();
-                    chart.plotting_area().strip_coord_spec().draw(&Text::new(
-                        format!("{}°", style::tick(&series.angles[i])),
-                        (
-                            pixels[i].0 - base.0 + (nx * d) as i32,
-                            pixels[i].1 - base.1 + (ny * d) as i32,
-                        ),
-                        s.text(13.0, INK).pos(Pos::new(h, v)),
-                    ))?;
-                }
-            }
+        }
+        if labels {
+            style::angle_labels(chart, s, &self.series, &|c| (c.xy[0], c.xy[1]))?;
         }
         Ok(())
     }
@@ -313,6 +282,67 @@ impl Chromaticity {
     }
 }
 
+impl Chromaticity {
+    /// What the lines and marks of the whole diagram are, at its top right.
+    fn key<DB: DrawingBackend>(&self, area: &DrawingArea<DB, Shift>, s: &Style) -> DrawResult<DB> {
+        let (w, _) = area.dim_in_pixel();
+        let line = s.px(22.0);
+        let x = w as i32 - s.px(190.0);
+        let mut y = s.px(14.0);
+        let label = Pos::new(HPos::Left, VPos::Center);
+        let entries: [(&str, RGBColor); 3] = [
+            ("spectrum locus (nm)", INK),
+            ("sRGB gamut", SERIES[3]),
+            ("angle trajectory", SERIES[0]),
+        ];
+        for (text, colour) in entries {
+            area.draw(&PathElement::new(
+                vec![(x, y), (x + s.px(26.0), y)],
+                colour.stroke_width(s.line(2.0)),
+            ))?;
+            area.draw(&Text::new(
+                text,
+                (x + s.px(34.0), y),
+                s.text(13.0, INK).pos(label),
+            ))?;
+            y += line;
+        }
+        let m = s.px(6.0);
+        let cx = x + s.px(13.0);
+        area.draw(&PathElement::new(
+            vec![(cx - m, y), (cx + m, y)],
+            INK.stroke_width(s.line(2.0)),
+        ))?;
+        area.draw(&PathElement::new(
+            vec![(cx, y - m), (cx, y + m)],
+            INK.stroke_width(s.line(2.0)),
+        ))?;
+        area.draw(&Text::new(
+            format!("white point ({})", self.light),
+            (x + s.px(34.0), y),
+            s.text(13.0, INK).pos(label),
+        ))?;
+        Ok(())
+    }
+}
+
+/// Pixel size of the plot [`Chromaticity::build`] makes on `area`.
+fn plot_size<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &Style) -> (f64, f64) {
+    let (w, h) = area.dim_in_pixel();
+    (
+        (w as i32 - s.px(74.0) - s.px(30.0)) as f64,
+        (h as i32 - s.px(62.0) - s.px(8.0)) as f64,
+    )
+}
+
+/// The whole diagram (x 0–0.8, y 0–0.9) with equal scales on `area`.
+fn whole<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &Style) -> ((f64, f64), (f64, f64)) {
+    let (w, h) = plot_size(area, s);
+    let (xr, yr) = style::equal_scales((0.0, 0.8), (0.0, 0.9), w, h);
+    // Keep the origin at the corner: put any extra room on the far side.
+    ((0.0, xr.1 - xr.0), (0.0, yr.1 - yr.0))
+}
+
 impl Chart for Chromaticity {
     fn label(&self) -> String {
         format!("{}: {}", self.caption.title, self.caption.subject)
@@ -322,12 +352,12 @@ impl Chart for Chromaticity {
         let s = Style::new(root.dim_in_pixel());
         let body = frame(root, &self.caption, &s)?;
         let (full, rest) = self.panels(&body, &s);
-        let mut chart = self.build(&full, &s, (0.0, 0.8), (0.0, 0.9))?;
+        let (xr, yr) = whole(&full, &s);
+        let mut chart = self.build(&full, &s, xr, yr)?;
         self.context(&mut chart, &s, true)?;
         self.trajectories(&mut chart, &s, false)?;
-        let (rw, rh) = rest.dim_in_pixel();
-        let pw = rw as f64 - (s.px(74.0) + s.px(30.0)) as f64;
-        let ph = rh as f64 - (s.px(62.0) + s.px(8.0)) as f64;
+        self.key(&chart.plotting_area().strip_coord_spec(), &s)?;
+        let (pw, ph) = plot_size(&rest, &s);
         let (zx, zy) = self.zoom(pw, ph);
         chart.draw_series(std::iter::once(Rectangle::new(
             [

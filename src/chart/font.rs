@@ -64,7 +64,7 @@ pub fn cap_height(size: f64) -> f64 {
     let font = face(FontStyle::Normal);
     let h = font
         .outline(font.glyph_id('H'))
-        .map_or(0.7, |o| o.bounds.max.y as f64);
+        .map_or(0.0, |o| o.bounds.min.y as f64); // bounds.min is the top-left, y up
     h * font.as_scaled(size as f32).v_scale_factor() as f64
 }
 

@@ -146,7 +146,7 @@ impl AngleStrip {
     > {
         let body = frame(root, &self.caption, s)?;
         let (_, h) = body.dim_in_pixel();
-        let (top, bottom) = body.split_vertically(h as i32 * 42 / 100);
+        let (top, bottom) = body.split_vertically(h as i32 * 45 / 100);
         let (lo, hi) = self.range();
         let mut chart = ChartBuilder::on(&top)
             .margin_top(s.px(26.0))
@@ -245,11 +245,16 @@ impl Chart for AngleStrip {
         ))?;
         // Markers above the strip at the swatch angles.
         let m = s.px(7.0);
+        let base = root.get_base_pixel();
         for (a, _) in &self.ticks {
-            let (px, _) = chart.backend_coord(&(*a, 1.0));
-            let x = px - x0;
-            area.draw(&Polygon::new(
-                vec![(x - m, -2 * m), (x + m, -2 * m), (x, -s.px(2.0))],
+            let (px, py) = chart.backend_coord(&(*a, 1.0));
+            let (x, y) = (px - base.0, py - base.1);
+            root.draw(&Polygon::new(
+                vec![
+                    (x - m, y - 2 * m - s.px(3.0)),
+                    (x + m, y - 2 * m - s.px(3.0)),
+                    (x, y - s.px(3.0)),
+                ],
                 INK.filled(),
             ))?;
         }
@@ -267,9 +272,9 @@ impl AngleStrip {
         let base = area.get_base_pixel();
         let n = self.ticks.len() as i32;
         let cell = width / n;
-        let side = (cell * 6 / 10).min(s.px(88.0));
-        let top = s.px(18.0);
-        let line = s.px(19.0);
+        let side = (cell * 7 / 10).min(s.px(120.0));
+        let top = s.px(24.0);
+        let line = s.px(22.0);
         let centre = Pos::new(HPos::Center, VPos::Top);
         for (k, (a, c)) in self.ticks.iter().enumerate() {
             let cx = x0 - base.0 + cell * k as i32 + cell / 2;
@@ -278,7 +283,7 @@ impl AngleStrip {
                 (cx, top),
                 s.bold(15.0, INK).pos(centre),
             ))?;
-            let sy = top + s.px(26.0);
+            let sy = top + s.px(28.0);
             area.draw(&Rectangle::new(
                 [(cx - side / 2, sy), (cx + side / 2, sy + side)],
                 swatch(c).filled(),
@@ -293,12 +298,12 @@ impl AngleStrip {
                 y += line;
                 Ok(())
             };
-            put(c.hex.clone(), s.text(13.0, INK))?;
-            put(format!("L* {}", num(c.lab[0], 1)), s.text(13.0, MUTED))?;
-            put(format!("a* {}", num(c.lab[1], 1)), s.text(13.0, MUTED))?;
-            put(format!("b* {}", num(c.lab[2], 1)), s.text(13.0, MUTED))?;
+            put(c.hex.clone(), s.text(15.0, INK))?;
+            put(format!("L* {}", num(c.lab[0], 1)), s.text(14.0, MUTED))?;
+            put(format!("a* {}", num(c.lab[1], 1)), s.text(14.0, MUTED))?;
+            put(format!("b* {}", num(c.lab[2], 1)), s.text(14.0, MUTED))?;
             if !c.in_gamut {
-                put("outside sRGB".into(), s.text(13.0, SERIES[1]))?;
+                put("outside sRGB".into(), s.text(14.0, SERIES[1]))?;
             }
         }
         Ok(())

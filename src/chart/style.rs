@@ -387,3 +387,157 @@ pub fn legend<DB: DrawingBackend>(
     }
     Ok(())
 }
+
+/// The smallest ranges holding `x` and `y` (centred) that give equal data
+/// units per pixel on a plot of `w` × `h` pixels.
+pub fn equal_scales(x: (f64, f64), y: (f64, f64), w: f64, h: f64) -> ((f64, f64), (f64, f64)) {
+    let per_px = ((x.1 - x.0) / w).max((y.1 - y.0) / h);
+    let (cx, cy) = ((x.0 + x.1) / 2.0, (y.0 + y.1) / 2.0);
+    let (hx, hy) = (per_px * w / 2.0, per_px * h / 2.0);
+    ((cx - hx, cx + hx), (cy - hy, cy + hy))
+}
+
+/// Places text labels beside points of polylines so that they avoid the
+/// points, the lines and each other as far as possible: for each wanted
+/// label, the first of eight directions (left of the direction of travel
+/// first) with the fewest collisions. `lines` are polylines in pixels;
+/// `wanted` are (line, point, text, text width, text height). Returns the
+/// anchor point and text anchor of each label.
+pub fn place_labels(
+    lines: &[Vec<(i32, i32)>],
+    wanted: &[(usize, usize, f64, f64)],
+    radius: f64,
+    gap: f64,
+) -> Vec<((i32, i32), Pos)> {
+    let mut boxes: Vec<(f64, f64, f64, f64)> = Vec::new();
+    let mut out = Vec::new();
+    for &(l, i, w, h) in wanted {
+        let line = &lines[l];
+        let p = line[i];
+        let (a, b) = (line[i.saturating_sub(1)], line[(i + 1).min(line.len() - 1)]);
+        let (dx, dy) = ((b.0 - a.0) as f64, (b.1 - a.1) as f64);
+        let n = dx.hypot(dy);
+        let (nx, ny) = if n > 0.0 {
+            (dy / n, -dx / n)
+        } else {
+            (1.0, 0.0)
+        };
+        let turn = |c: f64, s: f64| (nx * c - ny * s, nx * s + ny * c);
+        let r2 = std::f64::consts::FRAC_1_SQRT_2;
+        let dirs = [
+            (nx, ny),
+            (-nx, -ny),
+            turn(r2, r2),
+            turn(r2, -r2),
+            turn(-r2, r2),
+            turn(-r2, -r2),
+            turn(0.0, 1.0),
+            turn(0.0, -1.0),
+        ];
+        let mut best: Option<(usize, (f64, f64, f64, f64), ((i32, i32), Pos))> = None;
+        for (ux, uy) in dirs {
+            let (ax, ay) = (p.0 as f64 + ux * gap, p.1 as f64 + uy * gap);
+            let hp = if ux > 0.35 {
+                HPos::Left
+            } else if ux < -0.35 {
+                HPos::Right
+            } else {
+                HPos::Center
+            };
+            let vp = if uy > 0.35 {
+                VPos::Top
+            } else if uy < -0.35 {
+                VPos::Bottom
+            } else {
+                VPos::Center
+            };
+            let x0 = match hp {
+                HPos::Left => ax,
+                HPos::Right => ax - w,
+                HPos::Center => ax - w / 2.0,
+            };
+            let y0 = match vp {
+                VPos::Top => ay,
+                VPos::Bottom => ay - h,
+                VPos::Center => ay - h / 2.0,
+            };
+            let bx = (x0 - 2.0, y0 - 2.0, x0 + w + 2.0, y0 + h + 2.0);
+            let hits_box =
+                |o: &(f64, f64, f64, f64)| bx.0 < o.2 && o.0 < bx.2 && bx.1 < o.3 && o.1 < bx.3;
+            let mut hits = boxes.iter().filter(|o| hits_box(o)).count() * 3;
+            for ln in lines {
+                for q in ln {
+                    let o = (
+                        q.0 as f64 - radius,
+                        q.1 as f64 - radius,
+                        q.0 as f64 + radius,
+                        q.1 as f64 + radius,
+                    );
+                    hits += usize::from(hits_box(&o)) * 2;
+                }
+                for seg in ln.windows(2) {
+                    let f = |q: (i32, i32)| (q.0 as f64, q.1 as f64);
+                    hits += usize::from(
+                        clip(f(seg[0]), f(seg[1]), (bx.0, bx.2), (bx.1, bx.3)).is_some(),
+                    );
+                }
+            }
+            if best.as_ref().is_none_or(|b| hits < b.0) {
+                best = Some((
+                    hits,
+                    bx,
+                    ((ax.round() as i32, ay.round() as i32), Pos::new(hp, vp)),
+                ));
+            }
+        }
+        let (_, bx, placed) = best.expect("eight candidates");
+        boxes.push(bx);
+        out.push(placed);
+    }
+    out
+}
+
+/// Labels the angles of every series along its trajectory (`at` gives a
+/// colour's data point), sparsely and clear of the lines.
+pub fn angle_labels<DB: DrawingBackend>(
+    chart: &ChartContext<DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>,
+    s: &Style,
+    series: &[Series],
+    at: &dyn Fn(&Colour) -> (f64, f64),
+) -> DrawResult<DB> {
+    let lines: Vec<Vec<(i32, i32)>> = series
+        .iter()
+        .map(|x| {
+            x.colours
+                .iter()
+                .map(|c| chart.backend_coord(&at(c)))
+                .collect()
+        })
+        .collect();
+    let size = s.size(13.0);
+    let mut wanted = Vec::new();
+    let mut texts = Vec::new();
+    for (l, (line, x)) in lines.iter().zip(series).enumerate() {
+        for i in sparse_labels(line, s.px(46.0) as f64) {
+            let t = format!("{}°", tick(&x.angles[i]));
+            wanted.push((
+                l,
+                i,
+                super::font::width(&t, size, FontStyle::Normal),
+                super::font::cap_height(size),
+            ));
+            texts.push(t);
+        }
+    }
+    let placed = place_labels(&lines, &wanted, s.px(9.0) as f64, s.px(13.0) as f64);
+    let base = chart.plotting_area().get_base_pixel();
+    let area = chart.plotting_area().strip_coord_spec();
+    for (t, ((x, y), pos)) in texts.into_iter().zip(placed) {
+        area.draw(&Text::new(
+            t,
+            (x - base.0, y - base.1),
+            s.text(13.0, INK).pos(pos),
+        ))?;
+    }
+    Ok(())
+}
