@@ -239,8 +239,11 @@ impl Chart for AngleStrip {
                 colour.filled(),
             ))?;
         }
-        area.draw(&Rectangle::new(
-            [(0, 0), (w as i32 - 1, h - 1)],
+        // The frame lies just outside, so the end columns show their colour.
+        let (rx, ry) = root.get_base_pixel();
+        let (ax, ay) = (x0 - rx - 1, ys.start - ry - 1);
+        root.draw(&Rectangle::new(
+            [(ax, ay), (ax + w as i32 + 1, ay + h + 1)],
             FRAME.stroke_width(1),
         ))?;
         // Markers above the strip at the swatch angles.

@@ -323,12 +323,10 @@ pub fn clip(
             }
         }
     }
-    (t0 <= t1).then(|| {
-        (
-            (a.0 + t0 * dx, a.1 + t0 * dy),
-            (a.0 + t1 * dx, a.1 + t1 * dy),
-        )
-    })
+    (t0 <= t1).then_some((
+        (a.0 + t0 * dx, a.1 + t0 * dy),
+        (a.0 + t1 * dx, a.1 + t1 * dy),
+    ))
 }
 
 /// A scene title cut to fit a legend.
@@ -397,6 +395,9 @@ pub fn equal_scales(x: (f64, f64), y: (f64, f64), w: f64, h: f64) -> ((f64, f64)
     ((cx - hx, cx + hx), (cy - hy, cy + hy))
 }
 
+/// A box x0, y0, x1, y1 in pixels.
+type Box4 = (f64, f64, f64, f64);
+
 /// Places text labels beside points of polylines so that they avoid the
 /// points, the lines and each other as far as possible: for each wanted
 /// label, the first of eight directions (left of the direction of travel
@@ -409,7 +410,7 @@ pub fn place_labels(
     radius: f64,
     gap: f64,
 ) -> Vec<((i32, i32), Pos)> {
-    let mut boxes: Vec<(f64, f64, f64, f64)> = Vec::new();
+    let mut boxes: Vec<Box4> = Vec::new();
     let mut out = Vec::new();
     for &(l, i, w, h) in wanted {
         let line = &lines[l];
@@ -434,7 +435,7 @@ pub fn place_labels(
             turn(0.0, 1.0),
             turn(0.0, -1.0),
         ];
-        let mut best: Option<(usize, (f64, f64, f64, f64), ((i32, i32), Pos))> = None;
+        let mut best: Option<(usize, Box4, ((i32, i32), Pos))> = None;
         for (ux, uy) in dirs {
             let (ax, ay) = (p.0 as f64 + ux * gap, p.1 as f64 + uy * gap);
             let hp = if ux > 0.35 {

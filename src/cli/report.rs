@@ -57,7 +57,7 @@ pub fn run(args: &Args) -> CliResult {
         let svg = c(Format::Svg).map_err(at)?;
         write_out(
             Some(&args.output.join(format!("{stem}.svg"))),
-            &[svg.clone()],
+            std::slice::from_ref(&svg),
         )?;
         drawn.push(Drawn {
             stem,
