@@ -269,6 +269,29 @@ fn chart_command_writes_png_and_svg_and_refuses_bad_requests() {
     assert!(out.stderr.is_empty(), "piped: no progress output");
     let img = image::open(&png).unwrap();
     assert_eq!((img.width(), img.height()), (500, 340));
+    for extra in [
+        vec!["--layer", "2", "--thickness-range", "60,120"],
+        vec!["--scale-range", "0.9,1.1"],
+    ] {
+        let t = d.join("t.svg");
+        let mut args = vec![
+            "chart",
+            a,
+            "--kind",
+            "thickness-angle",
+            "--steps",
+            "3",
+            "-o",
+            t.to_str().unwrap(),
+        ];
+        args.extend(extra);
+        let out = lamella(&args);
+        assert!(
+            out.status.success(),
+            "{args:?}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+    }
     let svg = d.join("ab.svg");
     let out = lamella(&[
         "chart",

@@ -293,7 +293,14 @@ impl Chromaticity {
         let entries: [(&str, RGBColor); 3] = [
             ("spectrum locus (nm)", INK),
             ("sRGB gamut", SERIES[3]),
-            ("angle trajectory", SERIES[0]),
+            (
+                if self.series.len() == 1 {
+                    "angle trajectory"
+                } else {
+                    "angle trajectories"
+                },
+                SERIES[0],
+            ),
         ];
         for (text, colour) in entries {
             area.draw(&PathElement::new(

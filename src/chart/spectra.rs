@@ -219,11 +219,12 @@ impl SpectraChart {
         let line = s.px(26.0);
         let mut y = s.px(14.0);
         let label = Pos::new(HPos::Left, VPos::Center);
-        area.draw(&Text::new(
-            "Angle of incidence",
-            (left, y),
-            s.bold(14.0, INK).pos(label),
-        ))?;
+        let heading = if self.legend.iter().any(|l| l.contains(" · ")) {
+            "Design · angle of incidence"
+        } else {
+            "Angle of incidence"
+        };
+        area.draw(&Text::new(heading, (left, y), s.bold(14.0, INK).pos(label)))?;
         y += line;
         for (i, name) in self.legend.iter().enumerate() {
             area.draw(&PathElement::new(

@@ -312,3 +312,22 @@ impl AngleStrip {
         Ok(())
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::default_ticks;
+
+    #[test]
+    fn default_ticks_use_a_round_step_and_at_most_nine() {
+        assert_eq!(
+            default_ticks(0.0, 80.0),
+            (0..=8).map(|i| i as f64 * 10.0).collect::<Vec<_>>()
+        );
+        assert_eq!(
+            default_ticks(0.0, 60.0),
+            vec![0.0, 10.0, 20.0, 30.0, 40.0, 50.0, 60.0]
+        );
+        assert_eq!(default_ticks(12.0, 14.0), vec![12.0, 13.0, 14.0]);
+        assert!(default_ticks(0.0, 89.0).len() <= 9);
+    }
+}

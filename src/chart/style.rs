@@ -542,3 +542,37 @@ pub fn angle_labels<DB: DrawingBackend>(
     }
     Ok(())
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn clipping_keeps_the_inside_part() {
+        let b = ((0.0, 1.0), (0.0, 1.0));
+        assert_eq!(
+            clip((-1.0, 0.5), (2.0, 0.5), b.0, b.1),
+            Some(((0.0, 0.5), (1.0, 0.5)))
+        );
+        assert_eq!(clip((2.0, 2.0), (3.0, 3.0), b.0, b.1), None);
+        assert_eq!(
+            clip((0.2, 0.2), (0.4, 0.4), b.0, b.1),
+            Some(((0.2, 0.2), (0.4, 0.4)))
+        );
+    }
+
+    #[test]
+    fn equal_scales_hold_the_ranges_with_one_unit_per_pixel() {
+        let ((x0, x1), (y0, y1)) = equal_scales((0.0, 0.8), (0.0, 0.9), 400.0, 600.0);
+        assert!((x1 - x0) / 400.0 - (y1 - y0) / 600.0 < 1e-12);
+        assert!(x0 <= 0.0 && x1 >= 0.8 && y0 <= 0.0 && y1 >= 0.9);
+    }
+
+    #[test]
+    fn numbers_use_a_minus_sign_and_no_negative_zero() {
+        assert_eq!(num(-3.25, 1), "−3.2");
+        assert_eq!(num(-0.01, 1), "0.0");
+        assert_eq!(tick(&0.5), "0.5");
+        assert_eq!(tick(&40.0), "40");
+    }
+}

@@ -85,12 +85,12 @@ pub struct Args {
     pub layer: Option<usize>,
     /// thickness-angle: thickness range of --layer in nm, FROM,TO
     /// (default: 50 % to 150 % of the design thickness).
-    #[arg(long, value_delimiter = ',', num_args = 2, requires = "layer")]
-    pub thickness_range: Option<Vec<f64>>,
+    #[arg(long, value_name = "FROM,TO", value_parser = parse_pair, requires = "layer")]
+    pub thickness_range: Option<(f64, f64)>,
     /// thickness-angle: scale all thicknesses together over FROM,TO
     /// (the default when --layer is not given: 0.8,1.2).
-    #[arg(long, value_delimiter = ',', num_args = 2)]
-    pub scale_range: Option<Vec<f64>>,
+    #[arg(long, value_name = "FROM,TO", value_parser = parse_pair)]
+    pub scale_range: Option<(f64, f64)>,
     /// thickness-angle: number of thickness rows.
     #[arg(long, default_value_t = 21)]
     pub steps: usize,
@@ -108,6 +108,19 @@ pub fn parse_size(s: &str) -> Result<(u32, u32), String> {
     let size = (p(w)?, p(h)?);
     chart::check_size(size).map_err(|e| e.to_string())?;
     Ok(size)
+}
+
+fn parse_pair(s: &str) -> Result<(f64, f64), String> {
+    let bad = || format!("{s}: expected FROM,TO, e.g. 0.8,1.2");
+    let (a, b) = s.split_once(',').ok_or_else(bad)?;
+    let p = |v: &str| {
+        v.trim()
+            .parse::<f64>()
+            .ok()
+            .filter(|v| v.is_finite())
+            .ok_or_else(bad)
+    };
+    Ok((p(a)?, p(b)?))
 }
 
 /// A progress bar on stderr when it is a terminal, hidden otherwise.
@@ -222,15 +235,12 @@ pub fn run(args: &Args) -> CliResult {
 
 /// The thickness variation the flags ask for.
 fn variation(args: &Args) -> Variation {
-    match (args.layer, &args.scale_range) {
+    match (args.layer, args.scale_range) {
         (Some(layer), _) => Variation::Layer {
             layer,
-            range_nm: args.thickness_range.as_ref().map(|r| (r[0], r[1])),
+            range_nm: args.thickness_range,
         },
-        (None, Some(r)) => Variation::Scale {
-            from: r[0],
-            to: r[1],
-        },
+        (None, Some((from, to))) => Variation::Scale { from, to },
         (None, None) => Variation::Scale { from: 0.8, to: 1.2 },
     }
 }

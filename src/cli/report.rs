@@ -250,7 +250,7 @@ fn page(
     } else {
         let _ = writeln!(
             h,
-            "<p class=warn><b>Gamut warning:</b> at {} the colour lies outside sRGB; its swatch is clipped and shows less chroma than the real coating.</p>",
+            "<p class=warn><b>Gamut warning:</b> at {} the colour lies outside sRGB; its swatch is clipped to the nearest displayable colour and differs from the real one.</p>",
             outside.join(", ")
         );
     }
