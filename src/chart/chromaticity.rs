@@ -181,10 +181,19 @@ impl Chromaticity {
                 let (nx, ny) = (-dy / n, dx / n);
                 let p = (self.locus[i].1, self.locus[i].2);
                 let (px, py) = chart.backend_coord(&p);
-                let out = s.px(8.0) as f64;
-                let tip = (px + (nx * out) as i32, py - (ny * out) as i32);
                 let base = chart.plotting_area().get_base_pixel();
                 let area = chart.plotting_area().strip_coord_spec();
+                let text = format!("{}", wl as i64);
+                // Outside the locus unless that would leave the plot; then inside.
+                let room = px - base.0 - s.px(12.0);
+                let width = super::font::width(&text, s.size(12.0), FontStyle::Normal);
+                let (nx, ny) = if nx < -0.3 && (room as f64) < width {
+                    (-nx, -ny)
+                } else {
+                    (nx, ny)
+                };
+                let out = s.px(8.0) as f64;
+                let tip = (px + (nx * out) as i32, py - (ny * out) as i32);
                 area.draw(&PathElement::new(
                     vec![(px - base.0, py - base.1), (tip.0 - base.0, tip.1 - base.1)],
                     INK.stroke_width(1),
@@ -204,7 +213,7 @@ impl Chromaticity {
                     VPos::Center
                 };
                 area.draw(&Text::new(
-                    format!("{}", wl as i64),
+                    text,
                     (
                         tip.0 - base.0 + (nx * 3.0) as i32,
                         tip.1 - base.1 - (ny * 3.0) as i32,
