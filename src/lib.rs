@@ -5,10 +5,12 @@
 pub mod angle_colour;
 pub mod chart;
 pub mod colorimetry;
+pub mod design;
 pub mod error;
 pub mod grid;
 pub mod materials;
 pub mod optics;
+pub mod pigment;
 pub mod scene;
 
 pub use error::{Error, Result};

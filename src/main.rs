@@ -36,13 +36,45 @@ enum Command {
         scene: PathBuf,
         /// Output format.
         #[arg(long, value_enum, default_value = "table")]
-        format: cli::color::Format,
+        format: cli::RecordFormat,
         #[command(flatten)]
         view: cli::color::ViewArgs,
+        /// Also give Display P3 values (`display_p3`, `display_p3_hex`,
+        /// `display_p3_in_gamut`) beside sRGB.
+        #[arg(long)]
+        display_p3: bool,
         /// Write to this file (atomically) instead of stdout.
         #[arg(short = 'o', long = "output")]
         output: Option<PathBuf>,
     },
+    /// Colour of an effect-pigment coating (the scene's `coating`: platelets
+    /// in a binder over a background) at multi-angle geometries such as
+    /// 45as15 (illumination 45°, detection 15° from the specular direction
+    /// toward the normal): reflectance factor, XYZ, CIELAB, C*, h, sRGB, hex
+    /// and gamut per geometry, the flop index and the hue travel.
+    #[command(after_help = cli::multiangle::HELP)]
+    Multiangle {
+        /// Scene file (JSON) with a `coating` section.
+        scene: PathBuf,
+        /// Output format.
+        #[arg(long, value_enum, default_value = "table")]
+        format: cli::RecordFormat,
+        #[command(flatten)]
+        args: cli::multiangle::Args,
+        /// Write to this file (atomically) instead of stdout.
+        #[arg(short = 'o', long = "output")]
+        output: Option<PathBuf>,
+    },
+    /// Optimise the `vary_nm` thicknesses toward a target colour (ΔE00) at
+    /// one or more angles; writes the optimised scene and a JSON report.
+    Match(Box<cli::matching::MatchArgs>),
+    /// Monte Carlo tolerance of a design: ΔE00 percentiles, yield and the
+    /// layers the colour is most sensitive to.
+    Tolerance(Box<cli::tolerance::ToleranceArgs>),
+    /// Fit the `vary_nm` thicknesses to a measured reflectance spectrum.
+    Fit(Box<cli::fit::FitArgs>),
+    /// Evaluate many designs over the `vary_nm` ranges as JSON lines.
+    Sweep(Box<cli::sweep::SweepArgs>),
     /// List the built-in materials: model, valid range, n and k at 550 nm, source.
     Materials,
     /// Draw a chart of colour against angle as PNG or SVG (format from the
@@ -71,8 +103,19 @@ fn main() -> ExitCode {
             scene,
             format,
             view,
+            display_p3,
             output,
-        } => cli::color::run(&scene, format, &view, output.as_ref()),
+        } => cli::color::run(&scene, format, &view, display_p3, output.as_ref()),
+        Command::Multiangle {
+            scene,
+            format,
+            args,
+            output,
+        } => cli::multiangle::run(&scene, format, &args, output.as_ref()),
+        Command::Match(a) => cli::matching::run(&a),
+        Command::Tolerance(a) => cli::tolerance::run(&a),
+        Command::Fit(a) => cli::fit::run(&a),
+        Command::Sweep(a) => cli::sweep::run(&a),
         Command::Materials => cli::materials::run(),
         Command::Chart(a) => cli::chart::run(&a),
         Command::Report(a) => cli::report::run(&a),

@@ -398,6 +398,9 @@ pub fn equal_scales(x: (f64, f64), y: (f64, f64), w: f64, h: f64) -> ((f64, f64)
 /// A box x0, y0, x1, y1 in pixels.
 type Box4 = (f64, f64, f64, f64);
 
+/// A label's anchor point and text anchor.
+type Placed = ((i32, i32), Pos);
+
 /// Places text labels beside points of polylines so that they avoid the
 /// points, the lines and each other as far as possible: for each wanted
 /// label, the first of eight directions (left of the direction of travel
@@ -409,7 +412,7 @@ pub fn place_labels(
     wanted: &[(usize, usize, f64, f64)],
     radius: f64,
     gap: f64,
-) -> Vec<((i32, i32), Pos)> {
+) -> Vec<Placed> {
     let mut boxes: Vec<Box4> = Vec::new();
     let mut out = Vec::new();
     for &(l, i, w, h) in wanted {
@@ -435,7 +438,7 @@ pub fn place_labels(
             turn(0.0, 1.0),
             turn(0.0, -1.0),
         ];
-        let mut best: Option<(usize, Box4, ((i32, i32), Pos))> = None;
+        let mut best: Option<(usize, Box4, Placed)> = None;
         for (ux, uy) in dirs {
             let (ax, ay) = (p.0 as f64 + ux * gap, p.1 as f64 + uy * gap);
             let hp = if ux > 0.35 {

@@ -1,9 +1,8 @@
 //! `lamella chart`: one chart of a scene (or several scenes) as PNG or SVG.
 
-use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicU64, Ordering};
 
-use indicatif::{ProgressBar, ProgressStyle};
 use lamella::angle_colour::{Polarization, Viewing};
 use lamella::chart::{
     self, AbTravel, AngleStrip, Chromaticity, Format, ReflectanceMap, SpectraChart, ThicknessAngle,
@@ -12,6 +11,7 @@ use lamella::chart::{
 use lamella::scene::Scene;
 
 use super::color::ViewArgs;
+use super::design_args::Progress;
 use super::{CliResult, Failure, load_scene, write_out};
 
 /// The kind of chart.
@@ -123,21 +123,6 @@ fn parse_pair(s: &str) -> Result<(f64, f64), String> {
     Ok((p(a)?, p(b)?))
 }
 
-/// A progress bar on stderr when it is a terminal, hidden otherwise.
-pub fn progress(len: u64, what: &str) -> ProgressBar {
-    if !std::io::stderr().is_terminal() {
-        return ProgressBar::hidden();
-    }
-    let bar = ProgressBar::new(len);
-    bar.set_style(
-        ProgressStyle::with_template("{msg:>12} [{bar:32}] {pos}/{len} {elapsed}")
-            .expect("valid template")
-            .progress_chars("=> "),
-    );
-    bar.set_message(what.to_string());
-    bar
-}
-
 /// The output format from a file name.
 pub fn format_of(path: &Path) -> Result<Format, Failure> {
     let ext = path.extension().and_then(|e| e.to_str()).unwrap_or("");
@@ -200,10 +185,13 @@ pub fn run(args: &Args) -> CliResult {
         }
         Kind::ThicknessAngle => {
             let variation = variation(args);
-            let bar = progress(args.steps as u64, "thicknesses");
-            let c = ThicknessAngle::compute(scene, viewing, &variation, args.steps, &|| bar.inc(1))
-                .map_err(at)?;
-            bar.finish_and_clear();
+            let bar = Progress::new(args.steps as u64, "thickness rows");
+            let done = AtomicU64::new(0);
+            let c = ThicknessAngle::compute(scene, viewing, &variation, args.steps, &|| {
+                bar.set(done.fetch_add(1, Ordering::Relaxed) + 1, String::new())
+            })
+            .map_err(at)?;
+            bar.finish();
             chart::render(&c, args.size, format)
         }
         Kind::Spectra => {

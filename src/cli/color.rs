@@ -9,18 +9,7 @@ use lamella::colorimetry::{
 };
 use serde_json::{Value, json};
 
-use super::{CliResult, Failure, load_scene, write_out};
-
-/// Output format of the colour table.
-#[derive(Debug, Clone, Copy, clap::ValueEnum)]
-pub enum Format {
-    /// A list of records, one per angle.
-    Json,
-    /// One row per angle.
-    Csv,
-    /// A readable table with a colour swatch per row on a true-colour terminal.
-    Table,
-}
+use super::{CliResult, Failure, RecordFormat, load_scene, write_out};
 
 /// Flags shared by every command that turns spectra into colour.
 #[derive(Debug, Clone, clap::Args)]
@@ -80,17 +69,41 @@ impl ViewArgs {
 }
 
 /// Runs the command.
-pub fn run(scene_path: &Path, format: Format, view: &ViewArgs, out: Option<&PathBuf>) -> CliResult {
+pub fn run(
+    scene_path: &Path,
+    format: RecordFormat,
+    view: &ViewArgs,
+    display_p3: bool,
+    out: Option<&PathBuf>,
+) -> CliResult {
     let scene = load_scene(scene_path)?;
     let viewing = view.viewing(&scene, scene_path)?;
     let bad = |e: lamella::Error| Failure::input(format!("{}: {e}", scene_path.display()));
     let spectra = scene.spectra().map_err(bad)?;
     let colours = angle_colours(&spectra, &viewing).map_err(bad)?;
-    let records = records(&spectra.angles_deg, &colours);
+    let mut records = records(&spectra.angles_deg, &colours);
+    if display_p3 {
+        let white = viewing
+            .weights(&spectra.wavelengths_nm)
+            .map_err(bad)?
+            .white();
+        let options = ColourOptions {
+            space: RgbSpace::DisplayP3,
+            ..viewing.options
+        };
+        for (r, c) in records.iter_mut().zip(&colours) {
+            let p3 = Colour::new(c.xyz, white, &options);
+            r["display_p3"] = json!(p3.rgb);
+            r["display_p3_hex"] = json!(p3.hex);
+            r["display_p3_in_gamut"] = json!(p3.in_gamut);
+        }
+    }
     let text = match format {
-        Format::Json => serde_json::to_string_pretty(&records).expect("records serialise") + "\n",
-        Format::Csv => csv(&records),
-        Format::Table => table(
+        RecordFormat::Json => {
+            serde_json::to_string_pretty(&records).expect("records serialise") + "\n"
+        }
+        RecordFormat::Csv => csv(&records),
+        RecordFormat::Table => table(
             &scene.title,
             &viewing,
             &spectra.angles_deg,
@@ -101,28 +114,7 @@ pub fn run(scene_path: &Path, format: Format, view: &ViewArgs, out: Option<&Path
     write_out(out.map(PathBuf::as_path), &[text.into_bytes()])
 }
 
-/// Record keys in output order (`srgb` is three columns in CSV).
-const KEYS: [&str; 17] = [
-    "angle_deg",
-    "X",
-    "Y",
-    "Z",
-    "x",
-    "y",
-    "L",
-    "a",
-    "b",
-    "C",
-    "h",
-    "srgb",
-    "hex",
-    "in_gamut",
-    "hue_shift_deg",
-    "delta_e00_from_first",
-    "delta_e00_per_deg",
-];
-
-/// One JSON object per angle, keys in [`KEYS`] order.
+/// One JSON object per angle.
 fn records(angles: &[f64], colours: &[Colour]) -> Vec<Value> {
     let first = &colours[0];
     colours
@@ -161,24 +153,25 @@ fn wrap180(d: f64) -> f64 {
     if w == -180.0 { 180.0 } else { w }
 }
 
+/// The records as CSV, columns in record order; a list `k` of three values
+/// becomes columns `k_r,k_g,k_b`.
 fn csv(records: &[Value]) -> String {
-    let mut out = String::new();
-    let header: Vec<String> = KEYS
-        .iter()
-        .flat_map(|k| {
-            if *k == "srgb" {
-                vec!["srgb_r".into(), "srgb_g".into(), "srgb_b".into()]
-            } else {
-                vec![k.to_string()]
-            }
-        })
-        .collect();
-    out.push_str(&header.join(","));
-    out.push('\n');
+    let keys: Vec<&String> = records[0]
+        .as_object()
+        .map(|o| o.keys().collect())
+        .unwrap_or_default();
+    let mut header = Vec::new();
+    for k in &keys {
+        match &records[0][k.as_str()] {
+            Value::Array(_) => header.extend(["r", "g", "b"].map(|c| format!("{k}_{c}"))),
+            _ => header.push(k.to_string()),
+        }
+    }
+    let mut out = header.join(",") + "\n";
     for r in records {
-        let cells: Vec<String> = KEYS
+        let cells: Vec<String> = keys
             .iter()
-            .flat_map(|k| match &r[*k] {
+            .flat_map(|k| match &r[k.as_str()] {
                 Value::Array(xs) => xs.iter().map(Value::to_string).collect(),
                 Value::String(s) => vec![s.clone()],
                 other => vec![other.to_string()],

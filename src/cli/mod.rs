@@ -2,14 +2,31 @@
 
 pub mod chart;
 pub mod color;
+pub mod design_args;
+pub mod fit;
+pub mod matching;
 pub mod materials;
+pub mod multiangle;
 pub mod output;
 pub mod report;
 pub mod spectrum;
+pub mod sweep;
+pub mod tolerance;
 
 use std::path::{Path, PathBuf};
 
 use lamella::scene::Scene;
+
+/// Output format of commands that print one record per angle or geometry.
+#[derive(Debug, Clone, Copy, clap::ValueEnum)]
+pub enum RecordFormat {
+    /// JSON: the records with their keys.
+    Json,
+    /// One row per record.
+    Csv,
+    /// A readable table with a colour swatch per row on a true-colour terminal.
+    Table,
+}
 
 /// A failure with the exit code it maps to.
 #[derive(Debug)]

@@ -13,8 +13,8 @@ use lamella::chart::{
 use lamella::colorimetry::travel;
 use lamella::scene::{Item, Scene};
 
-use super::chart::progress;
 use super::color::ViewArgs;
+use super::design_args::Progress;
 use super::{CliResult, Failure, load_scene, write_out};
 
 /// Flags of `lamella report`.
@@ -46,7 +46,7 @@ pub fn run(args: &Args) -> CliResult {
     let at = |e: lamella::Error| Failure::input(format!("{}: {e}", args.scene.display()));
     std::fs::create_dir_all(&args.output).map_err(|e| Failure::io(&args.output, e))?;
     let pair = [(&scene, &viewing)];
-    let bar = progress(6, "charts");
+    let bar = Progress::new(6, "charts");
     let mut drawn = Vec::new();
     let mut emit = |stem: &'static str,
                     heading: &'static str,
@@ -64,7 +64,7 @@ pub fn run(args: &Args) -> CliResult {
             heading,
             svg: String::from_utf8(svg).expect("SVG is UTF-8"),
         });
-        bar.inc(1);
+        bar.set(drawn.len() as u64, stem.to_string());
         Ok(())
     };
     let size = args.size;
@@ -105,7 +105,7 @@ pub fn run(args: &Args) -> CliResult {
     emit("ab-travel", "CIELAB travel", &|f| {
         chart::render(&ab, size, f)
     })?;
-    bar.finish_and_clear();
+    bar.finish();
     let series = Series::of_scene(&scene, &viewing).map_err(at)?;
     let html = page(&scene, &viewing, &series, &drawn, &strip.label());
     write_out(Some(&args.output.join("index.html")), &[html.into_bytes()])

@@ -175,6 +175,17 @@ impl Colour {
     }
 }
 
+/// X, Y, Z (0–100) of an encoded RGB colour (each 0–1) as [`Colour::new`]
+/// renders it for the light whose perfect reflector gives `white`: the
+/// transfer curve undone (IEC 61966-2-1), then the inverse of the rendering
+/// matrix, so `Colour::new(rgb_to_xyz_under(c.rgb, w, s), w, …)` gives back
+/// `c.rgb` for in-gamut colours.
+pub fn rgb_to_xyz_under(rgb: [f64; 3], white: [f64; 3], space: RgbSpace) -> [f64; 3] {
+    let linear = rgb.map(<encoding::Srgb as encoding::IntoLinear<f64, f64>>::into_linear);
+    let to_xyz = matrix_inverse(Display::new(white, space).to_rgb);
+    multiply_3x3_and_vec3(to_xyz, linear).map(|v| v * 100.0)
+}
+
 /// Linear RGB within 0–1 up to the tolerance.
 fn inside(rgb: [f64; 3]) -> bool {
     rgb.iter()

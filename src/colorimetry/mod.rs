@@ -13,7 +13,8 @@ mod spectra;
 mod weights;
 
 pub use colour::{
-    Colour, ColourOptions, GamutMapping, RgbSpace, chromaticity, lab_to_lch, lab_to_xyz, xyz_to_lab,
+    Colour, ColourOptions, GamutMapping, RgbSpace, chromaticity, lab_to_lch, lab_to_xyz,
+    rgb_to_xyz_under, xyz_to_lab,
 };
 pub use difference::{Travel, delta_e76, delta_e94, delta_e2000, travel};
 pub use spectra::{BUILT_IN_ILLUMINANTS, Illuminant, Observer};

@@ -23,7 +23,7 @@ impl Phase {
     /// Phase thickness δ = (2π/λ)·d·q for a layer; `k0d` = 2π d / λ.
     pub fn new(k0d: f64, q: Complex64) -> Self {
         let (a, b) = (k0d * q.re, k0d * q.im);
-        let (sa, ca) = a.sin_cos();
+        let (sa, ca) = super::trig::sin_cos(a);
         if b == 0.0 {
             return Phase {
                 cos: Complex64::new(ca, 0.0),
@@ -80,7 +80,6 @@ impl Field {
             self.v = [b * ph.cos + is * inv_eta * c, is * eta * b + c * ph.cos];
             self.log += ph.log_scale;
         }
-        self.renormalise();
     }
 
     /// Multiplies by a scaled matrix.
@@ -90,8 +89,11 @@ impl Field {
         self.renormalise();
     }
 
+    /// Moves a large magnitude into the scale. [`Field::through_layer`] leaves
+    /// this to the caller, who calls it every few layers: one lossless layer
+    /// multiplies the magnitude by at most max(|η|, 1/|η|) + 1.
     #[inline]
-    fn renormalise(&mut self) {
+    pub fn renormalise(&mut self) {
         let big = self
             .v
             .iter()
@@ -203,68 +205,79 @@ impl Mat {
     }
 }
 
-/// A characteristic matrix of lossless, propagating layers only:
-/// [[a, −i·b], [−i·c, d]] with a, b, c, d real, times e^{log}. Products of
-/// such matrices keep the form, so a quarter of the arithmetic suffices.
+/// The characteristic matrices of lossless, propagating layers for both
+/// polarizations at once (lane 0: s, lane 1: p): [[a, −i·b], [−i·c, d]] with
+/// a, b, c, d real, times e^{log} (a scale per lane: in a long stop band the
+/// two polarizations grow at different rates). Products of such matrices keep
+/// the form, so a quarter of the complex arithmetic suffices, and the two
+/// lanes run side by side in vector registers.
 #[derive(Debug, Clone, Copy)]
-pub struct RealMat {
-    a: f64,
-    b: f64,
-    c: f64,
-    d: f64,
-    log: f64,
+pub struct RealPair {
+    a: [f64; 2],
+    b: [f64; 2],
+    c: [f64; 2],
+    d: [f64; 2],
+    log: [f64; 2],
 }
 
-impl RealMat {
+impl RealPair {
     /// The identity.
     pub fn identity() -> Self {
-        RealMat {
-            a: 1.0,
-            b: 0.0,
-            c: 0.0,
-            d: 1.0,
-            log: 0.0,
+        RealPair {
+            a: [1.0; 2],
+            b: [0.0; 2],
+            c: [0.0; 2],
+            d: [1.0; 2],
+            log: [0.0; 2],
         }
     }
 
-    /// One lossless layer with real phase `ph` and real admittance `eta`.
-    pub fn layer(ph: &Phase, eta: f64, inv_eta: f64) -> Self {
+    /// One lossless layer with real phase `ph` and real admittances
+    /// `eta` = (η_s, η_p) and their inverses.
+    pub fn layer(ph: &Phase, eta: [f64; 2], inv_eta: [f64; 2]) -> Self {
         let (cs, sn) = (ph.cos.re, ph.sin.re);
-        RealMat {
-            a: cs,
-            b: sn * inv_eta,
-            c: eta * sn,
-            d: cs,
-            log: 0.0,
+        RealPair {
+            a: [cs; 2],
+            b: [sn * inv_eta[0], sn * inv_eta[1]],
+            c: [sn * eta[0], sn * eta[1]],
+            d: [cs; 2],
+            log: [0.0; 2],
         }
     }
 
-    /// The product `self · rhs`.
-    pub fn mul(&self, r: &RealMat) -> RealMat {
-        let mut out = RealMat {
-            a: self.a * r.a - self.b * r.c,
-            b: self.a * r.b + self.b * r.d,
-            c: self.c * r.a + self.d * r.c,
-            d: self.d * r.d - self.c * r.b,
-            log: self.log + r.log,
+    /// The product `self · rhs`, lane by lane.
+    pub fn mul(&self, r: &RealPair) -> RealPair {
+        let lanes = |f: &dyn Fn(usize) -> f64| [f(0), f(1)];
+        let mut out = RealPair {
+            a: lanes(&|i| self.a[i] * r.a[i] - self.b[i] * r.c[i]),
+            b: lanes(&|i| self.a[i] * r.b[i] + self.b[i] * r.d[i]),
+            c: lanes(&|i| self.c[i] * r.a[i] + self.d[i] * r.c[i]),
+            d: lanes(&|i| self.d[i] * r.d[i] - self.c[i] * r.b[i]),
+            log: lanes(&|i| self.log[i] + r.log[i]),
         };
-        let big = out
-            .a
-            .abs()
-            .max(out.b.abs())
-            .max(out.c.abs())
-            .max(out.d.abs());
-        if big > BIG {
-            let inv = 1.0 / big;
-            (out.a, out.b, out.c, out.d) = (out.a * inv, out.b * inv, out.c * inv, out.d * inv);
-            out.log += big.ln();
+        let big = lanes(&|i| {
+            out.a[i]
+                .abs()
+                .max(out.b[i].abs())
+                .max(out.c[i].abs())
+                .max(out.d[i].abs())
+        });
+        if big[0] > BIG || big[1] > BIG {
+            for (i, &m) in big.iter().enumerate().filter(|(_, m)| **m > BIG) {
+                let inv = 1.0 / m;
+                out.a[i] *= inv;
+                out.b[i] *= inv;
+                out.c[i] *= inv;
+                out.d[i] *= inv;
+                out.log[i] += m.ln();
+            }
         }
         out
     }
 
     /// `self^n` by binary powering.
-    pub fn pow(&self, mut n: u64) -> RealMat {
-        let (mut base, mut acc) = (*self, RealMat::identity());
+    pub fn pow(&self, mut n: u64) -> RealPair {
+        let (mut base, mut acc) = (*self, RealPair::identity());
         while n > 0 {
             if n & 1 == 1 {
                 acc = acc.mul(&base);
@@ -277,13 +290,17 @@ impl RealMat {
         acc
     }
 
-    /// The same matrix in complex form.
-    pub fn complex(&self) -> Mat {
+    /// The two matrices (s, p) in complex form.
+    pub fn complex(&self) -> (Mat, Mat) {
         let re = |x: f64| Complex64::new(x, 0.0);
         let mi = |x: f64| Complex64::new(0.0, -x);
-        Mat {
-            m: [[re(self.a), mi(self.b)], [mi(self.c), re(self.d)]],
-            log: self.log,
-        }
+        let lane = |i: usize| Mat {
+            m: [
+                [re(self.a[i]), mi(self.b[i])],
+                [mi(self.c[i]), re(self.d[i])],
+            ],
+            log: self.log[i],
+        };
+        (lane(0), lane(1))
     }
 }

@@ -9,6 +9,7 @@ mod matrix;
 mod medium;
 mod spectra;
 mod stack;
+mod trig;
 
 pub use medium::MediumTerms;
 pub use spectra::{Spectra, compute};

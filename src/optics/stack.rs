@@ -3,7 +3,7 @@
 
 use num_complex::Complex64;
 
-use super::matrix::{Field, Mat, Phase, RealMat};
+use super::matrix::{Field, Mat, Phase, RealPair};
 use super::medium::MediumTerms;
 
 /// One element of a stack, listed from the incident side.
@@ -98,32 +98,18 @@ impl Stack {
                 let (ms, mp) = product(&self.nodes, terms, k0);
                 // Single-pass intensity attenuation in the sheet, exp(−2 Im δ).
                 let alpha = (-2.0 * k0 * thickness_nm * sheet.q.im).exp();
-                let back = |eta_sheet: Complex64, eta_behind: Option<Complex64>| match eta_behind {
-                    Some(eb) => interface(eta_sheet, eb),
-                    None => (0.0, 0.0),
+                // One polarization: its admittance picked from each medium's terms.
+                let pol = |m: &Mat, eta: fn(&MediumTerms) -> Complex64| {
+                    let back = match behind {
+                        Behind::Medium(b) => {
+                            coherent(eta(sheet), eta(&terms[b]), &Field::exit(eta(&terms[b])))
+                        }
+                        Behind::Black => (0.0, 0.0),
+                    };
+                    incoherent(m, eta(inc), eta(sheet), back, alpha)
                 };
-                let eb = |pol_s: bool| match behind {
-                    Behind::Medium(b) => Some(if pol_s {
-                        terms[b].eta_s
-                    } else {
-                        terms[b].eta_p
-                    }),
-                    Behind::Black => None,
-                };
-                let (rs, ts) = incoherent(
-                    &ms,
-                    inc.eta_s,
-                    sheet.eta_s,
-                    back(sheet.eta_s, eb(true)),
-                    alpha,
-                );
-                let (rp, tp) = incoherent(
-                    &mp,
-                    inc.eta_p,
-                    sheet.eta_p,
-                    back(sheet.eta_p, eb(false)),
-                    alpha,
-                );
+                let (rs, ts) = pol(&ms, |t| t.eta_s);
+                let (rp, tp) = pol(&mp, |t| t.eta_p);
                 Rt { rs, rp, ts, tp }
             }
         }
@@ -132,7 +118,11 @@ impl Stack {
 
 /// Carries the exit fields through `nodes` toward the incident side.
 fn apply(nodes: &[Node], terms: &[MediumTerms], k0: f64, fs: &mut Field, fp: &mut Field) {
-    for node in nodes.iter().rev() {
+    for (i, node) in nodes.iter().rev().enumerate() {
+        if i % 8 == 7 {
+            fs.renormalise();
+            fp.renormalise();
+        }
         match node {
             Node::Layer {
                 medium,
@@ -150,14 +140,15 @@ fn apply(nodes: &[Node], terms: &[MediumTerms], k0: f64, fs: &mut Field, fp: &mu
             }
         }
     }
+    fs.renormalise();
+    fp.renormalise();
 }
 
 /// The matrices (s, p) of `count` periods of `nodes`, by the real-arithmetic
 /// path when every layer in them is lossless and propagating.
 fn repeat(nodes: &[Node], count: u64, terms: &[MediumTerms], k0: f64) -> (Mat, Mat) {
     if all_real(nodes, terms) {
-        let (s, p) = product_real(nodes, terms, k0);
-        (s.pow(count).complex(), p.pow(count).complex())
+        product_real(nodes, terms, k0).pow(count).complex()
     } else {
         let (s, p) = product(nodes, terms, k0);
         (s.pow(count), p.pow(count))
@@ -171,31 +162,28 @@ fn all_real(nodes: &[Node], terms: &[MediumTerms]) -> bool {
     })
 }
 
-/// [`product`] for lossless, propagating layers.
-fn product_real(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> (RealMat, RealMat) {
-    let (mut ms, mut mp) = (RealMat::identity(), RealMat::identity());
+/// [`product`] for lossless, propagating layers, both polarizations at once.
+fn product_real(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> RealPair {
+    let mut m = RealPair::identity();
     for node in nodes {
-        let (ns, np) = match node {
+        let next = match node {
             Node::Layer {
                 medium,
                 thickness_nm,
             } => {
                 let t = &terms[*medium];
                 let ph = Phase::new(k0 * thickness_nm, t.q);
-                (
-                    RealMat::layer(&ph, t.eta_s.re, t.inv_eta_s.re),
-                    RealMat::layer(&ph, t.eta_p.re, t.inv_eta_p.re),
+                RealPair::layer(
+                    &ph,
+                    [t.eta_s.re, t.eta_p.re],
+                    [t.inv_eta_s.re, t.inv_eta_p.re],
                 )
             }
-            Node::Repeat { count, nodes } => {
-                let (s, p) = product_real(nodes, terms, k0);
-                (s.pow(*count), p.pow(*count))
-            }
+            Node::Repeat { count, nodes } => product_real(nodes, terms, k0).pow(*count),
         };
-        ms = ms.mul(&ns);
-        mp = mp.mul(&np);
+        m = m.mul(&next);
     }
-    (ms, mp)
+    m
 }
 
 /// The characteristic matrices (s, p) of `nodes`: M₁·M₂·…, incident side first.
@@ -223,24 +211,19 @@ fn product(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> (Mat, Mat) {
 }
 
 /// R and T from the incident admittance, the exit admittance and the field
-/// (B, C) at the front face: R = |(η₀B − C)/(η₀B + C)|²,
-/// T = 4 Re(η₀) Re(η_m) / |η₀B + C|² (Macleod, *Thin-Film Optical Filters*,
-/// 2010, eq. 2.99–2.100), with the field's scale e^{log} divided out of T.
+/// (B, C) at the front face: r = (η₀B − C)/(η₀B + C) and the tangential
+/// amplitude t = 2η₀/(η₀B + C) (Macleod, *Thin-Film Optical Filters*, 2010,
+/// eq. 2.99–2.100), R = |r|², T = |t|² Re(η_m)/Re(η₀), with the field's scale
+/// e^{log} divided out of T. For a lossless incident medium this is Macleod's
+/// T = 4η₀ Re(η_m)/|η₀B + C|²; from inside an absorbing sheet it is the
+/// convention of Byrnes, "Multilayer optical calculations", arXiv:1603.02720
+/// (2016), eq. 14–15, written with tilted admittances.
 fn coherent(eta0: Complex64, eta_m: Complex64, f: &Field) -> (f64, f64) {
     let [b, c] = f.v;
     let den = eta0 * b + c;
     let r = (eta0 * b - c) / den;
-    let t = 4.0 * eta0.re * eta_m.re / den.norm_sqr() * (-2.0 * f.log).exp();
+    let t = 4.0 * eta0.norm_sqr() * eta_m.re / (eta0.re * den.norm_sqr()) * (-2.0 * f.log).exp();
     (r.norm_sqr(), t)
-}
-
-/// Reflectance and transmittance of a bare interface from admittance `a` into `b`.
-fn interface(a: Complex64, b: Complex64) -> (f64, f64) {
-    let den = a + b;
-    (
-        ((a - b) / den).norm_sqr(),
-        4.0 * a.re * b.re / den.norm_sqr(),
-    )
 }
 
 /// A coherent stack (matrix `m`) on a thick sheet whose back face reflects

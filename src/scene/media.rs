@@ -28,6 +28,9 @@ pub(super) struct Registry<'a> {
     by_name: HashMap<String, usize>,
 }
 
+static NO_FILES: fn(&str) -> std::result::Result<String, String> =
+    |_| Err("no files can be read here".to_string());
+
 const MODEL_KEYS: &[&str] = &["n", "cauchy", "sellmeier", "table", "drude_lorentz", "mix"];
 
 impl<'a> Registry<'a> {
@@ -39,6 +42,22 @@ impl<'a> Registry<'a> {
             media: Vec::new(),
             by_name: HashMap::new(),
         })
+    }
+
+    /// A registry holding `media` already resolved, with no user materials
+    /// or files: further names come from the built-in library.
+    pub fn with_media(media: Vec<Medium>) -> Registry<'static> {
+        let by_name = media
+            .iter()
+            .enumerate()
+            .map(|(i, m)| (m.name.clone(), i))
+            .collect();
+        Registry {
+            user: None,
+            load: &NO_FILES,
+            media,
+            by_name,
+        }
     }
 
     /// Index of the medium called `name`, used at `key`.

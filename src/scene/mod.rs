@@ -13,7 +13,7 @@ use crate::grid::Range;
 use crate::optics::{self, Behind, Exit, Spectra};
 use json::Obj;
 pub use media::Medium;
-pub use stack::{Item, Layer, Repeat, Sigma};
+pub use stack::{Item, Layer, Repeat, Sigma, realise};
 
 /// Reads a file named in a scene (a CSV table), relative to the scene file.
 /// Returns the text or a one-line reason.
@@ -115,11 +115,20 @@ impl Scene {
         let mut media = media::Registry::new(top.get("materials"), load)?;
 
         let incident = media.resolve(top.str("incident")?.unwrap_or("air"), "incident")?;
-        let stack_value = top
-            .get("stack")
-            .ok_or_else(|| top.missing("stack", "a list of layers"))?;
-        let stack = stack::parse_items(stack_value, "stack", &mut media)?;
+        // An effect-pigment scene may describe its optics in `coating` alone:
+        // then the scene-level stack is empty and the substrate is the
+        // incident medium.
+        let coating = top.get("coating");
+        let stack = match (top.get("stack"), coating) {
+            (Some(v), _) => stack::parse_items(v, "stack", &mut media)?,
+            (None, Some(_)) => Vec::new(),
+            (None, None) => return Err(top.missing("stack", "a list of layers")),
+        };
+        if let Some(c) = coating {
+            coating_media(c, &mut media)?;
+        }
         let substrate = match top.get("substrate") {
+            None if coating.is_some() => Substrate::Medium(incident),
             None => return Err(top.missing("substrate", "a material name or a sheet object")),
             Some(Value::String(name)) => Substrate::Medium(media.resolve(name, "substrate")?),
             Some(v) => {
@@ -194,7 +203,7 @@ impl Scene {
             }
         };
         let observer = top.str("observer")?.unwrap_or("CIE1931_2").to_string();
-        let disorder = stack::parse_disorder(top.get("disorder"), &stack)?;
+        let disorder = stack::parse_disorder(top.get("disorder"), "disorder", &stack)?;
         let scene = Scene {
             title: top.str("title")?.unwrap_or("").to_string(),
             media: media.into_media(),
@@ -267,6 +276,35 @@ impl Scene {
         ))
     }
 
+    /// Parses a list of layer items (the `stack` syntax, repeats included)
+    /// found elsewhere in the document at `path` (e.g. `coating.platelet`),
+    /// resolving material names among the scene's media and the built-in
+    /// library; library materials not used before are added to
+    /// [`Scene::media`]. Materials defined under `materials` must already be
+    /// in use (the coating's are resolved when the scene is read).
+    pub fn parse_items(&mut self, v: &Value, path: &str) -> Result<Vec<Item>> {
+        let mut media = media::Registry::with_media(std::mem::take(&mut self.media));
+        let items = stack::parse_items(v, path, &mut media);
+        self.media = media.into_media();
+        items
+    }
+
+    /// Thickness disorder of `items` from a `disorder`-syntax object at `path`
+    /// (defaults as for the scene's own `disorder`).
+    pub fn parse_disorder(
+        &self,
+        v: Option<&Value>,
+        path: &str,
+        items: &[Item],
+    ) -> Result<Option<Disorder>> {
+        stack::parse_disorder(v, path, items)
+    }
+
+    /// Index of the medium called `name` in [`Scene::media`].
+    pub fn medium(&self, name: &str) -> Option<usize> {
+        self.media.iter().position(|m| m.name == name)
+    }
+
     /// The optics stacks for a design: one, or one per disorder realisation.
     pub fn realisations(&self, items: &[Item]) -> Vec<optics::Stack> {
         let exit = match self.substrate {
@@ -307,9 +345,42 @@ impl Scene {
     }
 }
 
+/// A grid written as `{"from", "to", "step"}` or as a list of increasing values.
+/// Resolves the media an effect-pigment `coating` names (its binder and the
+/// platelet's layers) while the scene's `materials` and file loader are at
+/// hand; the section itself is validated by the pigment model.
+fn coating_media(v: &Value, media: &mut media::Registry) -> Result<()> {
+    let o = Obj::new(v, "coating")?;
+    if let Some(name) = o.str("binder")? {
+        media.resolve(name, &o.key("binder"))?;
+    }
+    if let Some(items) = o.get("platelet") {
+        stack::parse_items(items, &o.key("platelet"), media)?;
+    }
+    Ok(())
+}
+
 fn grid(top: &Obj, key: &str, default: Range) -> Result<Vec<f64>> {
     let range = match top.get(key) {
         None => default,
+        Some(Value::Array(xs)) => {
+            let points = xs
+                .iter()
+                .enumerate()
+                .map(|(i, x)| json::number(x, &format!("{key}[{i}]")))
+                .collect::<Result<Vec<f64>>>()?;
+            if points.is_empty() {
+                return Err(Error::invalid(key, "[]", "needs at least one value"));
+            }
+            if let Some(i) = points.windows(2).position(|w| w[1] <= w[0]) {
+                return Err(Error::invalid(
+                    format!("{key}[{}]", i + 1),
+                    points[i + 1],
+                    "values must increase strictly",
+                ));
+            }
+            return Ok(points);
+        }
         Some(v) => {
             let o = Obj::new(v, key)?;
             o.only(&["from", "to", "step"])?;

@@ -196,7 +196,11 @@ fn parse_sigma(o: &Obj) -> Result<Option<Sigma>> {
     Ok(sigma)
 }
 
-pub(super) fn parse_disorder(v: Option<&Value>, items: &[Item]) -> Result<Option<Disorder>> {
+pub(super) fn parse_disorder(
+    v: Option<&Value>,
+    path: &str,
+    items: &[Item],
+) -> Result<Option<Disorder>> {
     let Some(v) = v else {
         let any_own = any_layer(items, &|l| l.sigma.is_some());
         return Ok(any_own.then_some(Disorder {
@@ -205,7 +209,7 @@ pub(super) fn parse_disorder(v: Option<&Value>, items: &[Item]) -> Result<Option
             seed: 1,
         }));
     };
-    let o = Obj::new(v, "disorder")?;
+    let o = Obj::new(v, path)?;
     o.only(&["sigma_nm", "sigma_pct", "realizations", "seed"])?;
     let realizations = o.u64("realizations")?.unwrap_or(32);
     if !(1..=100_000).contains(&realizations) {
@@ -253,7 +257,7 @@ fn expands(r: &Repeat, jittered: bool) -> bool {
 
 /// One node list per realisation: the ideal design when there is no
 /// disorder, otherwise `realizations` seeded random draws.
-pub(super) fn realise(items: &[Item], disorder: Option<&Disorder>) -> Vec<Vec<Node>> {
+pub fn realise(items: &[Item], disorder: Option<&Disorder>) -> Vec<Vec<Node>> {
     match disorder {
         None => vec![emit(items, 1.0, &mut None)],
         Some(d) => {

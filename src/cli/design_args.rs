@@ -1,0 +1,120 @@
+//! Pieces shared by the design commands: target colours, seeds, progress.
+
+use std::io::IsTerminal;
+
+use lamella::angle_colour::Viewing;
+use lamella::colorimetry::{rgb_to_xyz_under, xyz_to_lab};
+
+use super::Failure;
+
+/// A target colour as given on the command line.
+#[derive(Debug, Clone, clap::Args)]
+#[group(required = false, multiple = false)]
+pub struct TargetArgs {
+    /// Target CIELAB colour `L,a,b` (under the scene's illuminant and observer).
+    #[arg(long, value_name = "L,a,b", allow_hyphen_values = true)]
+    pub target_lab: Option<String>,
+    /// Target sRGB colour `#RRGGBB`, converted to CIELAB as `color` renders sRGB
+    /// under the scene's illuminant.
+    #[arg(long, value_name = "#RRGGBB")]
+    pub target_hex: Option<String>,
+}
+
+impl TargetArgs {
+    /// The target's Lab, if one was given.
+    pub fn lab(
+        &self,
+        viewing: &Viewing,
+        wavelengths_nm: &[f64],
+    ) -> Result<Option<[f64; 3]>, Failure> {
+        if let Some(t) = &self.target_lab {
+            return parse_lab(t)
+                .map(Some)
+                .map_err(|e| Failure::input(format!("--target-lab {t}: {e}")));
+        }
+        let Some(hex) = &self.target_hex else {
+            return Ok(None);
+        };
+        let digits = hex.trim_start_matches('#');
+        let bad = || Failure::input(format!("--target-hex {hex}: expected #RRGGBB"));
+        if digits.len() != 6 || !digits.chars().all(|c| c.is_ascii_hexdigit()) {
+            return Err(bad());
+        }
+        let channel = |i: usize| {
+            u8::from_str_radix(&digits[2 * i..2 * i + 2], 16)
+                .map(|v| v as f64 / 255.0)
+                .map_err(|_| bad())
+        };
+        let rgb = [channel(0)?, channel(1)?, channel(2)?];
+        let weights = viewing
+            .weights(wavelengths_nm)
+            .map_err(|e| Failure::input(format!("--target-hex: {e}")))?;
+        let white = weights.white();
+        let xyz = rgb_to_xyz_under(rgb, white, viewing.options.space);
+        Ok(Some(xyz_to_lab(xyz, white)))
+    }
+}
+
+/// `L,a,b` → three finite numbers.
+pub fn parse_lab(text: &str) -> Result<[f64; 3], String> {
+    let v: Vec<f64> = text
+        .split(',')
+        .map(|s| {
+            s.trim()
+                .parse::<f64>()
+                .map_err(|_| format!("`{}` is not a number", s.trim()))
+        })
+        .collect::<Result<_, _>>()?;
+    match v[..] {
+        [l, a, b] if v.iter().all(|x| x.is_finite()) => Ok([l, a, b]),
+        _ => Err("expected three numbers L,a,b".into()),
+    }
+}
+
+/// A progress bar on stderr when it is a terminal; a no-op otherwise.
+pub struct Progress(Option<indicatif::ProgressBar>);
+
+impl Progress {
+    /// A bar counting to `len` (evaluations or samples).
+    pub fn new(len: u64, what: &str) -> Self {
+        if !std::io::stderr().is_terminal() {
+            return Progress(None);
+        }
+        let bar = indicatif::ProgressBar::new(len);
+        if let Ok(style) = indicatif::ProgressStyle::with_template(&format!(
+            "{what} {{bar:30}} {{pos}}/{{len}} {{msg}}"
+        )) {
+            bar.set_style(style);
+        }
+        Progress(Some(bar))
+    }
+
+    /// Moves the bar to `pos` with a message.
+    pub fn set(&self, pos: u64, msg: String) {
+        if let Some(b) = &self.0 {
+            b.set_position(pos);
+            b.set_message(msg);
+        }
+    }
+
+    /// Removes the bar.
+    pub fn finish(&self) {
+        if let Some(b) = &self.0 {
+            b.finish_and_clear();
+        }
+    }
+}
+
+/// Pretty JSON with a trailing newline.
+pub fn json_bytes(v: &serde_json::Value) -> Vec<u8> {
+    let mut s = serde_json::to_string_pretty(v).expect("JSON values serialise");
+    s.push('\n');
+    s.into_bytes()
+}
+
+/// Output format of the design reports.
+#[derive(Debug, Clone, Copy, clap::ValueEnum)]
+pub enum Format {
+    /// One JSON object.
+    Json,
+}

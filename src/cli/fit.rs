@@ -1,0 +1,82 @@
+//! `lamella fit`: fit the `vary_nm` thicknesses to a measured reflectance spectrum.
+
+use std::path::PathBuf;
+use std::time::Instant;
+
+use lamella::design::fit::{FitSettings, fit, parse_measured};
+use lamella::design::search::Budget;
+use lamella::design::variables::edited_document;
+use serde_json::json;
+
+use super::design_args::{Format, json_bytes};
+use super::{CliResult, Failure, load_scene, write_out};
+
+/// Flags of `lamella fit`.
+#[derive(Debug, Clone, clap::Args)]
+pub struct FitArgs {
+    /// Scene file (JSON); layers with `vary_nm: [low, high]` are fitted.
+    pub scene: PathBuf,
+    /// Measured unpolarized reflectance: CSV with a header and columns
+    /// `wavelength_nm,R` (R as a fraction), optionally `angle_deg`.
+    #[arg(long, value_name = "FILE.csv")]
+    pub measured: PathBuf,
+    /// Angle of incidence of rows without an `angle_deg` column, degrees.
+    #[arg(long, default_value_t = 0.0, allow_hyphen_values = true)]
+    pub angle: f64,
+    /// Also fit a multiplicative intensity scale on the model reflectance.
+    #[arg(long)]
+    pub scale: bool,
+    /// Seed of the global search.
+    #[arg(long, default_value_t = 1)]
+    pub seed: u64,
+    /// Most model evaluations in the global search.
+    #[arg(long, default_value_t = 20_000)]
+    pub max_evals: usize,
+    /// Write the scene with the fitted thicknesses here (atomically).
+    #[arg(long, value_name = "FILE")]
+    pub out_scene: PathBuf,
+    /// Report format.
+    #[arg(long, value_enum, default_value = "json")]
+    pub format: Format,
+    /// Write the report here instead of stdout.
+    #[arg(short = 'o', long = "output")]
+    pub output: Option<PathBuf>,
+}
+
+/// Runs the command.
+pub fn run(args: &FitArgs) -> CliResult {
+    let started = Instant::now();
+    let scene = load_scene(&args.scene)?;
+    let text = std::fs::read_to_string(&args.measured)
+        .map_err(|e| Failure::input(format!("{}: cannot read: {e}", args.measured.display())))?;
+    let measured = parse_measured(&text, args.angle)
+        .map_err(|e| Failure::input(format!("{}: {e}", args.measured.display())))?;
+    let settings = FitSettings {
+        fit_scale: args.scale,
+        budget: Budget {
+            max_evals: args.max_evals.max(1),
+            good_enough: 1e-5,
+            handover: 0.0,
+            seed: args.seed,
+        },
+    };
+    let bad = |e: lamella::Error| Failure::input(format!("{}: {e}", args.scene.display()));
+    let out = fit(&scene, &measured, &settings).map_err(bad)?;
+    let doc = edited_document(&scene.document, &out.variables, &out.thicknesses_nm).map_err(bad)?;
+    write_out(Some(&args.out_scene), &[json_bytes(&doc)])?;
+    let report = json!({
+        "rms": out.rms,
+        "points": out.points,
+        "angles_deg": measured.iter().map(|m| m.angle_deg).collect::<Vec<_>>(),
+        "thicknesses_nm": out.variables.iter().zip(&out.thicknesses_nm).zip(&out.uncertainties_nm)
+            .map(|((v, t), u)| json!({
+                "pointer": v.pointer, "material": v.material, "value": t, "uncertainty": u,
+                "low": v.low_nm, "high": v.high_nm,
+            })).collect::<Vec<_>>(),
+        "scale": out.scale.map(|(s, u)| json!({"value": s, "uncertainty": u})),
+        "evaluations": out.evaluations,
+        "wall_time_s": started.elapsed().as_secs_f64(),
+        "seed": args.seed,
+    });
+    write_out(args.output.as_deref(), &[json_bytes(&report)])
+}

@@ -1,0 +1,152 @@
+//! `lamella match`: optimise the `vary_nm` thicknesses toward a target colour.
+
+use std::path::{Path, PathBuf};
+use std::time::Instant;
+
+use lamella::colorimetry::Colour;
+use lamella::design::matching::{Goal, MatchOutcome, MatchSettings, match_colour};
+use lamella::design::search::Budget;
+use lamella::design::variables::edited_document;
+use serde_json::{Value, json};
+
+use super::color::ViewArgs;
+use super::design_args::{Format, Progress, TargetArgs, json_bytes, parse_lab};
+use super::{CliResult, Failure, load_scene, write_out};
+
+/// Flags of `lamella match`.
+#[derive(Debug, Clone, clap::Args)]
+pub struct MatchArgs {
+    /// Scene file (JSON); layers with `vary_nm: [low, high]` are optimised
+    /// (a layer in a repeat group is one variable for all its periods).
+    pub scene: PathBuf,
+    #[command(flatten)]
+    pub target: TargetArgs,
+    /// Angle of incidence of the main target, degrees.
+    #[arg(long, default_value_t = 0.0, allow_hyphen_values = true)]
+    pub angle: f64,
+    /// A further target `ANGLE:L,a,b` (repeatable), to shape the colour travel.
+    #[arg(long = "goal", value_name = "ANGLE:L,a,b", allow_hyphen_values = true)]
+    pub goals: Vec<String>,
+    /// Upper limit on the total physical thickness of the stack, nm.
+    #[arg(long)]
+    pub max_total_nm: Option<f64>,
+    /// Pull toward bright reflectance: adds W·(1 − Y/100) at the main angle
+    /// to the cost, in ΔE00 units (0 = colour only).
+    #[arg(long, default_value_t = 0.0)]
+    pub brightness_weight: f64,
+    /// Seed of the search (same seed, same result).
+    #[arg(long, default_value_t = 1)]
+    pub seed: u64,
+    /// Most design evaluations.
+    #[arg(long, default_value_t = 60_000)]
+    pub max_evals: usize,
+    /// Write the scene with the optimised thicknesses here (atomically).
+    #[arg(long, value_name = "FILE")]
+    pub out_scene: PathBuf,
+    /// Report format.
+    #[arg(long, value_enum, default_value = "json")]
+    pub format: Format,
+    #[command(flatten)]
+    pub view: ViewArgs,
+    /// Write the report here instead of stdout.
+    #[arg(short = 'o', long = "output")]
+    pub output: Option<PathBuf>,
+}
+
+/// Runs the command.
+pub fn run(args: &MatchArgs) -> CliResult {
+    let started = Instant::now();
+    let scene = load_scene(&args.scene)?;
+    let viewing = args.view.viewing(&scene, &args.scene)?;
+    let lab = args
+        .target
+        .lab(&viewing, &scene.wavelengths_nm)?
+        .ok_or_else(|| Failure::input("give --target-lab L,a,b or --target-hex #RRGGBB"))?;
+    let mut goals = vec![Goal {
+        angle_deg: args.angle,
+        lab,
+    }];
+    for g in &args.goals {
+        let bad = |why: String| Failure::input(format!("--goal {g}: {why}"));
+        let (angle, lab) = g
+            .split_once(':')
+            .ok_or_else(|| bad("expected ANGLE:L,a,b".into()))?;
+        let angle_deg = angle
+            .trim()
+            .parse::<f64>()
+            .map_err(|_| bad(format!("`{angle}` is not an angle")))?;
+        goals.push(Goal {
+            angle_deg,
+            lab: parse_lab(lab).map_err(bad)?,
+        });
+    }
+    if let Some(l) = args.max_total_nm.filter(|l| !(*l > 0.0)) {
+        return Err(Failure::input(format!(
+            "--max-total-nm {l}: must be greater than zero"
+        )));
+    }
+    if !args.brightness_weight.is_finite() || args.brightness_weight < 0.0 {
+        return Err(Failure::input(
+            "--brightness-weight: must be a finite number ≥ 0",
+        ));
+    }
+    let settings = MatchSettings {
+        goals,
+        max_total_nm: args.max_total_nm,
+        brightness_weight: args.brightness_weight,
+        budget: Budget {
+            max_evals: args.max_evals.max(1),
+            good_enough: 0.03,
+            handover: 0.5,
+            seed: args.seed,
+        },
+    };
+    let bar = Progress::new(settings.budget.max_evals as u64, "match");
+    let bad = |e: lamella::Error| Failure::input(format!("{}: {e}", args.scene.display()));
+    let out = match_colour(&scene, &viewing, &settings, &|n, best| {
+        bar.set(n as u64, format!("cost {best:.3}"))
+    })
+    .map_err(bad)?;
+    bar.finish();
+    let doc = edited_document(&scene.document, &out.variables, &out.thicknesses_nm).map_err(bad)?;
+    write_out(Some(&args.out_scene), &[json_bytes(&doc)])?;
+    let report = report(&out, args, started.elapsed().as_secs_f64());
+    write_out(args.output.as_deref(), &[json_bytes(&report)])?;
+    if !out.reachable {
+        eprintln!(
+            "lamella: target not reached: closest ΔE00 {:.3} (see the report)",
+            out.goals[0].delta_e00
+        );
+    }
+    Ok(())
+}
+
+fn colour_json(c: &Colour) -> Value {
+    json!({"L": c.lab[0], "a": c.lab[1], "b": c.lab[2], "srgb": c.rgb, "hex": c.hex, "in_gamut": c.in_gamut})
+}
+
+fn report(out: &MatchOutcome, args: &MatchArgs, wall: f64) -> Value {
+    let worst = out.goals.iter().map(|g| g.delta_e00).fold(0.0, f64::max);
+    json!({
+        "scene": args.scene.display().to_string(),
+        "out_scene": Path::new(&args.out_scene).display().to_string(),
+        "delta_e00": out.goals[0].delta_e00,
+        "delta_e00_max": worst,
+        "reachable": out.reachable,
+        "reachable_limit_delta_e00": lamella::design::matching::REACHABLE_DELTA_E,
+        "goals": out.goals.iter().map(|g| json!({
+            "angle_deg": g.goal.angle_deg,
+            "target": {"L": g.goal.lab[0], "a": g.goal.lab[1], "b": g.goal.lab[2]},
+            "achieved": colour_json(&g.achieved),
+            "delta_e00": g.delta_e00,
+        })).collect::<Vec<_>>(),
+        "thicknesses_nm": out.variables.iter().zip(&out.thicknesses_nm).map(|(v, t)| json!({
+            "pointer": v.pointer, "material": v.material, "value": t,
+            "low": v.low_nm, "high": v.high_nm,
+        })).collect::<Vec<_>>(),
+        "total_thickness_nm": out.total_nm,
+        "evaluations": out.evaluations,
+        "wall_time_s": wall,
+        "seed": args.seed,
+    })
+}

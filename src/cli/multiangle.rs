@@ -1,0 +1,268 @@
+//! `lamella multiangle`: the colour of an effect-pigment coating at the
+//! multi-angle geometries, with the flop index and the hue travel.
+
+use std::io::IsTerminal;
+use std::path::{Path, PathBuf};
+
+use lamella::pigment::{Coating, Measurement, Model, measure, parse_name};
+use serde_json::{Value, json};
+
+use super::color::ViewArgs;
+use super::{CliResult, Failure, RecordFormat, load_scene, write_out};
+
+/// The scene's `coating` keys and the output keys, shown by `--help`.
+pub const HELP: &str = "\
+Scene `coating` keys:
+  binder             material name of the clear binder (lossless, n ≥ 1; e.g. define
+                     {\"n\": 1.5} under `materials`)
+  platelet           the platelet's layers, same syntax as `stack` (repeat, vary_nm,
+                     sigma_nm / sigma_pct for an uneven core)
+  disorder           {realizations, seed, sigma_nm | sigma_pct} for the platelet layers
+  tilt_sigma_deg     Gaussian spread of platelet normals (density per solid angle
+                     ∝ exp(−tilt²/2σ²)), 0.05–60; default 10
+  tilt_density       instead: [[tilt_deg, weight], …] density per solid angle from 0°
+  platelet_coverage  platelet area per unit coating area, 0–20; default 1
+  background         \"black\" (default), \"white\", {\"reflectance\": 0–1} or
+                     {\"reflectance\": [[nm, R], …]} (Lambertian)
+  geometries         \"45\" (default: 45as-15, 45as15, 45as25, 45as45, 45as75, 45as110),
+                     \"15\" (15as-45, 15as-15, 15as15, 15as25, 15as45, 15as80), a name
+                     ILLUMINATIONasASPECULAR, or a list of names, sets and objects
+                     {illumination_deg, aspecular_deg, name?} (in-plane) or
+                     {illumination_deg, detection_deg, detection_azimuth_deg, name?}
+                     (any pair; azimuth 0 = specular side, 180 = illumination side)
+  notes              free text
+Geometry names: 45as15 = illumination 45° from the normal, detection 15° from the
+specular direction toward the normal (30° on the specular side); 45as-15 detects at
+60°; 45as110 at 65° on the illumination side.
+Output per geometry: name, illumination_deg, aspecular_deg, in_plane, X, Y, Z, L, a, b,
+C, h, srgb, hex, in_gamut, reflectance_factor (with --spectra). Also flop_index =
+2.69 (L*15 − L*110)^1.11 / (L*45)^0.86 from 45as15, 45as45, 45as110 (null with
+flop_note otherwise), hue_travel_deg (net hue change along the listed geometries) and
+surface_gloss_Y (the binder surface's mirror reflection, excluded from every geometry).
+Reflectance factor: radiance relative to a perfect white diffuser under the same
+geometry (Y = 100 for the perfect diffuser).";
+
+/// Flags of the command.
+#[derive(Debug, Clone, clap::Args)]
+pub struct Args {
+    /// Include the reflectance factor spectrum of each geometry (JSON key
+    /// `reflectance_factor`; CSV columns `rf_<wavelength>`).
+    #[arg(long)]
+    pub spectra: bool,
+    /// Geometries to use instead of the scene's `coating.geometries`:
+    /// comma-separated set names (45 = 45as-15,15,25,45,75,110;
+    /// 15 = 15as-45,-15,15,25,45,80) and names ILLUMINATIONasASPECULAR,
+    /// e.g. `45as15,45as110` (aspecular angle positive toward the normal).
+    #[arg(long, allow_hyphen_values = true)]
+    pub geometries: Option<String>,
+    /// Illuminant name (D65, D50, A, E, F2, F7, F11, LED-B1…LED-V2) or a
+    /// `wavelength_nm,power` CSV file; overrides the scene.
+    #[arg(long)]
+    pub illuminant: Option<String>,
+    /// Observer (CIE1931_2 or CIE1964_10); overrides the scene.
+    #[arg(long)]
+    pub observer: Option<String>,
+    /// Out-of-gamut colours: clip each channel, or reduce chroma at constant
+    /// CIELAB lightness and hue.
+    #[arg(long, default_value = "clip", value_parser = ["clip", "chroma"])]
+    pub gamut: String,
+}
+
+/// Runs the command.
+pub fn run(
+    scene_path: &Path,
+    format: RecordFormat,
+    args: &Args,
+    out: Option<&PathBuf>,
+) -> CliResult {
+    let bad = |e: lamella::Error| Failure::input(format!("{}: {e}", scene_path.display()));
+    let mut scene = load_scene(scene_path)?;
+    let mut coating = Coating::from_scene(&mut scene).map_err(bad)?;
+    if let Some(list) = &args.geometries {
+        coating.geometries = list
+            .split(',')
+            .map(|t| parse_name(t, "--geometries"))
+            .collect::<Result<Vec<_>, _>>()
+            .map_err(|e| Failure::input(e.to_string()))?
+            .concat();
+    }
+    let view = ViewArgs {
+        side: "reflect".into(),
+        illuminant: args.illuminant.clone(),
+        observer: args.observer.clone(),
+        polarization: "unpolarized".into(),
+        gamut: args.gamut.clone(),
+    };
+    let viewing = view.viewing(&scene, scene_path)?;
+    let weights = viewing.weights(&scene.wavelengths_nm).map_err(bad)?;
+    let model = Model::new(&scene, &coating).map_err(bad)?;
+    let m = measure(&model, &coating.geometries, &weights, &viewing.options);
+    let text = match format {
+        RecordFormat::Json => {
+            let mut doc = json!({
+                "title": scene.title,
+                "illuminant": viewing.illuminant.name(),
+                "observer": viewing.observer.name(),
+                "geometries": records(&m, args.spectra),
+                "flop_index": m.flop_index,
+                "flop_note": m.flop_note,
+                "hue_travel_deg": m.hue_travel_deg,
+                "surface_gloss_Y": m.surface_gloss_y.iter()
+                    .map(|(a, y)| json!({"illumination_deg": a, "Y": y}))
+                    .collect::<Vec<_>>(),
+            });
+            if args.spectra {
+                doc["wavelength_nm"] = json!(scene.wavelengths_nm);
+            }
+            serde_json::to_string_pretty(&doc).expect("records serialise") + "\n"
+        }
+        RecordFormat::Csv => csv(&m, &scene.wavelengths_nm, args.spectra),
+        RecordFormat::Table => table(
+            &scene.title,
+            &m,
+            viewing.illuminant.name(),
+            viewing.observer.name(),
+            out.is_none() && std::io::stdout().is_terminal(),
+        ),
+    };
+    write_out(out.map(PathBuf::as_path), &[text.into_bytes()])
+}
+
+/// Record keys in output order (`srgb` is three columns in CSV).
+const KEYS: [&str; 16] = [
+    "name",
+    "illumination_deg",
+    "aspecular_deg",
+    "in_plane",
+    "X",
+    "Y",
+    "Z",
+    "L",
+    "a",
+    "b",
+    "C",
+    "h",
+    "srgb",
+    "hex",
+    "in_gamut",
+    "reflectance_factor",
+];
+
+fn records(m: &Measurement, spectra: bool) -> Vec<Value> {
+    m.geometries
+        .iter()
+        .map(|g| {
+            let c = &g.colour;
+            let mut r = json!({
+                "name": g.geometry.name,
+                "illumination_deg": g.geometry.illumination_deg,
+                "aspecular_deg": g.geometry.aspecular_deg,
+                "in_plane": g.geometry.in_plane,
+                "X": c.xyz[0], "Y": c.xyz[1], "Z": c.xyz[2],
+                "L": c.lab[0], "a": c.lab[1], "b": c.lab[2],
+                "C": c.lch[1], "h": c.lch[2],
+                "srgb": c.rgb, "hex": c.hex, "in_gamut": c.in_gamut,
+            });
+            if spectra {
+                r["reflectance_factor"] = json!(g.reflectance_factor);
+            }
+            r
+        })
+        .collect()
+}
+
+fn csv(m: &Measurement, wavelengths: &[f64], spectra: bool) -> String {
+    let mut header: Vec<String> = Vec::new();
+    for k in &KEYS[..KEYS.len() - 1] {
+        if *k == "srgb" {
+            header.extend(["srgb_r", "srgb_g", "srgb_b"].map(String::from));
+        } else {
+            header.push(k.to_string());
+        }
+    }
+    if spectra {
+        header.extend(wavelengths.iter().map(|w| format!("rf_{w}")));
+    }
+    let mut out = header.join(",") + "\n";
+    for (r, g) in records(m, false).iter().zip(&m.geometries) {
+        let mut cells: Vec<String> = KEYS[..KEYS.len() - 1]
+            .iter()
+            .flat_map(|k| match &r[*k] {
+                Value::Array(xs) => xs.iter().map(Value::to_string).collect(),
+                Value::String(s) => vec![s.clone()],
+                other => vec![other.to_string()],
+            })
+            .collect();
+        if spectra {
+            cells.extend(g.reflectance_factor.iter().map(f64::to_string));
+        }
+        out.push_str(&cells.join(","));
+        out.push('\n');
+    }
+    out
+}
+
+fn table(title: &str, m: &Measurement, illuminant: &str, observer: &str, swatches: bool) -> String {
+    let mut out = format!(
+        "{}\n{illuminant}, {observer}; reflectance factor relative to the perfect diffuser (Y = 100), surface gloss excluded\n\n",
+        if title.is_empty() {
+            "(untitled scene)"
+        } else {
+            title
+        },
+    );
+    out.push_str(&format!(
+        "{:<12} {:>8} {:>7} {:>7} {:>7} {:>7} {:>7} {:>7}  {:<7} {:>5}  {}\n",
+        "geometry",
+        "Y",
+        "L*",
+        "a*",
+        "b*",
+        "C*",
+        "h°",
+        "as°",
+        "hex",
+        "gamut",
+        if swatches { "swatch" } else { "" }
+    ));
+    for g in &m.geometries {
+        let c = &g.colour;
+        let [red, green, blue] = c.rgb.map(|x| (x * 255.0).round() as u8);
+        let swatch = if swatches {
+            format!("\x1b[48;2;{red};{green};{blue}m        \x1b[0m")
+        } else {
+            String::new()
+        };
+        out.push_str(&format!(
+            "{:<12} {:>8.2} {:>7.2} {:>7.2} {:>7.2} {:>7.2} {:>7.1} {:>7.1}  {:<7} {:>5}  {swatch}\n",
+            g.geometry.name,
+            c.xyz[1],
+            c.lab[0],
+            c.lab[1],
+            c.lab[2],
+            c.lch[1],
+            c.lch[2],
+            g.geometry.aspecular_deg,
+            c.hex,
+            if c.in_gamut { "in" } else { "OUT" },
+        ));
+    }
+    out.push('\n');
+    match (m.flop_index, &m.flop_note) {
+        (Some(f), _) => out.push_str(&format!("flop index: {f:.2}\n")),
+        (None, Some(note)) => out.push_str(&format!("flop index: {note}\n")),
+        (None, None) => {}
+    }
+    if let Some(h) = m.hue_travel_deg {
+        out.push_str(&format!("hue travel across the geometries: {h:+.1}°\n"));
+    }
+    for (a, y) in &m.surface_gloss_y {
+        out.push_str(&format!(
+            "surface gloss at {a}° illumination (excluded above): Y = {y:.2}\n"
+        ));
+    }
+    if m.geometries.iter().any(|g| !g.colour.in_gamut) {
+        out.push_str("OUT: outside the sRGB gamut; the swatch and hex are an approximation.\n");
+    }
+    out
+}

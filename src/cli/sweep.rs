@@ -1,0 +1,88 @@
+//! `lamella sweep`: evaluate many designs over the `vary_nm` ranges, one
+//! JSON line each.
+
+use std::path::PathBuf;
+
+use lamella::design::evaluator::Evaluator;
+use lamella::design::sweep::{Plan, lines, shard};
+use lamella::design::variables::varying;
+
+use super::color::ViewArgs;
+use super::design_args::TargetArgs;
+use super::{CliResult, Failure, load_scene, write_out};
+
+/// Flags of `lamella sweep`.
+///
+/// Each line: `index` (the design's number in the whole sweep),
+/// `thicknesses_nm` (one per `vary_nm` layer, document order), `L`, `a`,
+/// `b`, `srgb`, `hex`, and `delta_e00` to the target when one is given.
+/// Design i is the same in every run (grid order, or the seeded stream), so
+/// `--shard I/N` (I from 1 to N) evaluates the I-th of N contiguous shares
+/// and the shard files concatenated in order equal the whole sweep.
+#[derive(Debug, Clone, clap::Args)]
+#[command(group(clap::ArgGroup::new("plan").required(true).args(["samples", "grid"])))]
+pub struct SweepArgs {
+    /// Scene file (JSON).
+    pub scene: PathBuf,
+    /// Number of uniform random designs.
+    #[arg(long)]
+    pub samples: Option<u64>,
+    /// Points per variable of a full grid (bounds included).
+    #[arg(long)]
+    pub grid: Option<usize>,
+    #[command(flatten)]
+    pub target: TargetArgs,
+    /// Angle of incidence, degrees.
+    #[arg(long, default_value_t = 0.0, allow_hyphen_values = true)]
+    pub angle: f64,
+    /// Seed of the random designs.
+    #[arg(long, default_value_t = 1)]
+    pub seed: u64,
+    /// Evaluate only share I of N (1 ≤ I ≤ N), e.g. from a job-array index.
+    #[arg(long, value_name = "I/N")]
+    pub shard: Option<String>,
+    #[command(flatten)]
+    pub view: ViewArgs,
+    /// Write the JSON lines here (atomically) instead of stdout.
+    #[arg(short = 'o', long = "output")]
+    pub output: Option<PathBuf>,
+}
+
+/// Runs the command.
+pub fn run(args: &SweepArgs) -> CliResult {
+    let scene = load_scene(&args.scene)?;
+    let viewing = args.view.viewing(&scene, &args.scene)?;
+    let target = args.target.lab(&viewing, &scene.wavelengths_nm)?;
+    let bad = |e: lamella::Error| Failure::input(format!("{}: {e}", args.scene.display()));
+    let vars = varying(&scene);
+    let plan = match (args.samples, args.grid) {
+        (Some(samples), _) => Plan::Random {
+            samples,
+            seed: args.seed,
+        },
+        (_, Some(k)) => Plan::Grid(k),
+        _ => unreachable!("clap requires one of them"),
+    };
+    let total = plan
+        .count(vars.len())
+        .map_err(|e| Failure::input(format!("--{e}")))?;
+    let range = match &args.shard {
+        None => 0..total,
+        Some(s) => {
+            let parsed = s
+                .split_once('/')
+                .and_then(|(i, n)| Some((i.trim().parse().ok()?, n.trim().parse().ok()?)));
+            let (i, n) =
+                parsed.ok_or_else(|| Failure::input(format!("--shard {s}: expected I/N")))?;
+            shard(total, i, n).map_err(|e| Failure::input(format!("--{e}")))?
+        }
+    };
+    if !(args.angle.abs() < 90.0) {
+        return Err(Failure::input(format!(
+            "--angle {}: must lie below 90°",
+            args.angle
+        )));
+    }
+    let eval = Evaluator::colour(&scene, vars, &[args.angle], &viewing).map_err(bad)?;
+    write_out(args.output.as_deref(), &lines(&eval, plan, range, target))
+}

@@ -1,0 +1,283 @@
+//! Fast evaluation of many designs of one scene: the per-medium terms of
+//! every (angle, wavelength) are computed once; each design only rewrites the
+//! layer thicknesses of a reused stack and runs the transfer matrices.
+
+use std::f64::consts::PI;
+use std::sync::Mutex;
+
+use num_complex::Complex64;
+
+use super::variables::{Variable, with_thicknesses};
+use crate::angle_colour::{Polarization, Side, Viewing};
+use crate::colorimetry::{ColourOptions, Weights};
+use crate::error::Result;
+use crate::optics::{MediumTerms, Node, Stack};
+use crate::scene::Scene;
+
+/// A layer node's thickness as a function of the variables: `base + coef·x[var]`.
+#[derive(Debug, Clone, Copy)]
+struct Slot {
+    base: f64,
+    var: Option<(usize, f64)>,
+}
+
+/// The ideal (single-realisation) design: a stack template whose layer
+/// thicknesses are affine in the variables (repeats and grading only scale
+/// thicknesses), so a design is written in by one pass over its layers.
+#[derive(Debug, Clone)]
+struct Fast {
+    stack: Stack,
+    slots: Vec<Slot>,
+}
+
+/// Buffers one thread reuses between designs.
+pub struct Workspace {
+    stack: Option<Stack>,
+    terms: Vec<MediumTerms>,
+    spectrum: Vec<f64>,
+    xyz: Vec<[f64; 3]>,
+}
+
+/// The results of one evaluation.
+pub struct Output<'a> {
+    /// Reflectance or transmittance (as viewed), angle-major: `[a * nw + w]`.
+    pub spectrum: &'a [f64],
+    /// X, Y, Z per angle (0–100), when the evaluator has colour weights.
+    pub xyz: &'a [[f64; 3]],
+}
+
+/// Evaluates designs of one scene on a fixed wavelength grid and angle list.
+pub struct Evaluator {
+    scene: Scene,
+    vars: Vec<Variable>,
+    index: Vec<Vec<Complex64>>,
+    wavelengths_nm: Vec<f64>,
+    angles_deg: Vec<f64>,
+    beta: Vec<f64>,
+    k0: Vec<f64>,
+    terms: Vec<MediumTerms>,
+    side: Side,
+    polarization: Polarization,
+    colour: Option<(Weights, ColourOptions)>,
+    fast: Option<Fast>,
+    pool: Mutex<Vec<Workspace>>,
+}
+
+impl Evaluator {
+    /// Spectra of the designs on `wavelengths_nm` at `angles_deg`.
+    pub fn spectral(
+        scene: &Scene,
+        vars: Vec<Variable>,
+        wavelengths_nm: &[f64],
+        angles_deg: &[f64],
+        side: Side,
+        polarization: Polarization,
+    ) -> Result<Self> {
+        let index = scene.indices(wavelengths_nm)?;
+        let nw = wavelengths_nm.len();
+        let nm = index.len();
+        let mut beta = Vec::with_capacity(angles_deg.len() * nw);
+        let mut terms = Vec::with_capacity(angles_deg.len() * nw * nm);
+        for a in angles_deg {
+            for w in 0..nw {
+                let b = index[scene.incident][w].re * a.to_radians().sin();
+                beta.push(b);
+                terms.extend(index.iter().map(|n| MediumTerms::new(n[w], b)));
+            }
+        }
+        let fast = scene
+            .disorder
+            .is_none()
+            .then(|| fast_template(scene, &vars));
+        Ok(Evaluator {
+            scene: scene.clone(),
+            vars,
+            index,
+            wavelengths_nm: wavelengths_nm.to_vec(),
+            angles_deg: angles_deg.to_vec(),
+            beta,
+            k0: wavelengths_nm.iter().map(|w| 2.0 * PI / w).collect(),
+            terms,
+            side,
+            polarization,
+            colour: None,
+            fast,
+            pool: Mutex::new(Vec::new()),
+        })
+    }
+
+    /// Colours of the designs on the scene's wavelength grid at `angles_deg`,
+    /// as `viewing` sees them.
+    pub fn colour(
+        scene: &Scene,
+        vars: Vec<Variable>,
+        angles_deg: &[f64],
+        viewing: &Viewing,
+    ) -> Result<Self> {
+        let weights = viewing.weights(&scene.wavelengths_nm)?;
+        let mut e = Evaluator::spectral(
+            scene,
+            vars,
+            &scene.wavelengths_nm,
+            angles_deg,
+            viewing.side,
+            viewing.polarization,
+        )?;
+        e.colour = Some((weights, viewing.options));
+        Ok(e)
+    }
+
+    /// The variables, in the order of `x`.
+    pub fn variables(&self) -> &[Variable] {
+        &self.vars
+    }
+
+    /// The angles evaluated.
+    pub fn angles_deg(&self) -> &[f64] {
+        &self.angles_deg
+    }
+
+    /// The scene the designs belong to.
+    pub fn scene(&self) -> &Scene {
+        &self.scene
+    }
+
+    /// The reference white (X, Y, Z) and RGB options of a colour evaluator.
+    pub fn white(&self) -> Option<([f64; 3], ColourOptions)> {
+        self.colour.as_ref().map(|(w, o)| (w.white(), *o))
+    }
+
+    /// Evaluates the design with thicknesses `x` (nm, one per variable) and,
+    /// when `dn` is given, the real index of medium m shifted by `dn[m]`
+    /// (never the incident medium's); hands the results to `f`.
+    /// Buffers are taken from a shared pool; hot loops that own a
+    /// [`Workspace`] call [`Evaluator::eval_in`] instead.
+    pub fn eval<R>(&self, x: &[f64], dn: Option<&[f64]>, f: impl FnOnce(&Output) -> R) -> R {
+        let mut ws = self
+            .pool
+            .lock()
+            .expect("pool lock")
+            .pop()
+            .unwrap_or_else(|| self.workspace());
+        let r = self.eval_in(&mut ws, x, dn, f);
+        self.pool.lock().expect("pool lock").push(ws);
+        r
+    }
+
+    /// [`Evaluator::eval`] with the caller's buffers.
+    pub fn eval_in<R>(
+        &self,
+        ws: &mut Workspace,
+        x: &[f64],
+        dn: Option<&[f64]>,
+        f: impl FnOnce(&Output) -> R,
+    ) -> R {
+        self.fill(x, dn, ws);
+        f(&Output {
+            spectrum: &ws.spectrum,
+            xyz: &ws.xyz,
+        })
+    }
+
+    /// Fresh buffers for [`Evaluator::eval_in`].
+    pub fn workspace(&self) -> Workspace {
+        Workspace {
+            stack: self.fast.as_ref().map(|f| f.stack.clone()),
+            terms: Vec::with_capacity(self.index.len()),
+            spectrum: vec![0.0; self.angles_deg.len() * self.wavelengths_nm.len()],
+            xyz: vec![[0.0; 3]; self.angles_deg.len()],
+        }
+    }
+
+    fn fill(&self, x: &[f64], dn: Option<&[f64]>, ws: &mut Workspace) {
+        let nw = self.wavelengths_nm.len();
+        let nm = self.index.len();
+        let ensemble;
+        let stacks: &[Stack] = match (&self.fast, &mut ws.stack) {
+            (Some(fast), Some(stack)) => {
+                let mut i = 0;
+                for_each_thickness(&mut stack.nodes, &mut |t| {
+                    let s = fast.slots[i];
+                    *t = s.base + s.var.map_or(0.0, |(v, c)| c * x[v]);
+                    i += 1;
+                });
+                std::slice::from_ref(stack)
+            }
+            _ => {
+                let items = with_thicknesses(&self.scene.stack, &self.vars, x);
+                ensemble = self.scene.realisations(&items);
+                &ensemble
+            }
+        };
+        let weight = 1.0 / stacks.len() as f64;
+        for a in 0..self.angles_deg.len() {
+            for w in 0..nw {
+                let at = a * nw + w;
+                let fixed = &self.terms[at * nm..(at + 1) * nm];
+                let terms = match dn {
+                    None => fixed,
+                    Some(dn) => {
+                        ws.terms.clear();
+                        ws.terms.extend(fixed.iter().enumerate().map(|(m, t)| {
+                            if dn[m] == 0.0 {
+                                *t
+                            } else {
+                                let n = self.index[m][w] + dn[m];
+                                MediumTerms::new(n, self.beta[at])
+                            }
+                        }));
+                        &ws.terms
+                    }
+                };
+                let k0 = self.k0[w];
+                ws.spectrum[at] = stacks
+                    .iter()
+                    .map(|s| self.polarization.of(&s.rt(terms, k0), self.side))
+                    .sum::<f64>()
+                    * weight;
+            }
+        }
+        if let Some((weights, _)) = &self.colour {
+            for (a, xyz) in ws.xyz.iter_mut().enumerate() {
+                *xyz = weights.xyz(&ws.spectrum[a * nw..(a + 1) * nw]);
+            }
+        }
+    }
+}
+
+/// Visits every layer thickness of `nodes` in depth-first order.
+fn for_each_thickness(nodes: &mut [Node], f: &mut dyn FnMut(&mut f64)) {
+    for n in nodes {
+        match n {
+            Node::Layer { thickness_nm, .. } => f(thickness_nm),
+            Node::Repeat { nodes, .. } => for_each_thickness(nodes, f),
+        }
+    }
+}
+
+/// The ideal stack with each layer's thickness as an affine function of the
+/// variables, found by expanding the design with every variable at zero and
+/// then with each variable at one (expansion is linear in the thicknesses).
+fn fast_template(scene: &Scene, vars: &[Variable]) -> Fast {
+    let thicknesses = |x: &[f64]| {
+        let mut stack = scene
+            .realisations(&with_thicknesses(&scene.stack, vars, x))
+            .swap_remove(0);
+        let mut out = Vec::new();
+        for_each_thickness(&mut stack.nodes, &mut |t| out.push(*t));
+        (stack, out)
+    };
+    let zero = vec![0.0; vars.len()];
+    let (stack, base) = thicknesses(&zero);
+    let mut slots: Vec<Slot> = base.iter().map(|&b| Slot { base: b, var: None }).collect();
+    for v in 0..vars.len() {
+        let mut unit = zero.clone();
+        unit[v] = 1.0;
+        for (slot, t) in slots.iter_mut().zip(thicknesses(&unit).1) {
+            if t != slot.base {
+                slot.var = Some((v, t - slot.base));
+            }
+        }
+    }
+    Fast { stack, slots }
+}

@@ -1,0 +1,349 @@
+//! Fitting the `vary_nm` thicknesses (and optionally an intensity scale) to a
+//! measured reflectance spectrum by least squares: a seeded global search
+//! against the interference fringes' local minima, then Levenberg–Marquardt
+//! with uncertainties from the Jacobian.
+
+use super::evaluator::Evaluator;
+use super::search::{self, Budget};
+use super::variables::{Variable, varying};
+use crate::angle_colour::{Polarization, Side};
+use crate::error::{Error, Result};
+use crate::scene::Scene;
+
+/// Measured reflectance at one angle.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Measured {
+    /// Angle of incidence in degrees.
+    pub angle_deg: f64,
+    /// Wavelengths in nm.
+    pub wavelengths_nm: Vec<f64>,
+    /// Reflectance as a fraction.
+    pub r: Vec<f64>,
+}
+
+/// Reads `wavelength_nm,R[,angle_deg]` CSV (columns in any order, a header
+/// line first); rows without an angle column are at `default_angle`.
+pub fn parse_measured(text: &str, default_angle: f64) -> Result<Vec<Measured>> {
+    let mut lines = text
+        .lines()
+        .enumerate()
+        .filter(|(_, l)| !l.trim().is_empty() && !l.trim_start().starts_with('#'));
+    let (_, header) = lines
+        .next()
+        .ok_or_else(|| Error::invalid("measured", "(empty)", "no header line"))?;
+    let names: Vec<String> = header.split(',').map(|h| h.trim().to_string()).collect();
+    let col = |name: &str| names.iter().position(|h| h.eq_ignore_ascii_case(name));
+    let wl = col("wavelength_nm")
+        .ok_or_else(|| Error::invalid("measured", header, "needs a wavelength_nm column"))?;
+    let r = col("R").ok_or_else(|| Error::invalid("measured", header, "needs an R column"))?;
+    let angle = col("angle_deg");
+    let mut groups: Vec<Measured> = Vec::new();
+    for (i, line) in lines {
+        let cells: Vec<&str> = line.split(',').map(str::trim).collect();
+        let num = |c: usize, what: &str| -> Result<f64> {
+            let key = format!("measured line {}", i + 1);
+            let cell = cells
+                .get(c)
+                .ok_or_else(|| Error::invalid(&key, line, format!("missing {what}")))?;
+            cell.parse::<f64>()
+                .ok()
+                .filter(|v| v.is_finite())
+                .ok_or_else(|| Error::invalid(&key, cell, format!("{what} is not a number")))
+        };
+        let (w, rv) = (num(wl, "wavelength_nm")?, num(r, "R")?);
+        let a = angle.map_or(Ok(default_angle), |c| num(c, "angle_deg"))?;
+        if w <= 0.0 || !(a.abs() < 90.0) {
+            return Err(Error::invalid(
+                format!("measured line {}", i + 1),
+                line,
+                "needs wavelength > 0 and |angle| < 90°",
+            ));
+        }
+        match groups.iter_mut().find(|g| g.angle_deg == a) {
+            Some(g) => {
+                g.wavelengths_nm.push(w);
+                g.r.push(rv);
+            }
+            None => groups.push(Measured {
+                angle_deg: a,
+                wavelengths_nm: vec![w],
+                r: vec![rv],
+            }),
+        }
+    }
+    if groups.is_empty() {
+        return Err(Error::invalid("measured", "(no rows)", "no data rows"));
+    }
+    Ok(groups)
+}
+
+/// How to fit.
+#[derive(Debug, Clone, Copy)]
+pub struct FitSettings {
+    /// Also fit a multiplicative intensity scale on the model.
+    pub fit_scale: bool,
+    /// Budget and seed of the global stage.
+    pub budget: Budget,
+}
+
+/// The fitted design.
+#[derive(Debug, Clone)]
+pub struct FitOutcome {
+    /// The variables, in the order of the thicknesses.
+    pub variables: Vec<Variable>,
+    /// Fitted thickness of each variable, nm.
+    pub thicknesses_nm: Vec<f64>,
+    /// Approximate 1σ uncertainty of each, nm (`None` when not determined).
+    pub uncertainties_nm: Vec<Option<f64>>,
+    /// Fitted scale and its 1σ uncertainty, when fitted.
+    pub scale: Option<(f64, Option<f64>)>,
+    /// Root-mean-square residual in reflectance.
+    pub rms: f64,
+    /// Number of measured points.
+    pub points: usize,
+    /// Model evaluations spent.
+    pub evaluations: usize,
+}
+
+/// Fits the scene's `vary_nm` thicknesses to `measured` (unpolarized reflectance).
+pub fn fit(scene: &Scene, measured: &[Measured], settings: &FitSettings) -> Result<FitOutcome> {
+    let vars = varying(scene);
+    if vars.is_empty() {
+        return Err(Error::invalid(
+            "stack",
+            "(no vary_nm)",
+            "mark the layers to fit with \"vary_nm\": [low, high]",
+        ));
+    }
+    let models = measured
+        .iter()
+        .map(|m| {
+            Evaluator::spectral(
+                scene,
+                vars.clone(),
+                &m.wavelengths_nm,
+                &[m.angle_deg],
+                Side::Reflect,
+                Polarization::Unpolarized,
+            )
+        })
+        .collect::<Result<Vec<_>>>()?;
+    let data: Vec<f64> = measured.iter().flat_map(|m| m.r.iter().copied()).collect();
+    let points = data.len();
+    let count = std::sync::atomic::AtomicUsize::new(0);
+    let model = |x: &[f64]| -> Vec<f64> {
+        count.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+        let mut out = Vec::with_capacity(points);
+        for m in &models {
+            m.eval(x, None, |o| out.extend_from_slice(o.spectrum));
+        }
+        out
+    };
+    // Best scale for a model spectrum: linear least squares in closed form.
+    let best_scale = |r: &[f64]| {
+        let num: f64 = r.iter().zip(&data).map(|(a, b)| a * b).sum();
+        let den: f64 = r.iter().map(|a| a * a).sum();
+        if settings.fit_scale && den > 0.0 {
+            num / den
+        } else {
+            1.0
+        }
+    };
+    let sse =
+        |r: &[f64], s: f64| -> f64 { r.iter().zip(&data).map(|(a, b)| (s * a - b).powi(2)).sum() };
+    let to_x = |u: &[f64]| -> Vec<f64> {
+        vars.iter()
+            .zip(u)
+            .map(|(v, u)| v.low_nm + u * (v.high_nm - v.low_nm))
+            .collect()
+    };
+    let rms_at = |u: &[f64]| {
+        let r = model(&to_x(u));
+        (sse(&r, best_scale(&r)) / points as f64).sqrt()
+    };
+    let found = search::minimise(&rms_at, vars.len(), settings.budget, &|_, _| {});
+    // Levenberg–Marquardt on (thicknesses, scale).
+    let mut p = to_x(&found.u);
+    p.push(best_scale(&model(&p)));
+    let lm = levenberg_marquardt(&vars, settings.fit_scale, p, &|p: &[f64]| {
+        let r = model(&p[..vars.len()]);
+        r.iter()
+            .zip(&data)
+            .map(|(a, b)| p[vars.len()] * a - b)
+            .collect()
+    });
+    let n = vars.len();
+    let rms = (lm.sse / points as f64).sqrt();
+    Ok(FitOutcome {
+        thicknesses_nm: lm.p[..n].to_vec(),
+        uncertainties_nm: lm.sigma[..n].to_vec(),
+        scale: settings.fit_scale.then(|| (lm.p[n], lm.sigma[n])),
+        variables: vars,
+        rms,
+        points,
+        evaluations: found.evaluations + count.load(std::sync::atomic::Ordering::Relaxed),
+    })
+}
+
+struct LmResult {
+    p: Vec<f64>,
+    sse: f64,
+    sigma: Vec<Option<f64>>,
+}
+
+/// Levenberg–Marquardt (Marquardt, "An algorithm for least-squares estimation
+/// of nonlinear parameters", J. SIAM 11, 431, 1963) with steps clipped to the
+/// bounds and a forward-difference Jacobian; the last parameter is the scale,
+/// held fixed unless `fit_scale`. Uncertainties: the covariance
+/// s²(JᵀJ)⁻¹ with s² = SSE/(m − p) (Press et al., *Numerical Recipes*, 3rd ed.
+/// 2007, §15.5), for parameters not sitting on a bound.
+fn levenberg_marquardt(
+    vars: &[Variable],
+    fit_scale: bool,
+    mut p: Vec<f64>,
+    residuals: &dyn Fn(&[f64]) -> Vec<f64>,
+) -> LmResult {
+    let free: Vec<usize> = (0..vars.len())
+        .filter(|&i| vars[i].high_nm > vars[i].low_nm)
+        .chain(fit_scale.then_some(vars.len()))
+        .collect();
+    let clamp = |i: usize, v: f64| {
+        if i < vars.len() {
+            v.clamp(vars[i].low_nm, vars[i].high_nm)
+        } else {
+            v
+        }
+    };
+    let sse_of = |r: &[f64]| r.iter().map(|v| v * v).sum::<f64>();
+    let mut r = residuals(&p);
+    let mut sse = sse_of(&r);
+    let mut lambda = 1e-3;
+    let jacobian = |p: &[f64], r: &[f64]| -> Vec<Vec<f64>> {
+        free.iter()
+            .map(|&i| {
+                let h = if i < vars.len() { 1e-3 } else { 1e-6 };
+                let mut q = p.to_vec();
+                let sign = if i < vars.len() && q[i] + h > vars[i].high_nm {
+                    -1.0
+                } else {
+                    1.0
+                };
+                q[i] += sign * h;
+                residuals(&q)
+                    .iter()
+                    .zip(r)
+                    .map(|(a, b)| (a - b) / (sign * h))
+                    .collect()
+            })
+            .collect()
+    };
+    let normal = |j: &[Vec<f64>], r: &[f64]| {
+        let k = j.len();
+        let mut a = vec![vec![0.0; k]; k];
+        let mut g = vec![0.0; k];
+        for x in 0..k {
+            for y in 0..=x {
+                let v: f64 = j[x].iter().zip(&j[y]).map(|(a, b)| a * b).sum();
+                a[x][y] = v;
+                a[y][x] = v;
+            }
+            g[x] = -j[x].iter().zip(r).map(|(a, b)| a * b).sum::<f64>();
+        }
+        (a, g)
+    };
+    for _ in 0..50 {
+        let j = jacobian(&p, &r);
+        let (a, g) = normal(&j, &r);
+        let mut improved = false;
+        while lambda < 1e12 {
+            let mut damped = a.clone();
+            for (i, row) in damped.iter_mut().enumerate() {
+                row[i] += lambda * a[i][i].max(1e-12);
+            }
+            let Some(step) = solve(damped, g.clone()) else {
+                lambda *= 10.0;
+                continue;
+            };
+            let mut q = p.clone();
+            for (k, &i) in free.iter().enumerate() {
+                q[i] = clamp(i, q[i] + step[k]);
+            }
+            let rq = residuals(&q);
+            let sq = sse_of(&rq);
+            if sq < sse {
+                let gain = sse - sq;
+                p = q;
+                r = rq;
+                sse = sq;
+                lambda = (lambda / 10.0).max(1e-12);
+                improved = gain > 1e-15 * sse.max(1e-300);
+                break;
+            }
+            lambda *= 10.0;
+        }
+        if !improved {
+            break;
+        }
+    }
+    // Covariance from the Jacobian at the solution.
+    let j = jacobian(&p, &r);
+    let (a, _) = normal(&j, &r);
+    let dof = r.len().saturating_sub(free.len()).max(1) as f64;
+    let s2 = sse / dof;
+    let inverse = invert(a);
+    let mut sigma = vec![None; p.len()];
+    if let Some(inv) = inverse {
+        for (k, &i) in free.iter().enumerate() {
+            let at_bound =
+                i < vars.len() && (p[i] - vars[i].low_nm < 1e-6 || vars[i].high_nm - p[i] < 1e-6);
+            if !at_bound && inv[k][k] >= 0.0 {
+                sigma[i] = Some((s2 * inv[k][k]).sqrt());
+            }
+        }
+    }
+    LmResult { p, sse, sigma }
+}
+
+/// Solves `a x = b` by Gaussian elimination with partial pivoting; `None` if
+/// `a` is singular.
+fn solve(mut a: Vec<Vec<f64>>, mut b: Vec<f64>) -> Option<Vec<f64>> {
+    let n = b.len();
+    for c in 0..n {
+        let piv = (c..n).max_by(|&x, &y| a[x][c].abs().total_cmp(&a[y][c].abs()))?;
+        if a[piv][c].abs() < 1e-300 {
+            return None;
+        }
+        a.swap(c, piv);
+        b.swap(c, piv);
+        for r in c + 1..n {
+            let f = a[r][c] / a[c][c];
+            for k in c..n {
+                a[r][k] -= f * a[c][k];
+            }
+            b[r] -= f * b[c];
+        }
+    }
+    let mut x = vec![0.0; n];
+    for c in (0..n).rev() {
+        let s: f64 = (c + 1..n).map(|k| a[c][k] * x[k]).sum();
+        x[c] = (b[c] - s) / a[c][c];
+    }
+    x.iter().all(|v| v.is_finite()).then_some(x)
+}
+
+/// The inverse of `a`, column by column.
+fn invert(a: Vec<Vec<f64>>) -> Option<Vec<Vec<f64>>> {
+    let n = a.len();
+    let cols = (0..n)
+        .map(|c| {
+            let mut e = vec![0.0; n];
+            e[c] = 1.0;
+            solve(a.clone(), e)
+        })
+        .collect::<Option<Vec<_>>>()?;
+    Some(
+        (0..n)
+            .map(|r| (0..n).map(|c| cols[c][r]).collect())
+            .collect(),
+    )
+}

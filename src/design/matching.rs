@@ -1,0 +1,167 @@
+//! Matching a target colour: the `vary_nm` thicknesses that bring the
+//! design's colour closest (CIEDE2000) to one or more targets at given
+//! angles, with optional limits on total thickness and a pull toward bright
+//! reflectance.
+
+use super::evaluator::Evaluator;
+use super::search::{self, Budget};
+use super::variables::{Variable, total_thickness, varying, with_thicknesses};
+use crate::angle_colour::Viewing;
+use crate::colorimetry::{Colour, delta_e2000, xyz_to_lab};
+use crate::error::{Error, Result};
+use crate::scene::Scene;
+
+/// A target colour at one angle of incidence.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Goal {
+    /// Angle of incidence in degrees.
+    pub angle_deg: f64,
+    /// Target CIELAB L*, a*, b* (under the viewing's illuminant and observer).
+    pub lab: [f64; 3],
+}
+
+/// What to match and how hard to try.
+#[derive(Debug, Clone)]
+pub struct MatchSettings {
+    /// The targets; the first is the main one.
+    pub goals: Vec<Goal>,
+    /// Upper limit on the total physical thickness of the stack, nm.
+    pub max_total_nm: Option<f64>,
+    /// Weight of brightness: adds `w·(1 − Y/100)` at the first goal's angle
+    /// to the cost (ΔE00 units).
+    pub brightness_weight: f64,
+    /// Evaluation budget, stopping level and seed.
+    pub budget: Budget,
+}
+
+/// Largest ΔE00 still counted as reaching a target (common practice: about
+/// one just-noticeable difference).
+pub const REACHABLE_DELTA_E: f64 = 1.0;
+
+/// Cost added per nm of total thickness beyond the limit, in ΔE00 units.
+const THICKNESS_PENALTY_PER_NM: f64 = 1.0;
+
+/// The outcome at one goal.
+#[derive(Debug, Clone)]
+pub struct GoalOutcome {
+    /// The goal.
+    pub goal: Goal,
+    /// The colour the design reaches there.
+    pub achieved: Colour,
+    /// CIEDE2000 between target and achieved colour.
+    pub delta_e00: f64,
+}
+
+/// The matched design.
+#[derive(Debug, Clone)]
+pub struct MatchOutcome {
+    /// The variables, in the order of `thicknesses_nm`.
+    pub variables: Vec<Variable>,
+    /// Optimised thickness of each variable, nm.
+    pub thicknesses_nm: Vec<f64>,
+    /// One entry per goal.
+    pub goals: Vec<GoalOutcome>,
+    /// Total physical thickness of the optimised stack, nm.
+    pub total_nm: f64,
+    /// Whether every goal is within [`REACHABLE_DELTA_E`] and the thickness
+    /// limit holds.
+    pub reachable: bool,
+    /// Cost evaluations spent.
+    pub evaluations: usize,
+}
+
+/// Optimises the `vary_nm` thicknesses of `scene` toward the goals, seen as
+/// `viewing` sees them. `progress(evaluations, best cost)` reports along the way.
+pub fn match_colour(
+    scene: &Scene,
+    viewing: &Viewing,
+    settings: &MatchSettings,
+    progress: &(dyn Fn(usize, f64) + Sync),
+) -> Result<MatchOutcome> {
+    let vars = varying(scene);
+    if vars.is_empty() {
+        return Err(Error::invalid(
+            "stack",
+            "(no vary_nm)",
+            "mark the layers to optimise with \"vary_nm\": [low, high]",
+        ));
+    }
+    if settings.goals.is_empty() {
+        return Err(Error::invalid("goals", "(none)", "give a target colour"));
+    }
+    let angles: Vec<f64> = settings.goals.iter().map(|g| g.angle_deg).collect();
+    if let Some(a) = angles.iter().find(|a| !(a.abs() < 90.0)) {
+        return Err(Error::invalid(
+            "angle",
+            a,
+            "angles of incidence must lie below 90°",
+        ));
+    }
+    let eval = Evaluator::colour(scene, vars.clone(), &angles, viewing)?;
+    let (white, options) = eval.white().expect("a colour evaluator");
+    let to_x = |u: &[f64]| -> Vec<f64> {
+        vars.iter()
+            .zip(u)
+            .map(|(v, u)| v.low_nm + u * (v.high_nm - v.low_nm))
+            .collect()
+    };
+    // Total thickness is affine in the variables.
+    let total_at = |x: &[f64]| total_thickness(&with_thicknesses(&scene.stack, &vars, x));
+    let zero = vec![0.0; vars.len()];
+    let base = total_at(&zero);
+    let slope: Vec<f64> = (0..vars.len())
+        .map(|i| {
+            let mut e = zero.clone();
+            e[i] = 1.0;
+            total_at(&e) - base
+        })
+        .collect();
+    let total = |x: &[f64]| base + slope.iter().zip(x).map(|(s, x)| s * x).sum::<f64>();
+    let cost = |u: &[f64]| {
+        let x = to_x(u);
+        let mut c = eval.eval(&x, None, |out| {
+            let mut c = 0.0;
+            for (g, xyz) in settings.goals.iter().zip(out.xyz) {
+                c += delta_e2000(g.lab, xyz_to_lab(*xyz, white));
+            }
+            c + settings.brightness_weight * (1.0 - out.xyz[0][1] / 100.0)
+        });
+        if let Some(limit) = settings.max_total_nm {
+            c += THICKNESS_PENALTY_PER_NM * (total(&x) - limit).max(0.0);
+        }
+        c
+    };
+    let mut budget = settings.budget;
+    if settings.brightness_weight != 0.0 {
+        budget.good_enough = f64::NEG_INFINITY;
+        budget.handover = f64::NEG_INFINITY;
+    }
+    let found = search::minimise(&cost, vars.len(), budget, progress);
+    let x = to_x(&found.u);
+    let goals: Vec<GoalOutcome> = eval.eval(&x, None, |out| {
+        settings
+            .goals
+            .iter()
+            .zip(out.xyz)
+            .map(|(g, xyz)| {
+                let achieved = Colour::new(*xyz, white, &options);
+                GoalOutcome {
+                    goal: *g,
+                    delta_e00: delta_e2000(g.lab, achieved.lab),
+                    achieved,
+                }
+            })
+            .collect()
+    });
+    let total_nm = total(&x);
+    let reachable = goals.iter().all(|g| g.delta_e00 <= REACHABLE_DELTA_E)
+        && settings.max_total_nm.is_none_or(|l| total_nm <= l + 1e-9);
+    Ok(MatchOutcome {
+        variables: vars,
+        thicknesses_nm: x,
+        goals,
+        total_nm,
+        reachable,
+        evaluations: found.evaluations,
+    })
+}

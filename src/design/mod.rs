@@ -1,0 +1,11 @@
+//! Design tools: match a target colour, estimate manufacturing tolerance
+//! and yield, fit thicknesses to a measured spectrum, and sweep a design
+//! space. All of them work on the layers a scene marks with `vary_nm`.
+
+pub mod evaluator;
+pub mod fit;
+pub mod matching;
+pub mod search;
+pub mod sweep;
+pub mod tolerance;
+pub mod variables;
