@@ -3,6 +3,7 @@
 //! design tools built on them. The library does no file or terminal I/O.
 
 pub mod angle_colour;
+pub mod chart;
 pub mod colorimetry;
 pub mod design;
 pub mod error;

@@ -80,6 +80,11 @@ enum Command {
     Render(cli::render::RenderArgs),
     /// List the built-in materials: model, valid range, n and k at 550 nm, source.
     Materials,
+    /// Draw a chart of colour against angle as PNG or SVG (format from the
+    /// -o extension).
+    Chart(cli::chart::Args),
+    /// Write every chart of a scene and an HTML report into a folder.
+    Report(cli::report::Args),
 }
 
 fn main() -> ExitCode {
@@ -116,6 +121,8 @@ fn main() -> ExitCode {
         Command::Sweep(a) => cli::sweep::run(&a),
         Command::Render(args) => cli::render::run(&args),
         Command::Materials => cli::materials::run(),
+        Command::Chart(a) => cli::chart::run(&a),
+        Command::Report(a) => cli::report::run(&a),
     };
     match result {
         Ok(()) => ExitCode::SUCCESS,

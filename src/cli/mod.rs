@@ -1,5 +1,6 @@
 //! The command-line front end: argument definitions and glue.
 
+pub mod chart;
 pub mod color;
 pub mod design_args;
 pub mod fit;
@@ -8,6 +9,7 @@ pub mod materials;
 pub mod multiangle;
 pub mod output;
 pub mod render;
+pub mod report;
 pub mod spectrum;
 pub mod sweep;
 pub mod tolerance;

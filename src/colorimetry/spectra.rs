@@ -155,6 +155,25 @@ impl Observer {
     }
 }
 
+impl Observer {
+    /// The spectrum locus: wavelength (nm) and chromaticity x, y of
+    /// monochromatic light at every tabulated wavelength, x = x̄/(x̄+ȳ+z̄),
+    /// y = ȳ/(x̄+ȳ+z̄) (CIE 015:2018); wavelengths where all three are zero
+    /// are left out.
+    pub fn spectrum_locus(self) -> Vec<(f64, f64, f64)> {
+        let t = self.cmfs();
+        t.wl_nm
+            .iter()
+            .enumerate()
+            .filter_map(|(i, &w)| {
+                let (x, y, z) = (t.cols[0][i], t.cols[1][i], t.cols[2][i]);
+                let sum = x + y + z;
+                (sum > 0.0).then(|| (w, x / sum, y / sum))
+            })
+            .collect()
+    }
+}
+
 impl FromStr for Observer {
     type Err = Error;
 

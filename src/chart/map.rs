@@ -1,0 +1,152 @@
+//! `map`: reflectance (or transmittance) over wavelength × angle as a heat
+//! map with a colour bar.
+
+use plotters::coord::Shift;
+use plotters::prelude::*;
+use plotters::style::colors::colormaps::{ColorMap, ViridisRGB};
+
+use super::style::{self, Caption, FRAME, Style, frame};
+use super::{Chart, DrawResult};
+use crate::angle_colour::{Side, Viewing};
+use crate::error::Result;
+use crate::scene::Scene;
+
+/// Values on the scene's wavelength × angle grid.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ReflectanceMap {
+    /// Header text.
+    pub caption: Caption,
+    /// "Reflectance" or "Transmittance".
+    pub quantity: &'static str,
+    /// Wavelengths in nm.
+    pub wavelengths: Vec<f64>,
+    /// Angles in degrees.
+    pub angles: Vec<f64>,
+    /// Fractions 0–1, angle-major.
+    pub values: Vec<f64>,
+    /// Top of the colour scale (a fraction): the smallest of 5, 10, 20, 25,
+    /// 50, 75, 100 % holding the largest value, so weak features stay visible.
+    pub top: f64,
+}
+
+impl ReflectanceMap {
+    /// The scene's spectra for the side and polarization of `viewing`.
+    pub fn compute(scene: &Scene, viewing: &Viewing) -> Result<Self> {
+        let spectra = scene.spectra()?;
+        let values: Vec<f64> = spectra
+            .rt
+            .iter()
+            .map(|x| viewing.polarization.of(x, viewing.side))
+            .collect();
+        let max = values.iter().copied().fold(0.0, f64::max);
+        let top = [0.05, 0.1, 0.2, 0.25, 0.5, 0.75, 1.0]
+            .into_iter()
+            .find(|&t| max <= t + 1e-12)
+            .unwrap_or(1.0);
+        let quantity = match viewing.side {
+            Side::Reflect => "Reflectance",
+            Side::Transmit => "Transmittance",
+        };
+        Ok(ReflectanceMap {
+            caption: Caption::new(
+                &[&scene.title],
+                &format!("{quantity} over wavelength and angle of incidence"),
+                viewing,
+            ),
+            quantity,
+            wavelengths: spectra.wavelengths_nm,
+            angles: spectra.angles_deg,
+            values,
+            top,
+        })
+    }
+
+    fn colour(&self, v: f64) -> RGBColor {
+        ViridisRGB.get_color_normalized(v.min(self.top) as f32, 0.0, self.top as f32)
+    }
+}
+
+/// Cell edges: midpoints between values, half a spacing beyond the ends.
+fn edges(v: &[f64]) -> Vec<f64> {
+    if v.len() == 1 {
+        return vec![v[0] - 0.5, v[0] + 0.5];
+    }
+    let mut e = vec![v[0] - (v[1] - v[0]) / 2.0];
+    e.extend(v.windows(2).map(|w| (w[0] + w[1]) / 2.0));
+    e.push(v[v.len() - 1] + (v[v.len() - 1] - v[v.len() - 2]) / 2.0);
+    e
+}
+
+impl Chart for ReflectanceMap {
+    fn label(&self) -> String {
+        format!("{}: {}", self.caption.title, self.caption.subject)
+    }
+
+    fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> DrawResult<DB> {
+        let s = Style::new(root.dim_in_pixel());
+        let body = frame(root, &self.caption, &s)?;
+        let (w, _) = body.dim_in_pixel();
+        let (left, right) = body.split_horizontally(w as i32 - s.px(150.0));
+        let (we, ae) = (edges(&self.wavelengths), edges(&self.angles));
+        let mut chart = ChartBuilder::on(&left)
+            .margin_top(s.px(8.0))
+            .margin_right(s.px(16.0))
+            .x_label_area_size(s.px(62.0))
+            .y_label_area_size(s.px(74.0))
+            .build_cartesian_2d(we[0]..we[we.len() - 1], ae[0]..ae[ae.len() - 1])?;
+        chart
+            .configure_mesh()
+            .disable_x_mesh()
+            .disable_y_mesh()
+            .x_desc("Wavelength (nm)")
+            .y_desc("Angle of incidence (degrees)")
+            .axis_desc_style(s.axis())
+            .label_style(s.tick())
+            .x_label_formatter(&|v| style::num(*v, 0))
+            .y_label_formatter(&|v| format!("{}°", style::tick(v)))
+            .axis_style(FRAME.stroke_width(1))
+            .set_all_tick_mark_size(s.px(5.0))
+            .x_labels(10)
+            .y_labels(10)
+            .draw()?;
+        let nw = self.wavelengths.len();
+        chart.draw_series(self.values.iter().enumerate().map(|(i, &v)| {
+            let (a, k) = (i / nw, i % nw);
+            Rectangle::new(
+                [(we[k], ae[a]), (we[k + 1], ae[a + 1])],
+                self.colour(v).filled(),
+            )
+        }))?;
+        // Colour bar.
+        let (_, bh) = right.dim_in_pixel();
+        let mut bar = ChartBuilder::on(&right)
+            .margin_top(s.px(8.0))
+            .margin_bottom(s.px(62.0))
+            .margin_left(s.px(10.0))
+            .margin_right(s.px(80.0))
+            .y_label_area_size(0)
+            .right_y_label_area_size(s.px(50.0))
+            .build_cartesian_2d(0.0..1.0, 0.0..100.0 * self.top)?;
+        let steps = (bh as usize).clamp(2, 128);
+        bar.draw_series((0..steps).map(|i| {
+            let (v0, v1) = (i as f64 / steps as f64, (i + 1) as f64 / steps as f64);
+            Rectangle::new(
+                [(0.0, 100.0 * self.top * v0), (1.0, 100.0 * self.top * v1)],
+                self.colour(self.top * (v0 + v1) / 2.0).filled(),
+            )
+        }))?;
+        bar.configure_mesh()
+            .disable_x_mesh()
+            .disable_y_mesh()
+            .disable_x_axis()
+            .y_desc(format!("{} (%)", self.quantity))
+            .axis_desc_style(s.axis())
+            .label_style(s.tick())
+            .y_label_formatter(&|v| style::tick(v))
+            .axis_style(FRAME.stroke_width(1))
+            .set_all_tick_mark_size(s.px(5.0))
+            .y_labels(6)
+            .draw()?;
+        Ok(())
+    }
+}

@@ -1,0 +1,309 @@
+//! `spectra`: reflectance (and transmittance) against wavelength at chosen
+//! angles and polarizations, for one or several scenes.
+
+use plotters::coord::Shift;
+use plotters::prelude::*;
+use plotters::style::text_anchor::{HPos, Pos, VPos};
+
+use super::style::{self, Caption, INK, SERIES, Style, frame, mesh, short};
+use super::{Chart, DrawResult};
+use crate::angle_colour::{Polarization, Side, Viewing};
+use crate::error::{Error, Result};
+use crate::optics;
+use crate::scene::Scene;
+
+/// One (scene, angle, polarization) curve.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Curve {
+    /// Index into [`SpectraChart::legend`].
+    pub series: usize,
+    /// Polarization.
+    pub polarization: Polarization,
+    /// (wavelength nm, R in %) points.
+    pub r: Vec<(f64, f64)>,
+    /// (wavelength nm, T in %) points.
+    pub t: Vec<(f64, f64)>,
+}
+
+/// Spectra of several scenes at several angles.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SpectraChart {
+    /// Header text.
+    pub caption: Caption,
+    /// Label of each (scene, angle) series, in colour order.
+    pub legend: Vec<String>,
+    /// Polarizations drawn.
+    pub polarizations: Vec<Polarization>,
+    /// The curves.
+    pub curves: Vec<Curve>,
+    /// Whether a transmittance panel is drawn.
+    pub transmittance: bool,
+}
+
+fn dash(p: Polarization) -> (u32, u32) {
+    match p {
+        Polarization::Unpolarized => (0, 0),
+        Polarization::S => (11, 7),
+        Polarization::P => (2, 6),
+    }
+}
+
+fn pol_label(p: Polarization) -> &'static str {
+    match p {
+        Polarization::Unpolarized => "unpolarized",
+        Polarization::S => "s-polarized",
+        Polarization::P => "p-polarized",
+    }
+}
+
+impl SpectraChart {
+    /// Spectra of each scene at `angles` (degrees) on the scene's own
+    /// wavelength grid; the first scene's viewing names the light.
+    pub fn compute(
+        scenes: &[(&Scene, &Viewing)],
+        angles: &[f64],
+        polarizations: &[Polarization],
+        transmittance: bool,
+    ) -> Result<Self> {
+        if let Some(&a) = angles.iter().find(|a| !(a.abs() < 90.0)) {
+            return Err(Error::invalid(
+                "angles",
+                a,
+                "angles of incidence must lie below 90°",
+            ));
+        }
+        if angles.is_empty() || polarizations.is_empty() {
+            return Err(Error::invalid(
+                "angles",
+                "(none)",
+                "give at least one angle and polarization",
+            ));
+        }
+        let n = scenes.len() * angles.len();
+        if n > SERIES.len() {
+            return Err(Error::invalid(
+                "angles",
+                format!("{} scenes × {} angles", scenes.len(), angles.len()),
+                format!(
+                    "at most {} curves per polarization stay distinguishable",
+                    SERIES.len()
+                ),
+            ));
+        }
+        let mut legend = Vec::new();
+        let mut curves = Vec::new();
+        for (scene, _) in scenes {
+            let spectra = optics::compute(
+                &scene.realisations(&scene.stack),
+                &scene.indices(&scene.wavelengths_nm)?,
+                &scene.wavelengths_nm,
+                angles,
+            );
+            for (a, angle) in angles.iter().enumerate() {
+                let series = legend.len();
+                legend.push(if scenes.len() == 1 {
+                    format!("{}°", style::tick(angle))
+                } else {
+                    format!("{} · {}°", short(&scene.title), style::tick(angle))
+                });
+                for &p in polarizations {
+                    let points = |side| {
+                        spectra
+                            .wavelengths_nm
+                            .iter()
+                            .zip(spectra.at_angle(a))
+                            .map(|(&w, x)| (w, 100.0 * p.of(x, side)))
+                            .collect()
+                    };
+                    curves.push(Curve {
+                        series,
+                        polarization: p,
+                        r: points(Side::Reflect),
+                        t: points(Side::Transmit),
+                    });
+                }
+            }
+        }
+        let titles: Vec<&str> = scenes.iter().map(|(s, _)| s.title.as_str()).collect();
+        let mut caption = Caption::new(
+            &titles,
+            if transmittance {
+                "Reflectance and transmittance against wavelength"
+            } else {
+                "Reflectance against wavelength"
+            },
+            scenes[0].1,
+        );
+        caption.viewing = format!(
+            "{} · {} light · {}",
+            style::light(scenes[0].1),
+            if transmittance {
+                "reflected and transmitted"
+            } else {
+                "reflected"
+            },
+            pol_list(polarizations)
+        );
+        Ok(SpectraChart {
+            caption,
+            legend,
+            polarizations: polarizations.to_vec(),
+            curves,
+            transmittance,
+        })
+    }
+
+    fn panel<DB: DrawingBackend>(
+        &self,
+        area: &DrawingArea<DB, Shift>,
+        s: &Style,
+        transmitted: bool,
+    ) -> DrawResult<DB> {
+        let (lo, hi) = self
+            .curves
+            .iter()
+            .flat_map(|c| c.r.iter().map(|p| p.0))
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), w| {
+                (l.min(w), h.max(w))
+            });
+        let mut chart = ChartBuilder::on(area)
+            .margin_top(s.px(8.0))
+            .margin_right(s.px(12.0))
+            .x_label_area_size(s.px(62.0))
+            .y_label_area_size(s.px(74.0))
+            .build_cartesian_2d(lo..hi, 0.0..100.0)?;
+        let y = if transmitted {
+            "Transmittance (%)"
+        } else {
+            "Reflectance (%)"
+        };
+        mesh(
+            &mut chart,
+            s,
+            "Wavelength (nm)",
+            y,
+            &|v| style::num(*v, 0),
+            &|v| style::num(*v, 0),
+        )?;
+        for c in &self.curves {
+            let colour = SERIES[c.series];
+            let style = colour.stroke_width(s.line(2.0));
+            let points = if transmitted {
+                c.t.clone()
+            } else {
+                c.r.clone()
+            };
+            match dash(c.polarization) {
+                (0, _) => {
+                    chart.draw_series(LineSeries::new(points, style))?;
+                }
+                (on, off) => {
+                    chart.draw_series(DashedLineSeries::new(
+                        points,
+                        s.px(on as f64) as u32,
+                        s.px(off as f64) as u32,
+                        style,
+                    ))?;
+                }
+            }
+        }
+        Ok(())
+    }
+
+    fn draw_legend<DB: DrawingBackend>(
+        &self,
+        area: &DrawingArea<DB, Shift>,
+        s: &Style,
+    ) -> DrawResult<DB> {
+        let left = s.px(16.0);
+        let line = s.px(26.0);
+        let mut y = s.px(14.0);
+        let label = Pos::new(HPos::Left, VPos::Center);
+        let heading = if self.legend.iter().any(|l| l.contains(" · ")) {
+            "Design · angle of incidence"
+        } else {
+            "Angle of incidence"
+        };
+        area.draw(&Text::new(heading, (left, y), s.bold(14.0, INK).pos(label)))?;
+        y += line;
+        for (i, name) in self.legend.iter().enumerate() {
+            area.draw(&PathElement::new(
+                vec![(left, y), (left + s.px(34.0), y)],
+                SERIES[i].stroke_width(s.line(3.0)),
+            ))?;
+            area.draw(&Text::new(
+                name.clone(),
+                (left + s.px(44.0), y),
+                s.text(14.0, INK).pos(label),
+            ))?;
+            y += line;
+        }
+        y += line / 2;
+        area.draw(&Text::new(
+            "Polarization",
+            (left, y),
+            s.bold(14.0, INK).pos(label),
+        ))?;
+        y += line;
+        for &p in &self.polarizations {
+            let seg = vec![(left, y), (left + s.px(34.0), y)];
+            let st = INK.stroke_width(s.line(2.0));
+            match dash(p) {
+                (0, _) => area.draw(&PathElement::new(seg, st))?,
+                (on, off) => {
+                    let (on, off) = (s.px(on as f64), s.px(off as f64));
+                    let mut x = left;
+                    while x < left + s.px(34.0) {
+                        let end = (x + on).min(left + s.px(34.0));
+                        area.draw(&PathElement::new(vec![(x, y), (end, y)], st))?;
+                        x += on + off;
+                    }
+                }
+            }
+            area.draw(&Text::new(
+                pol_label(p),
+                (left + s.px(44.0), y),
+                s.text(14.0, INK).pos(label),
+            ))?;
+            y += line;
+        }
+        Ok(())
+    }
+}
+
+/// "unpolarized (solid), s-polarized (dashed)" for the header.
+fn pol_list(p: &[Polarization]) -> String {
+    let names: Vec<String> = p
+        .iter()
+        .map(|&p| {
+            let how = match p {
+                Polarization::Unpolarized => "solid",
+                Polarization::S => "dashed",
+                Polarization::P => "dotted",
+            };
+            format!("{} ({how})", pol_label(p))
+        })
+        .collect();
+    names.join(", ")
+}
+
+impl Chart for SpectraChart {
+    fn label(&self) -> String {
+        format!("{}: {}", self.caption.title, self.caption.subject)
+    }
+
+    fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> DrawResult<DB> {
+        let s = Style::new(root.dim_in_pixel());
+        let body = frame(root, &self.caption, &s)?;
+        let (w, h) = body.dim_in_pixel();
+        let (plots, legend) = body.split_horizontally(w as i32 - s.px(250.0).min(w as i32 / 3));
+        self.draw_legend(&legend, &s)?;
+        if self.transmittance {
+            let (top, bottom) = plots.split_vertically(h as i32 / 2);
+            self.panel(&top, &s, false)?;
+            self.panel(&bottom, &s, true)
+        } else {
+            self.panel(&plots, &s, false)
+        }
+    }
+}

@@ -1,0 +1,333 @@
+//! `angle-strip`: the colour at every angle as one continuous band over a
+//! labelled angle axis, with swatches and their values at chosen angles.
+
+use plotters::coord::Shift;
+use plotters::coord::types::RangedCoordf64;
+use plotters::prelude::*;
+use plotters::style::text_anchor::{HPos, Pos, VPos};
+
+use super::canvas::{Canvas, Svg};
+use super::style::{self, Caption, FRAME, INK, MUTED, SERIES, Style, frame, num, swatch};
+use super::{Chart, DrawResult};
+use crate::angle_colour::{Viewing, angle_colours};
+use crate::colorimetry::Colour;
+use crate::error::{Error, Result};
+use crate::optics;
+use crate::scene::Scene;
+
+/// Most swatches under a strip (more would not leave room for their values).
+pub const MAX_TICKS: usize = 12;
+
+/// Samples over the angle range, at least.
+const SAMPLES: usize = 720;
+
+/// The colour along the angle range of a scene.
+#[derive(Debug, Clone, PartialEq)]
+pub struct AngleStrip {
+    /// Header text.
+    pub caption: Caption,
+    /// Angles in increasing order, each with its colour and whether it is
+    /// one of the scene's grid angles or ticks (drawn exactly at its column).
+    pub samples: Vec<(f64, Colour, bool)>,
+    /// Angles with a swatch and their colours.
+    pub ticks: Vec<(f64, Colour)>,
+}
+
+impl AngleStrip {
+    /// Computes the colour at about [`SAMPLES`] angles spanning the scene's
+    /// angle grid (every grid angle included) and at `ticks` (default: a
+    /// round step giving at most nine).
+    pub fn compute(scene: &Scene, viewing: &Viewing, ticks: Option<&[f64]>) -> Result<Self> {
+        let grid = &scene.angles_deg;
+        let (lo, hi) = grid
+            .iter()
+            .fold((f64::INFINITY, f64::NEG_INFINITY), |(l, h), &a| {
+                (l.min(a), h.max(a))
+            });
+        if !(hi > lo) {
+            return Err(Error::invalid(
+                "angles_deg",
+                format!("{lo}"),
+                "an angle strip needs a range of angles (at least two)",
+            ));
+        }
+        let ticks = match ticks {
+            Some(t) => {
+                if let Some(&bad) = t.iter().find(|&&a| !(a >= lo && a <= hi)) {
+                    return Err(Error::invalid(
+                        "ticks",
+                        bad,
+                        format!("outside the scene's angle range {lo}–{hi}°"),
+                    ));
+                }
+                if t.is_empty() || t.len() > MAX_TICKS {
+                    return Err(Error::invalid(
+                        "ticks",
+                        t.len(),
+                        format!("give 1 to {MAX_TICKS} angles"),
+                    ));
+                }
+                t.to_vec()
+            }
+            None => default_ticks(lo, hi),
+        };
+        let mut sorted = grid.clone();
+        sorted.sort_by(f64::total_cmp);
+        sorted.dedup();
+        let sub = SAMPLES.div_ceil(sorted.len() - 1);
+        let mut angles: Vec<(f64, bool)> = sorted
+            .windows(2)
+            .flat_map(|w| {
+                (0..sub).map(move |j| (w[0] + (w[1] - w[0]) * j as f64 / sub as f64, j == 0))
+            })
+            .chain([(hi, true)])
+            .chain(ticks.iter().map(|&t| (t, true)))
+            .collect();
+        angles.sort_by(|a, b| a.0.total_cmp(&b.0).then(b.1.cmp(&a.1)));
+        angles.dedup_by(|b, a| a.0 == b.0);
+        let list: Vec<f64> = angles.iter().map(|a| a.0).collect();
+        let spectra = optics::compute(
+            &scene.realisations(&scene.stack),
+            &scene.indices(&scene.wavelengths_nm)?,
+            &scene.wavelengths_nm,
+            &list,
+        );
+        let colours = angle_colours(&spectra, viewing)?;
+        let samples: Vec<(f64, Colour, bool)> = angles
+            .iter()
+            .zip(colours)
+            .map(|(&(a, exact), c)| (a, c, exact))
+            .collect();
+        let ticks = ticks
+            .iter()
+            .map(|&t| {
+                let i = list.partition_point(|&a| a < t);
+                (t, samples[i].1.clone())
+            })
+            .collect();
+        Ok(AngleStrip {
+            caption: Caption::new(
+                &[&scene.title],
+                "Colour against angle of incidence",
+                viewing,
+            ),
+            samples,
+            ticks,
+        })
+    }
+
+    /// The pixel at the middle of the strip where angle `a` is drawn, for an
+    /// image of `size`.
+    pub fn pixel_of(&self, size: (u32, u32), a: f64) -> (i32, i32) {
+        let mut svg = Svg::default();
+        let root = Canvas::new(&mut svg, size).into_drawing_area();
+        let s = Style::new(size);
+        let (chart, _) = self.layout(&root, &s).expect("SVG drawing cannot fail");
+        let (x, _) = chart.backend_coord(&(a, 0.5));
+        let (_, ys) = chart.plotting_area().get_pixel_range();
+        (x, (ys.start + ys.end) / 2)
+    }
+
+    fn range(&self) -> (f64, f64) {
+        (self.samples[0].0, self.samples[self.samples.len() - 1].0)
+    }
+
+    #[allow(clippy::type_complexity)]
+    fn layout<'a, DB: DrawingBackend>(
+        &self,
+        root: &'a DrawingArea<DB, Shift>,
+        s: &Style,
+    ) -> std::result::Result<
+        (
+            ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>,
+            DrawingArea<DB, Shift>,
+        ),
+        DrawingAreaErrorKind<DB::ErrorType>,
+    > {
+        let body = frame(root, &self.caption, s)?;
+        let (_, h) = body.dim_in_pixel();
+        let (top, bottom) = body.split_vertically(h as i32 * 45 / 100);
+        let (lo, hi) = self.range();
+        let mut chart = ChartBuilder::on(&top)
+            .margin_top(s.px(26.0))
+            .margin_left(s.px(14.0))
+            .margin_right(s.px(14.0))
+            .x_label_area_size(s.px(62.0))
+            .build_cartesian_2d(lo..hi, 0.0..1.0)?;
+        chart
+            .configure_mesh()
+            .disable_x_mesh()
+            .disable_y_mesh()
+            .disable_y_axis()
+            .x_desc("Angle of incidence (degrees)")
+            .axis_desc_style(s.axis())
+            .label_style(s.tick())
+            .x_label_formatter(&|v| format!("{}°", style::tick(v)))
+            .axis_style(FRAME.stroke_width(1))
+            .set_all_tick_mark_size(s.px(5.0))
+            .x_labels(12)
+            .draw()?;
+        Ok((chart, bottom))
+    }
+}
+
+/// A round step (1, 2, 5, 10, 15, 20, 30 or 45°) giving at most nine swatches.
+fn default_ticks(lo: f64, hi: f64) -> Vec<f64> {
+    let step = [1.0, 2.0, 5.0, 10.0, 15.0, 20.0, 30.0, 45.0]
+        .into_iter()
+        .find(|st| ((hi + 1e-9) / st).floor() - ((lo - 1e-9) / st).ceil() < 9.0)
+        .unwrap_or(45.0);
+    let first = ((lo - 1e-9) / step).ceil() as i64;
+    let last = ((hi + 1e-9) / step).floor() as i64;
+    let mut t: Vec<f64> = (first..=last).map(|i| i as f64 * step).collect();
+    if t.is_empty() {
+        t = vec![lo, hi];
+    }
+    t
+}
+
+impl Chart for AngleStrip {
+    fn label(&self) -> String {
+        format!("{}: {}", self.caption.title, self.caption.subject)
+    }
+
+    fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> DrawResult<DB> {
+        let s = Style::new(root.dim_in_pixel());
+        let (chart, bottom) = self.layout(root, &s)?;
+        let area = chart.plotting_area().strip_coord_spec();
+        let (xs, ys) = area.get_pixel_range();
+        let (x0, _) = area.get_base_pixel();
+        // Each column shows the sample mapped into it (grid angles and ticks
+        // first), or the nearest sample by angle when none falls inside.
+        let w = (xs.end - xs.start) as usize;
+        let mut column: Vec<Option<(usize, bool)>> = vec![None; w];
+        for (i, (a, _, exact)) in self.samples.iter().enumerate() {
+            let (px, _) = chart.backend_coord(&(*a, 0.5));
+            let c = ((px - x0).max(0) as usize).min(w - 1);
+            if column[c].is_none_or(|(_, e)| *exact && !e) {
+                column[c] = Some((i, *exact));
+            }
+        }
+        let (lo, hi) = self.range();
+        let mut runs: Vec<(usize, usize, RGBColor)> = Vec::new();
+        for (c, slot) in column.iter().enumerate() {
+            let i = slot.map_or_else(
+                || {
+                    let a = lo + (hi - lo) * (c as f64 + 0.5) / w as f64;
+                    let k = self.samples.partition_point(|x| x.0 < a);
+                    [k.saturating_sub(1), k.min(self.samples.len() - 1)]
+                        .into_iter()
+                        .min_by(|&p, &q| {
+                            (self.samples[p].0 - a)
+                                .abs()
+                                .total_cmp(&(self.samples[q].0 - a).abs())
+                        })
+                        .unwrap_or(0)
+                },
+                |(i, _)| i,
+            );
+            let colour = swatch(&self.samples[i].1);
+            match runs.last_mut() {
+                Some((_, end, last)) if *last == colour => *end = c,
+                _ => runs.push((c, c, colour)),
+            }
+        }
+        let h = ys.end - ys.start;
+        for (a, b, colour) in runs {
+            area.draw(&Rectangle::new(
+                [(a as i32, 0), (b as i32, h - 1)],
+                colour.filled(),
+            ))?;
+        }
+        // The frame lies just outside, so the end columns show their colour.
+        let (rx, ry) = root.get_base_pixel();
+        let (ax, ay) = (x0 - rx - 1, ys.start - ry - 1);
+        root.draw(&Rectangle::new(
+            [(ax, ay), (ax + w as i32 + 1, ay + h + 1)],
+            FRAME.stroke_width(1),
+        ))?;
+        // Markers above the strip at the swatch angles.
+        let m = s.px(7.0);
+        let base = root.get_base_pixel();
+        for (a, _) in &self.ticks {
+            let (px, py) = chart.backend_coord(&(*a, 1.0));
+            let (x, y) = (px - base.0, py - base.1);
+            root.draw(&Polygon::new(
+                vec![
+                    (x - m, y - 2 * m - s.px(3.0)),
+                    (x + m, y - 2 * m - s.px(3.0)),
+                    (x, y - s.px(3.0)),
+                ],
+                INK.filled(),
+            ))?;
+        }
+        self.draw_swatches(&bottom, &s, (x0, xs.end - xs.start))
+    }
+}
+
+impl AngleStrip {
+    fn draw_swatches<DB: DrawingBackend>(
+        &self,
+        area: &DrawingArea<DB, Shift>,
+        s: &Style,
+        (x0, width): (i32, i32),
+    ) -> DrawResult<DB> {
+        let base = area.get_base_pixel();
+        let n = self.ticks.len() as i32;
+        let cell = width / n;
+        let side = (cell * 7 / 10).min(s.px(120.0));
+        let top = s.px(24.0);
+        let line = s.px(22.0);
+        let centre = Pos::new(HPos::Center, VPos::Top);
+        for (k, (a, c)) in self.ticks.iter().enumerate() {
+            let cx = x0 - base.0 + cell * k as i32 + cell / 2;
+            area.draw(&Text::new(
+                format!("{}°", style::tick(a)),
+                (cx, top),
+                s.bold(15.0, INK).pos(centre),
+            ))?;
+            let sy = top + s.px(28.0);
+            area.draw(&Rectangle::new(
+                [(cx - side / 2, sy), (cx + side / 2, sy + side)],
+                swatch(c).filled(),
+            ))?;
+            area.draw(&Rectangle::new(
+                [(cx - side / 2, sy), (cx + side / 2, sy + side)],
+                FRAME.stroke_width(1),
+            ))?;
+            let mut y = sy + side + s.px(10.0);
+            let mut put = |t: String, st: TextStyle<'static>| -> DrawResult<DB> {
+                area.draw(&Text::new(t, (cx, y), st.pos(centre)))?;
+                y += line;
+                Ok(())
+            };
+            put(c.hex.clone(), s.text(15.0, INK))?;
+            put(format!("L* {}", num(c.lab[0], 1)), s.text(14.0, MUTED))?;
+            put(format!("a* {}", num(c.lab[1], 1)), s.text(14.0, MUTED))?;
+            put(format!("b* {}", num(c.lab[2], 1)), s.text(14.0, MUTED))?;
+            if !c.in_gamut {
+                put("outside sRGB".into(), s.text(14.0, SERIES[1]))?;
+            }
+        }
+        Ok(())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::default_ticks;
+
+    #[test]
+    fn default_ticks_use_a_round_step_and_at_most_nine() {
+        assert_eq!(
+            default_ticks(0.0, 80.0),
+            (0..=8).map(|i| i as f64 * 10.0).collect::<Vec<_>>()
+        );
+        assert_eq!(
+            default_ticks(0.0, 60.0),
+            vec![0.0, 10.0, 20.0, 30.0, 40.0, 50.0, 60.0]
+        );
+        assert_eq!(default_ticks(12.0, 14.0), vec![12.0, 13.0, 14.0]);
+        assert!(default_ticks(0.0, 89.0).len() <= 9);
+    }
+}

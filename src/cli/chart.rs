@@ -1,0 +1,234 @@
+//! `lamella chart`: one chart of a scene (or several scenes) as PNG or SVG.
+
+use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicU64, Ordering};
+
+use lamella::angle_colour::{Polarization, Viewing};
+use lamella::chart::{
+    self, AbTravel, AngleStrip, Chromaticity, Format, ReflectanceMap, SpectraChart, ThicknessAngle,
+    Variation,
+};
+use lamella::scene::Scene;
+
+use super::color::ViewArgs;
+use super::design_args::Progress;
+use super::{CliResult, Failure, load_scene, write_out};
+
+/// The kind of chart.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum Kind {
+    /// The colour at every angle as a continuous strip, with swatches and
+    /// their values at chosen angles (--ticks).
+    AngleStrip,
+    /// Swatches of colour against angle (across) and one layer's thickness
+    /// (--layer, --thickness-range) or a scale on all thicknesses
+    /// (--scale-range) (down).
+    ThicknessAngle,
+    /// R (and with --transmittance T) against wavelength at --angles, for
+    /// the polarizations in --curves.
+    Spectra,
+    /// Heat map of reflectance (or transmittance with --side transmit) over
+    /// wavelength and angle, with a colour bar.
+    Map,
+    /// The angle trajectory on the CIE xy chromaticity diagram.
+    Chromaticity,
+    /// The angle trajectory on the CIELAB a*b* plane, with L* against angle.
+    AbTravel,
+}
+
+impl Kind {
+    /// Whether the kind can compare several scenes.
+    fn compares(self) -> bool {
+        matches!(self, Kind::Spectra | Kind::Chromaticity | Kind::AbTravel)
+    }
+}
+
+/// Flags of `lamella chart`.
+#[derive(Debug, Clone, clap::Args)]
+pub struct Args {
+    /// Scene files (JSON). Several only for spectra, chromaticity and ab-travel.
+    #[arg(required_unless_present = "scene")]
+    pub scenes: Vec<PathBuf>,
+    /// Another scene to compare (repeatable); adds to the positional ones.
+    #[arg(long = "scene")]
+    pub scene: Vec<PathBuf>,
+    /// What to draw.
+    #[arg(long, value_enum)]
+    pub kind: Kind,
+    /// Output file; the format follows its extension (.png or .svg).
+    #[arg(short = 'o', long = "output")]
+    pub output: PathBuf,
+    /// Image size in pixels, WIDTHxHEIGHT.
+    #[arg(long, default_value = "1200x800", value_parser = parse_size)]
+    pub size: (u32, u32),
+    #[command(flatten)]
+    pub view: ViewArgs,
+    /// angle-strip: angles (degrees) that get a swatch with its values,
+    /// e.g. 0,20,40,60 (default: a round step, at most nine).
+    #[arg(long, value_delimiter = ',')]
+    pub ticks: Option<Vec<f64>>,
+    /// spectra: angles of incidence in degrees.
+    #[arg(long, value_delimiter = ',', default_value = "0,30,60")]
+    pub angles: Vec<f64>,
+    /// spectra: polarizations drawn (unpolarized solid, s dashed, p dotted).
+    #[arg(long, value_delimiter = ',', default_value = "unpolarized,s,p",
+          value_parser = ["unpolarized", "s", "p"])]
+    pub curves: Vec<String>,
+    /// spectra: also draw transmittance, in a second panel.
+    #[arg(long)]
+    pub transmittance: bool,
+    /// thickness-angle: vary the thickness of this layer. Layers are numbered
+    /// from 1 in the order they appear in the scene's stack, depth first (a
+    /// repeat group's layers are counted once, and changing one changes it in
+    /// every period).
+    #[arg(long, conflicts_with = "scale_range")]
+    pub layer: Option<usize>,
+    /// thickness-angle: thickness range of --layer in nm, FROM,TO
+    /// (default: 50 % to 150 % of the design thickness).
+    #[arg(long, value_name = "FROM,TO", value_parser = parse_pair, requires = "layer")]
+    pub thickness_range: Option<(f64, f64)>,
+    /// thickness-angle: scale all thicknesses together over FROM,TO
+    /// (the default when --layer is not given: 0.8,1.2).
+    #[arg(long, value_name = "FROM,TO", value_parser = parse_pair)]
+    pub scale_range: Option<(f64, f64)>,
+    /// thickness-angle: number of thickness rows.
+    #[arg(long, default_value_t = 21)]
+    pub steps: usize,
+}
+
+pub fn parse_size(s: &str) -> Result<(u32, u32), String> {
+    let (w, h) = s
+        .split_once(['x', 'X'])
+        .ok_or_else(|| format!("{s}: expected WIDTHxHEIGHT, e.g. 1200x800"))?;
+    let p = |v: &str| {
+        v.trim()
+            .parse::<u32>()
+            .map_err(|_| format!("{s}: expected WIDTHxHEIGHT in whole pixels"))
+    };
+    let size = (p(w)?, p(h)?);
+    chart::check_size(size).map_err(|e| e.to_string())?;
+    Ok(size)
+}
+
+fn parse_pair(s: &str) -> Result<(f64, f64), String> {
+    let bad = || format!("{s}: expected FROM,TO, e.g. 0.8,1.2");
+    let (a, b) = s.split_once(',').ok_or_else(bad)?;
+    let p = |v: &str| {
+        v.trim()
+            .parse::<f64>()
+            .ok()
+            .filter(|v| v.is_finite())
+            .ok_or_else(bad)
+    };
+    Ok((p(a)?, p(b)?))
+}
+
+/// The output format from a file name.
+pub fn format_of(path: &Path) -> Result<Format, Failure> {
+    let ext = path.extension().and_then(|e| e.to_str()).unwrap_or("");
+    Format::from_extension(ext).map_err(|e| Failure::input(format!("{}: {e}", path.display())))
+}
+
+/// Loads scenes with their viewings; several scenes must share light and observer.
+pub fn load_all(paths: &[PathBuf], view: &ViewArgs) -> Result<Vec<(Scene, Viewing)>, Failure> {
+    let mut out: Vec<(Scene, Viewing)> = Vec::new();
+    for p in paths {
+        let scene = load_scene(p)?;
+        let viewing = view.viewing(&scene, p)?;
+        if let Some((_, first)) = out.first()
+            && (first.illuminant.name() != viewing.illuminant.name()
+                || first.observer != viewing.observer)
+        {
+            return Err(Failure::input(format!(
+                "{}: the scenes are seen under different lights or observers ({} {}, {} {}); \
+                 pass --illuminant and --observer to compare them under one",
+                p.display(),
+                first.illuminant.name(),
+                first.observer,
+                viewing.illuminant.name(),
+                viewing.observer
+            )));
+        }
+        out.push((scene, viewing));
+    }
+    Ok(out)
+}
+
+fn polarizations(names: &[String]) -> Vec<Polarization> {
+    let mut out: Vec<Polarization> = Vec::new();
+    for n in names {
+        let p = n.parse().expect("clap checked the value");
+        if !out.contains(&p) {
+            out.push(p);
+        }
+    }
+    out
+}
+
+/// Runs the command.
+pub fn run(args: &Args) -> CliResult {
+    let format = format_of(&args.output)?;
+    let paths: Vec<PathBuf> = args.scenes.iter().chain(&args.scene).cloned().collect();
+    if paths.len() > 1 && !args.kind.compares() {
+        return Err(Failure::input(
+            "only spectra, chromaticity and ab-travel compare several scenes; give one scene",
+        ));
+    }
+    let scenes = load_all(&paths, &args.view)?;
+    let pairs: Vec<(&Scene, &Viewing)> = scenes.iter().map(|(s, v)| (s, v)).collect();
+    let at = |e: lamella::Error| Failure::input(format!("{}: {e}", paths[0].display()));
+    let (scene, viewing) = pairs[0];
+    let bytes = match args.kind {
+        Kind::AngleStrip => {
+            let c = AngleStrip::compute(scene, viewing, args.ticks.as_deref()).map_err(at)?;
+            chart::render(&c, args.size, format)
+        }
+        Kind::ThicknessAngle => {
+            let variation = variation(args);
+            let bar = Progress::new(args.steps as u64, "thickness rows");
+            let done = AtomicU64::new(0);
+            let c = ThicknessAngle::compute(scene, viewing, &variation, args.steps, &|| {
+                bar.set(done.fetch_add(1, Ordering::Relaxed) + 1, String::new())
+            })
+            .map_err(at)?;
+            bar.finish();
+            chart::render(&c, args.size, format)
+        }
+        Kind::Spectra => {
+            let c = SpectraChart::compute(
+                &pairs,
+                &args.angles,
+                &polarizations(&args.curves),
+                args.transmittance,
+            )
+            .map_err(at)?;
+            chart::render(&c, args.size, format)
+        }
+        Kind::Map => {
+            let c = ReflectanceMap::compute(scene, viewing).map_err(at)?;
+            chart::render(&c, args.size, format)
+        }
+        Kind::Chromaticity => {
+            let c = Chromaticity::compute(&pairs).map_err(at)?;
+            chart::render(&c, args.size, format)
+        }
+        Kind::AbTravel => {
+            let c = AbTravel::compute(&pairs).map_err(at)?;
+            chart::render(&c, args.size, format)
+        }
+    }
+    .map_err(at)?;
+    write_out(Some(&args.output), &[bytes])
+}
+
+/// The thickness variation the flags ask for.
+fn variation(args: &Args) -> Variation {
+    match (args.layer, args.scale_range) {
+        (Some(layer), _) => Variation::Layer {
+            layer,
+            range_nm: args.thickness_range,
+        },
+        (None, Some((from, to))) => Variation::Scale { from, to },
+        (None, None) => Variation::Scale { from: 0.8, to: 1.2 },
+    }
+}

@@ -1,0 +1,280 @@
+//! `lamella report`: every chart of a scene (PNG and SVG) and one
+//! self-contained HTML page with the design, the colours and the cautions.
+
+use std::fmt::Write;
+use std::path::PathBuf;
+
+use lamella::angle_colour::{Polarization, Viewing};
+use lamella::chart::canvas::escape;
+use lamella::chart::{
+    self, AbTravel, AngleStrip, Chart, Chromaticity, Format, ReflectanceMap, Series, SpectraChart,
+    ThicknessAngle, Variation,
+};
+use lamella::colorimetry::travel;
+use lamella::scene::{Item, Scene};
+
+use super::color::ViewArgs;
+use super::design_args::Progress;
+use super::{CliResult, Failure, load_scene, write_out};
+
+/// Flags of `lamella report`.
+#[derive(Debug, Clone, clap::Args)]
+pub struct Args {
+    /// Scene file (JSON).
+    pub scene: PathBuf,
+    /// Folder to write into (created if missing); existing report files are replaced.
+    #[arg(short = 'o', long = "output")]
+    pub output: PathBuf,
+    /// Size of each chart in pixels, WIDTHxHEIGHT.
+    #[arg(long, default_value = "1200x800", value_parser = super::chart::parse_size)]
+    pub size: (u32, u32),
+    #[command(flatten)]
+    pub view: ViewArgs,
+}
+
+/// A drawn chart: file stem, heading and SVG text.
+struct Drawn {
+    stem: &'static str,
+    heading: &'static str,
+    svg: String,
+}
+
+/// Runs the command.
+pub fn run(args: &Args) -> CliResult {
+    let scene = load_scene(&args.scene)?;
+    let viewing = args.view.viewing(&scene, &args.scene)?;
+    let at = |e: lamella::Error| Failure::input(format!("{}: {e}", args.scene.display()));
+    std::fs::create_dir_all(&args.output).map_err(|e| Failure::io(&args.output, e))?;
+    let pair = [(&scene, &viewing)];
+    let bar = Progress::new(6, "charts");
+    let mut drawn = Vec::new();
+    let mut emit = |stem: &'static str,
+                    heading: &'static str,
+                    c: &dyn Fn(Format) -> lamella::Result<Vec<u8>>|
+     -> CliResult {
+        let png = c(Format::Png).map_err(at)?;
+        write_out(Some(&args.output.join(format!("{stem}.png"))), &[png])?;
+        let svg = c(Format::Svg).map_err(at)?;
+        write_out(
+            Some(&args.output.join(format!("{stem}.svg"))),
+            std::slice::from_ref(&svg),
+        )?;
+        drawn.push(Drawn {
+            stem,
+            heading,
+            svg: String::from_utf8(svg).expect("SVG is UTF-8"),
+        });
+        bar.set(drawn.len() as u64, stem.to_string());
+        Ok(())
+    };
+    let size = args.size;
+    let strip = AngleStrip::compute(&scene, &viewing, None).map_err(at)?;
+    emit("angle-strip", "Colour against angle", &|f| {
+        chart::render(&strip, size, f)
+    })?;
+    let grid = ThicknessAngle::compute(
+        &scene,
+        &viewing,
+        &Variation::Scale { from: 0.9, to: 1.1 },
+        21,
+        &|| {},
+    )
+    .map_err(at)?;
+    emit(
+        "thickness-angle",
+        "Sensitivity to thickness (all layers scaled together)",
+        &|f| chart::render(&grid, size, f),
+    )?;
+    let spectra = SpectraChart::compute(
+        &pair,
+        &spectra_angles(&scene.angles_deg),
+        &[Polarization::Unpolarized, Polarization::S, Polarization::P],
+        true,
+    )
+    .map_err(at)?;
+    emit("spectra", "Spectra", &|f| chart::render(&spectra, size, f))?;
+    let map = ReflectanceMap::compute(&scene, &viewing).map_err(at)?;
+    emit("map", "Map over wavelength and angle", &|f| {
+        chart::render(&map, size, f)
+    })?;
+    let xy = Chromaticity::compute(&pair).map_err(at)?;
+    emit("chromaticity", "Chromaticity diagram", &|f| {
+        chart::render(&xy, size, f)
+    })?;
+    let ab = AbTravel::compute(&pair).map_err(at)?;
+    emit("ab-travel", "CIELAB travel", &|f| {
+        chart::render(&ab, size, f)
+    })?;
+    bar.finish();
+    let series = Series::of_scene(&scene, &viewing).map_err(at)?;
+    let html = page(&scene, &viewing, &series, &drawn, &strip.label());
+    write_out(Some(&args.output.join("index.html")), &[html.into_bytes()])
+}
+
+/// First, middle and last angle of the grid.
+fn spectra_angles(grid: &[f64]) -> Vec<f64> {
+    let mut a = vec![grid[0], grid[grid.len() / 2], grid[grid.len() - 1]];
+    a.dedup();
+    a
+}
+
+fn stack_rows(scene: &Scene, items: &[Item], depth: usize, next: &mut usize, out: &mut String) {
+    for item in items {
+        match item {
+            Item::Layer(l) => {
+                *next += 1;
+                let _ = writeln!(
+                    out,
+                    "<tr><td>{}</td><td style=\"padding-left:{}em\">{}</td><td class=n>{}</td></tr>",
+                    next,
+                    depth * 2,
+                    escape(&scene.media[l.medium].name),
+                    l.thickness_nm
+                );
+            }
+            Item::Repeat(r) => {
+                let _ = writeln!(
+                    out,
+                    "<tr class=group><td></td><td style=\"padding-left:{}em\" colspan=2>repeat × {}{}</td></tr>",
+                    depth * 2,
+                    r.count,
+                    if r.chirp_scale != 1.0 {
+                        format!(", last period scaled × {}", r.chirp_scale)
+                    } else {
+                        String::new()
+                    }
+                );
+                stack_rows(scene, &r.items, depth + 1, next, out);
+            }
+        }
+    }
+}
+
+fn page(
+    scene: &Scene,
+    viewing: &Viewing,
+    series: &Series,
+    drawn: &[Drawn],
+    _label: &str,
+) -> String {
+    let title = if scene.title.trim().is_empty() {
+        "Untitled scene"
+    } else {
+        scene.title.as_str()
+    };
+    let mut h = String::new();
+    let _ = write!(
+        h,
+        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">\
+<title>{t} — colour report</title>\n<style>{CSS}</style></head><body>\n\
+<header><h1>{t}</h1><p class=meta>{v}</p></header>\n",
+        t = escape(title),
+        v = escape(&lamella::chart::describe(viewing)),
+    );
+    h.push_str("<section class=caution><h2>Before you decide</h2><ul>\
+<li>Colours on screen are an approximation: the swatches are sRGB renderings of computed spectra, and no display shows every colour exactly.</li>\
+<li>Sign-off needs a measured sample viewed under the same light as stated here; manufacturing tolerances, roughness and the viewing geometry change the colour.</li>\
+</ul></section>\n");
+    // Design.
+    h.push_str("<section><h2>Design</h2><table><thead><tr><th>Layer</th><th>Material</th><th>Thickness (nm)</th></tr></thead><tbody>\n");
+    let _ = writeln!(
+        h,
+        "<tr class=group><td></td><td colspan=2>incident: {}</td></tr>",
+        escape(&scene.media[scene.incident].name)
+    );
+    stack_rows(scene, &scene.stack, 0, &mut 0, &mut h);
+    let substrate = match &scene.substrate {
+        lamella::scene::Substrate::Medium(m) => escape(&scene.media[*m].name),
+        lamella::scene::Substrate::Sheet {
+            medium,
+            thickness_um,
+            ..
+        } => {
+            format!(
+                "{} sheet, {thickness_um} µm",
+                escape(&scene.media[*medium].name)
+            )
+        }
+    };
+    let _ = writeln!(
+        h,
+        "<tr class=group><td></td><td colspan=2>substrate: {substrate}</td></tr></tbody></table></section>"
+    );
+    // Colours.
+    h.push_str("<section><h2>Colour at each angle</h2><table><thead><tr><th>Angle</th><th>Swatch</th><th>Hex</th><th>L*</th><th>a*</th><th>b*</th><th>C*</th><th>h (°)</th><th>sRGB gamut</th></tr></thead><tbody>\n");
+    for (a, c) in series.angles.iter().zip(&series.colours) {
+        let _ = writeln!(
+            h,
+            "<tr><td class=n>{a}°</td><td><span class=sw style=\"background:{hex}\"></span></td><td>{hex}</td><td class=n>{:.1}</td><td class=n>{:.1}</td><td class=n>{:.1}</td><td class=n>{:.1}</td><td class=n>{:.0}</td><td>{}</td></tr>",
+            c.lab[0],
+            c.lab[1],
+            c.lab[2],
+            c.lch[1],
+            c.lch[2],
+            if c.in_gamut {
+                "inside"
+            } else {
+                "<b class=warn>outside</b>"
+            },
+            hex = c.hex,
+        );
+    }
+    h.push_str("</tbody></table>\n");
+    let samples: Vec<(f64, [f64; 3])> = series
+        .angles
+        .iter()
+        .copied()
+        .zip(series.colours.iter().map(|c| c.lab))
+        .collect();
+    if let Ok(t) = travel(&samples) {
+        let _ = writeln!(
+            h,
+            "<h3>Colour travel</h3><p>From {}° to {}°: hue changes by {:+.1}°, ΔE00 between the ends is {:.1}; the colour changes fastest near {:.1}° ({:.2} ΔE00 per degree).</p>",
+            series.angles[0],
+            series.angles[series.angles.len() - 1],
+            t.hue_change_deg,
+            t.delta_e2000,
+            t.steepest_angle_deg,
+            t.steepest_rate_per_deg
+        );
+    }
+    let outside: Vec<String> = series
+        .angles
+        .iter()
+        .zip(&series.colours)
+        .filter(|(_, c)| !c.in_gamut)
+        .map(|(a, _)| format!("{a}°"))
+        .collect();
+    if outside.is_empty() {
+        h.push_str("<p>Every colour lies inside the sRGB gamut.</p>");
+    } else {
+        let _ = writeln!(
+            h,
+            "<p class=warn><b>Gamut warning:</b> at {} the colour lies outside sRGB; its swatch is clipped to the nearest displayable colour and differs from the real one.</p>",
+            outside.join(", ")
+        );
+    }
+    h.push_str("</section>\n");
+    for d in drawn {
+        let svg = d
+            .svg
+            .split_once("?>")
+            .map_or(d.svg.as_str(), |(_, rest)| rest);
+        let _ = writeln!(
+            h,
+            "<section class=chart><h2>{}</h2>{svg}<p class=files>Files: <a href=\"{s}.png\">{s}.png</a> · <a href=\"{s}.svg\">{s}.svg</a></p></section>",
+            escape(d.heading),
+            s = d.stem
+        );
+    }
+    h.push_str("<footer>Made with lamella.</footer></body></html>\n");
+    h
+}
+
+const CSS: &str = "body{font-family:'DejaVu Sans',Verdana,sans-serif;color:#1b2330;max-width:1240px;margin:2em auto;padding:0 1em;line-height:1.45}\
+header{border-left:6px solid #0b6e69;padding-left:1em}h1{margin:0}.meta{color:#5a6473;margin:.2em 0 0}\
+h2{border-bottom:1px solid #e4e7ec;padding-bottom:.2em;margin-top:2em}table{border-collapse:collapse}\
+td,th{padding:.25em .8em;border-bottom:1px solid #e4e7ec;text-align:left}td.n{text-align:right;font-variant-numeric:tabular-nums}\
+tr.group td{color:#5a6473;font-style:italic}.sw{display:inline-block;width:3em;height:1.2em;border:1px solid #9aa3ae;vertical-align:middle}\
+.warn{color:#b34700}.caution{background:#fff6e5;border:1px solid #e6c07a;padding:.2em 1em;margin-top:1.5em}\
+.chart svg{width:100%;height:auto;border:1px solid #e4e7ec}.files{color:#5a6473;font-size:.9em}footer{margin:3em 0 1em;color:#9aa3ae;font-size:.85em}";
