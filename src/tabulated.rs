@@ -113,6 +113,11 @@ impl Spectral {
         (self.wl_nm[0], self.wl_nm[self.wl_nm.len() - 1])
     }
 
+    /// The wavelengths (nm).
+    pub fn wavelengths(&self) -> &[f64] {
+        &self.wl_nm
+    }
+
     /// Number of value columns (after the wavelength).
     pub fn columns(&self) -> usize {
         self.cols.len()

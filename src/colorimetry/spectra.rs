@@ -6,100 +6,25 @@ use std::str::FromStr;
 use std::sync::OnceLock;
 
 use crate::error::{Error, Result};
+use crate::tabulated::Spectral;
 
-/// Columns against wavelength, strictly increasing in wavelength, linearly
-/// interpolated (linear interpolation of tabulated data as CIE 015:2018 allows).
-#[derive(Debug, Clone, PartialEq)]
-pub(crate) struct Table {
-    wl_nm: Vec<f64>,
-    cols: Vec<Vec<f64>>,
-}
+/// Spectral tables here are CIE data or lights: linearly interpolated (as CIE
+/// 015:2018 allows for tabulated data) and never negative.
+pub(crate) type Table = Spectral;
 
-impl Table {
-    /// Parses CSV text whose header is exactly `header`; `#` lines and blank
-    /// lines are skipped. `key` names the source in errors.
-    pub(crate) fn from_csv(key: &str, text: &str, header: &[&str]) -> Result<Self> {
-        let mut lines = text
-            .lines()
-            .enumerate()
-            .filter(|(_, l)| !l.trim().is_empty() && !l.trim_start().starts_with('#'));
-        let (_, head) = lines
-            .next()
-            .ok_or_else(|| Error::invalid(key, "(empty)", "the CSV text has no header"))?;
-        if !head.split(',').map(str::trim).eq(header.iter().copied()) {
+/// Parses a table whose header is exactly `header` and whose values are all ≥ 0.
+fn table_from_csv(key: &str, text: &str, header: &[&str]) -> Result<Table> {
+    let (table, _) = Spectral::from_csv(key, text, &[header])?;
+    for (c, name) in header[1..].iter().enumerate() {
+        if let Some(&v) = table.column(c).iter().find(|&&v| v < 0.0) {
             return Err(Error::invalid(
-                format!("{key} header"),
-                head.trim(),
-                format!("expected `{}`", header.join(",")),
+                format!("{key} {name}"),
+                v,
+                "must not be negative",
             ));
         }
-        let mut wl_nm = Vec::new();
-        let mut cols = vec![Vec::new(); header.len() - 1];
-        for (i, line) in lines {
-            let at = || format!("{key} line {}", i + 1);
-            let vals: Vec<&str> = line.split(',').map(str::trim).collect();
-            if vals.len() != header.len() {
-                return Err(Error::invalid(
-                    at(),
-                    line.trim(),
-                    format!("expected {} columns", header.len()),
-                ));
-            }
-            for (j, s) in vals.iter().enumerate() {
-                let v = s
-                    .parse::<f64>()
-                    .ok()
-                    .filter(|v| v.is_finite())
-                    .ok_or_else(|| Error::invalid(at(), s, "not a finite number"))?;
-                if j == 0 {
-                    if wl_nm.last().is_some_and(|&last| v <= last) {
-                        return Err(Error::invalid(
-                            at(),
-                            v,
-                            "wavelengths must increase strictly",
-                        ));
-                    }
-                    wl_nm.push(v);
-                } else if v < 0.0 {
-                    return Err(Error::invalid(
-                        format!("{} {}", at(), header[j]),
-                        v,
-                        "must not be negative",
-                    ));
-                } else {
-                    cols[j - 1].push(v);
-                }
-            }
-        }
-        if wl_nm.len() < 2 {
-            return Err(Error::invalid(
-                key,
-                format!("{} rows", wl_nm.len()),
-                "a spectrum needs at least two rows",
-            ));
-        }
-        Ok(Table { wl_nm, cols })
     }
-
-    /// First and last tabulated wavelength (nm).
-    pub(crate) fn span(&self) -> (f64, f64) {
-        (self.wl_nm[0], self.wl_nm[self.wl_nm.len() - 1])
-    }
-
-    /// Column `col` linearly interpolated at `wl_nm`; `None` outside the table.
-    pub(crate) fn at(&self, col: usize, wl_nm: f64) -> Option<f64> {
-        let (lo, hi) = self.span();
-        if !(wl_nm >= lo && wl_nm <= hi) {
-            return None;
-        }
-        let j = self
-            .wl_nm
-            .partition_point(|&w| w <= wl_nm)
-            .clamp(1, self.wl_nm.len() - 1);
-        let (w0, w1) = (self.wl_nm[j - 1], self.wl_nm[j]);
-        let v = &self.cols[col];
-        Some(v[j - 1] + (wl_nm - w0) / (w1 - w0) * (v[j] - v[j - 1]))
-    }
+    Ok(table)
 }
 
 /// Parses an embedded table; they are checked by the tests, so failure is a build defect.
@@ -109,7 +34,7 @@ fn embedded(
     text: &str,
     header: &[&str],
 ) -> &'static Table {
-    cell.get_or_init(|| Table::from_csv(key, text, header).expect("embedded CIE table is valid"))
+    cell.get_or_init(|| table_from_csv(key, text, header).expect("embedded CIE table is valid"))
 }
 
 const CMF_HEADER: &[&str] = &["wavelength_nm", "xbar", "ybar", "zbar"];
@@ -162,11 +87,11 @@ impl Observer {
     /// are left out.
     pub fn spectrum_locus(self) -> Vec<(f64, f64, f64)> {
         let t = self.cmfs();
-        t.wl_nm
+        t.wavelengths()
             .iter()
             .enumerate()
             .filter_map(|(i, &w)| {
-                let (x, y, z) = (t.cols[0][i], t.cols[1][i], t.cols[2][i]);
+                let (x, y, z) = (t.column(0)[i], t.column(1)[i], t.column(2)[i]);
                 let sum = x + y + z;
                 (sum > 0.0).then(|| (w, x / sum, y / sum))
             })
@@ -271,7 +196,7 @@ impl Illuminant {
     pub fn from_csv(name: &str, text: &str) -> Result<Self> {
         Ok(Illuminant {
             name: name.to_string(),
-            table: Table::from_csv(name, text, POWER_HEADER)?,
+            table: table_from_csv(name, text, POWER_HEADER)?,
         })
     }
 
