@@ -54,6 +54,7 @@ pub fn compute(
     let nw = wavelengths_nm.len();
     let incident = realisations[0].incident;
     let weight = 1.0 / realisations.len() as f64;
+    let sines: Vec<f64> = angles_deg.iter().map(|a| a.to_radians().sin()).collect();
     let rt = (0..angles_deg.len() * nw)
         .into_par_iter()
         .with_min_len(32)
@@ -62,7 +63,7 @@ pub fn compute(
             |terms: &mut Vec<MediumTerms>, i| {
                 let (a, w) = (i / nw, i % nw);
                 let wl = wavelengths_nm[w];
-                let beta = index[incident][w].re * angles_deg[a].to_radians().sin();
+                let beta = index[incident][w].re * sines[a];
                 terms.clear();
                 terms.extend(index.iter().map(|n| MediumTerms::new(n[w], beta)));
                 let k0 = 2.0 * PI / wl;

@@ -222,7 +222,12 @@ fn coherent(eta0: Complex64, eta_m: Complex64, f: &Field) -> (f64, f64) {
     let [b, c] = f.v;
     let den = eta0 * b + c;
     let r = (eta0 * b - c) / den;
-    let t = 4.0 * eta0.norm_sqr() * eta_m.re / (eta0.re * den.norm_sqr()) * (-2.0 * f.log).exp();
+    let scale = if f.log == 0.0 {
+        1.0
+    } else {
+        (-2.0 * f.log).exp()
+    };
+    let t = 4.0 * eta0.norm_sqr() * eta_m.re / (eta0.re * den.norm_sqr()) * scale;
     (r.norm_sqr(), t)
 }
 
