@@ -5,12 +5,14 @@ use crate::error::{Error, Result};
 use super::spectra::{Illuminant, Observer};
 
 /// Per-wavelength tristimulus weights for one (grid, illuminant, observer):
-/// W_x(λ_i) = k S(λ_i) x̄(λ_i) (likewise y, z) with k = 100 / Σ S(λ_i) ȳ(λ_i),
-/// so that X = Σ W_x R and the perfect reflecting diffuser has Y = 100
-/// (CIE 015:2018, by summation over the grid; the interval
-/// Δλ cancels in k for the evenly spaced grids a scene describes). S, x̄, ȳ, z̄
-/// are put onto the grid by linear interpolation of the tabulated values
-/// (CIE 015:2018).
+/// W_x(λ_i) = k S(λ_i) x̄(λ_i) Δλ_i (likewise y, z) with
+/// k = 100 / Σ S(λ_i) ȳ(λ_i) Δλ_i, so that X = Σ W_x R and the perfect
+/// reflecting diffuser has Y = 100 (CIE 015:2018, by summation over the grid).
+/// On an evenly spaced grid every Δλ_i is the step and cancels in k, which is
+/// the plain summation of CIE practice; on a grid written as an uneven list
+/// Δλ_i is half the distance between a point's neighbours (the full spacing
+/// at the ends). S, x̄, ȳ, z̄ are put onto the grid by linear interpolation of
+/// the tabulated values (CIE 015:2018).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Weights {
     wx: Vec<f64>,
@@ -20,9 +22,11 @@ pub struct Weights {
 }
 
 impl Weights {
-    /// Weights for the grid `wavelengths_nm`. Every grid point must lie inside
-    /// both the observer's table (360–830 nm) and the illuminant's; a point
-    /// outside is an error naming it (no silent zero weight).
+    /// Weights for the grid `wavelengths_nm`. Points outside the observer's
+    /// table (360–830 nm) get zero weight: the observer does not see there, so
+    /// spectra computed over a wider range (UV to near infrared) still have a
+    /// colour. A point the observer sees but the illuminant's table does not
+    /// cover is an error naming it (no silent zero weight where it matters).
     pub fn new(
         wavelengths_nm: &[f64],
         illuminant: &Illuminant,
@@ -40,29 +44,28 @@ impl Weights {
             Vec::with_capacity(n),
         );
         for (i, &wl) in wavelengths_nm.iter().enumerate() {
-            let outside = |(lo, hi): (f64, f64), what: String| {
+            let cmf = |c| cmfs.at(c, wl);
+            let (Some(x), Some(y), Some(z)) = (cmf(0), cmf(1), cmf(2)) else {
+                wx.push(0.0);
+                wy.push(0.0);
+                wz.push(0.0);
+                continue;
+            };
+            let s = light.at(0, wl).ok_or_else(|| {
+                let (lo, hi) = light.span();
                 Error::invalid(
                     format!("wavelengths[{i}]"),
                     wl,
-                    format!("outside {what} ({lo}–{hi} nm)"),
-                )
-            };
-            let s = light.at(0, wl).ok_or_else(|| {
-                outside(
-                    light.span(),
-                    format!("the table of illuminant {}", illuminant.name()),
+                    format!(
+                        "outside the table of illuminant {} ({lo}–{hi} nm) where the observer still sees; limit the grid to that range",
+                        illuminant.name()
+                    ),
                 )
             })?;
-            let cmf = |c| cmfs.at(c, wl);
-            let (Some(x), Some(y), Some(z)) = (cmf(0), cmf(1), cmf(2)) else {
-                return Err(outside(
-                    cmfs.span(),
-                    format!("the colour-matching functions of {observer}"),
-                ));
-            };
-            wx.push(s * x);
-            wy.push(s * y);
-            wz.push(s * z);
+            let d = interval(wavelengths_nm, i);
+            wx.push(s * x * d);
+            wy.push(s * y * d);
+            wz.push(s * z * d);
         }
         let sum_y: f64 = wy.iter().sum();
         if !(sum_y > 0.0) {
@@ -109,6 +112,18 @@ impl Weights {
     /// illuminant and observer (Y = 100): the CIELAB reference white.
     pub fn white(&self) -> [f64; 3] {
         self.white
+    }
+}
+
+/// The wavelength interval a grid point stands for: half the distance between
+/// its neighbours, the full spacing at the ends, 1 for a single point.
+fn interval(grid: &[f64], i: usize) -> f64 {
+    let n = grid.len();
+    match (i.checked_sub(1), (i + 1 < n).then_some(i + 1)) {
+        (Some(a), Some(b)) => 0.5 * (grid[b] - grid[a]),
+        (None, Some(b)) => grid[b] - grid[i],
+        (Some(a), None) => grid[i] - grid[a],
+        (None, None) => 1.0,
     }
 }
 
@@ -159,10 +174,36 @@ mod tests {
     }
 
     #[test]
+    fn the_observers_range_limits_the_sum_and_uneven_grids_are_weighted() {
+        let d65 = Illuminant::builtin("D65").unwrap();
+        let wide: Vec<f64> = (0..=120).map(|i| 300.0 + 5.0 * i as f64).collect();
+        let visible = grid(360.0, 830.0, 5.0);
+        let a = Weights::new(&wide, &d65, Observer::Cie1931_2).unwrap();
+        let b = Weights::new(&visible, &d65, Observer::Cie1931_2).unwrap();
+        // Points outside 360–830 nm carry no weight.
+        assert!(
+            a.white()
+                .iter()
+                .zip(b.white())
+                .all(|(x, y)| (x - y).abs() < 1e-9)
+        );
+        // A uniform grid written as a list, with every other point removed in
+        // one half, keeps the white point close to the uniform result.
+        let mut uneven: Vec<f64> = grid(380.0, 580.0, 5.0);
+        uneven.extend(grid(590.0, 780.0, 10.0));
+        let u = Weights::new(&uneven, &d65, Observer::Cie1931_2).unwrap();
+        let full = Weights::new(&grid(380.0, 780.0, 5.0), &d65, Observer::Cie1931_2).unwrap();
+        let (x0, y0) = chromaticity(&full);
+        let (x1, y1) = chromaticity(&u);
+        assert!(
+            (x0 - x1).abs() < 2e-3 && (y0 - y1).abs() < 2e-3,
+            "{x0} {y0} vs {x1} {y1}"
+        );
+    }
+
+    #[test]
     fn grid_points_outside_the_tables_are_refused() {
         let d65 = Illuminant::builtin("D65").unwrap();
-        let err = Weights::new(&[350.0, 400.0], &d65, Observer::Cie1931_2).unwrap_err();
-        assert!(err.to_string().contains("wavelengths[0] = 350"), "{err}");
         let f2 = Illuminant::builtin("F2").unwrap();
         let err = Weights::new(&grid(360.0, 830.0, 10.0), &f2, Observer::Cie1931_2).unwrap_err();
         assert!(err.to_string().contains("illuminant F2"), "{err}");
