@@ -7,7 +7,7 @@ use std::path::PathBuf;
 use lamella::angle_colour::{Polarization, Viewing};
 use lamella::chart::canvas::escape;
 use lamella::chart::{
-    self, AbTravel, AngleStrip, Chart, Chromaticity, Format, ReflectanceMap, Series, SpectraChart,
+    self, AbTravel, AngleStrip, Chromaticity, Format, ReflectanceMap, Series, SpectraChart,
     ThicknessAngle, Variation,
 };
 use lamella::colorimetry::travel;
@@ -68,10 +68,13 @@ pub fn run(args: &Args) -> CliResult {
         Ok(())
     };
     let size = args.size;
-    let strip = AngleStrip::compute(&scene, &viewing, None).map_err(at)?;
-    emit("angle-strip", "Colour against angle", &|f| {
-        chart::render(&strip, size, f)
-    })?;
+    // A strip needs a range of angles; a single-angle scene gets the rest.
+    if scene.angles_deg.len() >= 2 {
+        let strip = AngleStrip::compute(&scene, &viewing, None).map_err(at)?;
+        emit("angle-strip", "Colour against angle", &|f| {
+            chart::render(&strip, size, f)
+        })?;
+    }
     let grid = ThicknessAngle::compute(
         &scene,
         &viewing,
@@ -107,7 +110,7 @@ pub fn run(args: &Args) -> CliResult {
     })?;
     bar.finish();
     let series = Series::of_scene(&scene, &viewing).map_err(at)?;
-    let html = page(&scene, &viewing, &series, &drawn, &strip.label());
+    let html = page(&scene, &viewing, &series, &drawn);
     write_out(Some(&args.output.join("index.html")), &[html.into_bytes()])
 }
 
@@ -150,13 +153,7 @@ fn stack_rows(scene: &Scene, items: &[Item], depth: usize, next: &mut usize, out
     }
 }
 
-fn page(
-    scene: &Scene,
-    viewing: &Viewing,
-    series: &Series,
-    drawn: &[Drawn],
-    _label: &str,
-) -> String {
+fn page(scene: &Scene, viewing: &Viewing, series: &Series, drawn: &[Drawn]) -> String {
     let title = if scene.title.trim().is_empty() {
         "Untitled scene"
     } else {
