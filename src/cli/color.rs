@@ -210,9 +210,8 @@ fn table(title: &str, v: &Viewing, angles: &[f64], colours: &[Colour], swatches:
         if swatches { "swatch" } else { "" }
     ));
     for (a, c) in angles.iter().zip(colours) {
-        let [red, green, blue] = c.rgb.map(|x| (x * 255.0).round() as u8);
         let swatch = if swatches {
-            format!("\x1b[48;2;{red};{green};{blue}m        \x1b[0m")
+            super::swatch(c.rgb)
         } else {
             String::new()
         };

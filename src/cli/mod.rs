@@ -29,6 +29,12 @@ pub enum RecordFormat {
     Table,
 }
 
+/// A true-colour terminal swatch of an encoded sRGB colour (0–1 per channel).
+pub fn swatch(rgb: [f64; 3]) -> String {
+    let [r, g, b] = rgb.map(|x| (x * 255.0).round() as u8);
+    format!("\x1b[48;2;{r};{g};{b}m        \x1b[0m")
+}
+
 /// A failure with the exit code it maps to.
 #[derive(Debug)]
 pub struct Failure {

@@ -227,9 +227,8 @@ fn table(title: &str, m: &Measurement, illuminant: &str, observer: &str, swatche
     ));
     for g in &m.geometries {
         let c = &g.colour;
-        let [red, green, blue] = c.rgb.map(|x| (x * 255.0).round() as u8);
         let swatch = if swatches {
-            format!("\x1b[48;2;{red};{green};{blue}m        \x1b[0m")
+            super::swatch(c.rgb)
         } else {
             String::new()
         };

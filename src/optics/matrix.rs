@@ -163,19 +163,8 @@ impl Mat {
     }
 
     /// `self^n` by binary powering: O(log n) products.
-    pub fn pow(&self, mut n: u64) -> Mat {
-        let mut base = *self;
-        let mut acc = Mat::identity();
-        while n > 0 {
-            if n & 1 == 1 {
-                acc = acc.mul(&base);
-            }
-            n >>= 1;
-            if n > 0 {
-                base = base.mul(&base);
-            }
-        }
-        acc
+    pub fn pow(&self, n: u64) -> Mat {
+        power(*self, n, Mat::identity(), Mat::mul)
     }
 
     /// The matrix of the same layers in reverse order. Every layer matrix has
@@ -275,19 +264,9 @@ impl RealPair {
         out
     }
 
-    /// `self^n` by binary powering.
-    pub fn pow(&self, mut n: u64) -> RealPair {
-        let (mut base, mut acc) = (*self, RealPair::identity());
-        while n > 0 {
-            if n & 1 == 1 {
-                acc = acc.mul(&base);
-            }
-            n >>= 1;
-            if n > 0 {
-                base = base.mul(&base);
-            }
-        }
-        acc
+    /// `self^n` by binary powering: O(log n) products.
+    pub fn pow(&self, n: u64) -> RealPair {
+        power(*self, n, RealPair::identity(), RealPair::mul)
     }
 
     /// The two matrices (s, p) in complex form.
@@ -303,4 +282,20 @@ impl RealPair {
         };
         (lane(0), lane(1))
     }
+}
+
+/// `base^n` by binary powering (square and multiply) for any associative product.
+#[inline]
+fn power<T: Copy>(mut base: T, mut n: u64, identity: T, mul: fn(&T, &T) -> T) -> T {
+    let mut acc = identity;
+    while n > 0 {
+        if n & 1 == 1 {
+            acc = mul(&acc, &base);
+        }
+        n >>= 1;
+        if n > 0 {
+            base = mul(&base, &base);
+        }
+    }
+    acc
 }
