@@ -2,6 +2,9 @@
 //! characteristic-matrix method, optical constants, colorimetry and the
 //! design tools built on them. The library does no file or terminal I/O.
 
+// `!(x > 0.0)` is written on purpose throughout: it also rejects NaN.
+#![allow(clippy::neg_cmp_op_on_partial_ord)]
+
 pub mod angle_colour;
 pub mod chart;
 pub mod colorimetry;

@@ -1,5 +1,8 @@
 //! `lamella`: the command-line front end of the structural-colour engine.
 
+// `!(x > 0.0)` is written on purpose: it also rejects NaN.
+#![allow(clippy::neg_cmp_op_on_partial_ord)]
+
 mod cli;
 
 use std::path::PathBuf;

@@ -104,7 +104,7 @@ impl<'a> Registry<'a> {
         }
     }
 
-    fn user_model(&self, v: &Value, key: &str, chain: &mut Vec<String>) -> Result<Dispersion> {
+    fn user_model(&self, v: &Value, key: &str, chain: &[String]) -> Result<Dispersion> {
         let o = Obj::new(v, key)?;
         o.only(&[
             "n",
@@ -196,7 +196,7 @@ impl<'a> Registry<'a> {
                     let name = o
                         .str(role)?
                         .ok_or_else(|| o.missing(role, "a material name"))?;
-                    Ok(self.dispersion(name, &o.key(role), &mut chain.clone())?.0)
+                    Ok(self.dispersion(name, &o.key(role), &mut chain.to_vec())?.0)
                 };
                 Dispersion::Mixture {
                     rule,

@@ -69,10 +69,7 @@ pub(super) fn parse_items(v: &Value, path: &str, media: &mut Registry) -> Result
     let list = v
         .as_array()
         .ok_or_else(|| Error::invalid(path, show(v), "expected a list of layers"))?;
-    let pointer = format!(
-        "/{}",
-        path.replace('.', "/").replace('[', "/").replace(']', "")
-    );
+    let pointer = format!("/{}", path.replace(['.', '['], "/").replace(']', ""));
     list.iter()
         .enumerate()
         .map(|(i, item)| {
@@ -147,14 +144,14 @@ fn parse_item(v: &Value, path: &str, pointer: &str, media: &mut Registry) -> Res
         .get("vary_nm")
         .map(|v| pair(v, &o.key("vary_nm")))
         .transpose()?;
-    if let Some((lo, hi)) = vary_nm {
-        if lo < 0.0 || hi < lo {
-            return Err(Error::invalid(
-                o.key("vary_nm"),
-                format!("[{lo}, {hi}]"),
-                "needs 0 ≤ low ≤ high",
-            ));
-        }
+    if let Some((lo, hi)) = vary_nm
+        && (lo < 0.0 || hi < lo)
+    {
+        return Err(Error::invalid(
+            o.key("vary_nm"),
+            format!("[{lo}, {hi}]"),
+            "needs 0 ≤ low ≤ high",
+        ));
     }
     let sigma = parse_sigma(&o)?;
     Ok(Item::Layer(Layer {
@@ -180,18 +177,15 @@ fn parse_sigma(o: &Obj) -> Result<Option<Sigma>> {
         (None, Some(p)) => Some(Sigma::Pct(p)),
         (None, None) => None,
     };
-    if let Some(Sigma::Nm(s) | Sigma::Pct(s)) = sigma {
-        if s < 0.0 {
-            return Err(Error::invalid(
-                o.key(if nm.is_some() {
-                    "sigma_nm"
-                } else {
-                    "sigma_pct"
-                }),
-                s,
-                "must be ≥ 0",
-            ));
-        }
+    if let Some(Sigma::Nm(s) | Sigma::Pct(s)) = sigma
+        && s < 0.0
+    {
+        let key = if nm.is_some() {
+            "sigma_nm"
+        } else {
+            "sigma_pct"
+        };
+        return Err(Error::invalid(o.key(key), s, "must be ≥ 0"));
     }
     Ok(sigma)
 }
