@@ -251,8 +251,19 @@ impl PlateletTable {
     /// node, which follows the quadratic bottom of an interference minimum;
     /// angles beyond the last node take its values.
     fn at(&self, theta: f64, w: usize) -> Rt {
+        let (k, l) = self.lagrange(theta);
+        self.mix(k, &l, w)
+    }
+
+    /// The centre node and the three Lagrange weights for `theta` (radians).
+    fn lagrange(&self, theta: f64) -> (usize, [f64; 3]) {
         let (k, u) = stencil(self.step_deg, self.count, theta);
-        let l = [0.5 * u * (u - 1.0), 1.0 - u * u, 0.5 * u * (u + 1.0)];
+        (k, [0.5 * u * (u - 1.0), 1.0 - u * u, 0.5 * u * (u + 1.0)])
+    }
+
+    /// The weighted sum of the three nodes about `k` at wavelength `w`,
+    /// each component clamped to 0–1.
+    fn mix(&self, k: usize, l: &[f64; 3], w: usize) -> Rt {
         let node = |j: usize| self.rt[(k + j - 1) * self.nw + w];
         let (a, b, c) = (node(0), node(1), node(2));
         let mix = |p: f64, q: f64, r: f64| (l[0] * p + l[1] * q + l[2] * r).clamp(0.0, 1.0);
@@ -754,20 +765,14 @@ fn extinction_table(
         .into_par_iter()
         .map(|a| {
             let d = extinction_direction(a);
-            let hits: Vec<(f64, f64, f64)> = normals
-                .iter()
-                .map(|(m, wt)| {
-                    let c = dot(d, *m).abs().min(1.0);
-                    (c, c.acos(), *wt)
-                })
-                .collect();
-            let row = (0..nw)
-                .map(|w| {
-                    hits.iter()
-                        .map(|&(c, th, wt)| wt * c * (1.0 - table.at(th, w).t()))
-                        .sum::<f64>()
-                })
-                .collect();
+            let mut row = vec![0.0; nw];
+            for (m, wt) in normals {
+                let c = dot(d, *m).abs().min(1.0);
+                let (k, l) = table.lagrange(c.acos());
+                for (w, r) in row.iter_mut().enumerate() {
+                    *r += wt * c * (1.0 - table.mix(k, &l, w).t());
+                }
+            }
             (a, row)
         })
         .collect();
