@@ -705,6 +705,11 @@ impl Model {
         self.density.at(m[2].clamp(-1.0, 1.0).acos())
     }
 
+    /// The largest platelet tilt with a non-zero density, degrees.
+    pub fn max_tilt_deg(&self) -> f64 {
+        self.density.max_tilt.to_degrees()
+    }
+
     /// The binder's index at each wavelength.
     pub fn binder_index(&self) -> &[f64] {
         &self.n
