@@ -258,3 +258,129 @@ fn fit_recovers_platelet_thicknesses_from_multi_geometry_data() {
     assert!((scale - 1.0).abs() < 0.02, "{scale}");
     assert!(out.rms < 0.004, "{}", out.rms);
 }
+
+fn temp(name: &str) -> std::path::PathBuf {
+    let dir = std::env::temp_dir().join(format!("lamella-pigment-design-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    dir.join(name)
+}
+
+/// The command line: geometry targets in `match`, the geometry column in
+/// `fit`, per-geometry `tolerance`, and clear refusals.
+#[test]
+fn cli_takes_geometry_targets_and_measurements() {
+    let run = |args: &[&str]| {
+        std::process::Command::new(env!("CARGO_BIN_EXE_lamella"))
+            .args(args)
+            .output()
+            .unwrap()
+    };
+    let s = two_free_layers();
+    let path = temp("coating.json");
+    std::fs::write(&path, s.document.to_string()).unwrap();
+    let p = path.to_str().unwrap();
+    let out_scene = temp("matched.json");
+    let o = run(&[
+        "match",
+        p,
+        "--target-lab",
+        "60,0,10",
+        "--geometry",
+        "45as15",
+        "--goal",
+        "45as110:5,0,1",
+        "--max-evals",
+        "200",
+        "--out-scene",
+        out_scene.to_str().unwrap(),
+    ]);
+    assert!(
+        o.status.success() || o.status.code() == Some(0),
+        "{}",
+        String::from_utf8_lossy(&o.stderr)
+    );
+    let report: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(report["goals"][0]["geometry"], "45as15");
+    assert_eq!(report["goals"][1]["aspecular_deg"], 110.0);
+    assert!(report["goals"][0].get("angle_deg").is_none());
+    assert_eq!(
+        report["thicknesses_nm"][0]["pointer"],
+        "/coating/platelet/0"
+    );
+    // The written scene reads back with the new thicknesses.
+    let written: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(&out_scene).unwrap()).unwrap();
+    assert_eq!(
+        written["coating"]["platelet"][0]["thickness_nm"],
+        report["thicknesses_nm"][0]["value"]
+    );
+    // A coating needs --geometry; a film refuses geometry goals.
+    let o = run(&[
+        "match",
+        p,
+        "--target-lab",
+        "60,0,10",
+        "--out-scene",
+        out_scene.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("--geometry"));
+    let o = run(&[
+        "match",
+        p,
+        "--target-lab",
+        "60,0,10",
+        "--geometry",
+        "45",
+        "--out-scene",
+        out_scene.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(2));
+    // Tolerance reports per geometry.
+    let o = run(&["tolerance", p, "--sigma-nm", "2", "--samples", "20"]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let report: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(report["geometries"].as_array().unwrap().len(), 3);
+    assert_eq!(report["geometries"][2]["geometry"], "45as110");
+    assert!(report["geometries"][0]["delta_e00_p95"].as_f64().unwrap() > 0.0);
+    // Fit: a geometry column of reflectance factors.
+    let mut k = s.clone();
+    let coating = lamella::pigment::Coating::from_scene(&mut k).unwrap();
+    let model = Model::new(&k, &coating).unwrap();
+    let mut csv = String::from("geometry,wavelength_nm,R\n");
+    for g in &coating.geometries {
+        let mut rf = vec![0.0; k.wavelengths_nm.len()];
+        model.reflectance_factor(g.illumination, g.detection, &mut rf);
+        for (w, r) in k.wavelengths_nm.iter().zip(&rf) {
+            csv.push_str(&format!("{},{w},{r}\n", g.name));
+        }
+    }
+    let measured = temp("readings.csv");
+    std::fs::write(&measured, csv).unwrap();
+    let fitted = temp("fitted.json");
+    let o = run(&[
+        "fit",
+        p,
+        "--measured",
+        measured.to_str().unwrap(),
+        "--max-evals",
+        "300",
+        "--out-scene",
+        fitted.to_str().unwrap(),
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let report: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(report["geometries"][0], "45as15");
+    assert!(report["rms"].as_f64().unwrap() < 1e-3, "{}", report["rms"]);
+    // Bad geometry names are refused with exit code 2.
+    std::fs::write(&measured, "geometry,wavelength_nm,R\n45as200,500,0.1\n").unwrap();
+    let o = run(&[
+        "fit",
+        p,
+        "--measured",
+        measured.to_str().unwrap(),
+        "--out-scene",
+        fitted.to_str().unwrap(),
+    ]);
+    assert_eq!(o.status.code(), Some(2));
+}
