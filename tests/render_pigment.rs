@@ -256,7 +256,12 @@ fn flat_platelets_in_a_white_sky_mirror_it_with_their_reflectance() {
             if theta > 70.0 {
                 continue;
             }
-            let r = optics::compute(&[stack.clone()], &index, &s.wavelengths_nm, &[theta]);
+            let r = optics::compute(
+                std::slice::from_ref(&stack),
+                &index,
+                &s.wavelengths_nm,
+                &[theta],
+            );
             let spectrum: Vec<f64> = r.rt.iter().map(|x| x.r()).collect();
             let want = Colour::new(
                 weights.xyz(&spectrum),
