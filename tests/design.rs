@@ -3,6 +3,7 @@
 
 use lamella::angle_colour::{Viewing, angle_colours};
 use lamella::colorimetry::delta_e2000;
+use lamella::design::coating::At;
 use lamella::design::matching::{Goal, MatchSettings, match_colour};
 use lamella::design::search::Budget;
 use lamella::design::variables::{edited_document, varying};
@@ -73,7 +74,7 @@ fn random_feasible_targets_are_reached() {
         let x: Vec<f64> = (0..5).map(|_| rng.random_range(20.0..200.0)).collect();
         let target = labs(&with_design(&scene, &x))[0];
         let goals = vec![Goal {
-            angle_deg: 0.0,
+            at: At::Angle(0.0),
             lab: target,
         }];
         let out = match_colour(
@@ -110,7 +111,7 @@ fn fit_recovers_a_noisy_synthetic_spectrum() {
     let noise = Normal::new(0.0, 0.002).unwrap();
     let mut rng = StdRng::seed_from_u64(3);
     let measured = vec![Measured {
-        angle_deg: 0.0,
+        at: At::Angle(0.0),
         wavelengths_nm: s.wavelengths_nm.clone(),
         r: s.at_angle(0)
             .iter()
@@ -196,7 +197,7 @@ fn repeat_group_layer_is_one_shared_variable() {
     let target = labs(&with_design(&scene, &[75.0, 120.0]))[0];
     let mut s = settings(
         vec![Goal {
-            angle_deg: 0.0,
+            at: At::Angle(0.0),
             lab: target,
         }],
         1,
@@ -221,11 +222,11 @@ fn targets_at_two_angles_are_reached() {
     let l = labs(&with_design(&scene, &truth));
     let goals = vec![
         Goal {
-            angle_deg: 0.0,
+            at: At::Angle(0.0),
             lab: l[0],
         },
         Goal {
-            angle_deg: 45.0,
+            at: At::Angle(45.0),
             lab: l[1],
         },
     ];

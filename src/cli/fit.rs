@@ -1,4 +1,5 @@
-//! `lamella fit`: fit the `vary_nm` thicknesses to a measured reflectance spectrum.
+//! `lamella fit`: fit the `vary_nm` thicknesses to a measured reflectance
+//! spectrum, or a coating's platelet to measured reflectance factors.
 
 use std::path::PathBuf;
 use std::time::Instant;
@@ -6,18 +7,23 @@ use std::time::Instant;
 use lamella::design::fit::{FitSettings, fit, parse_measured};
 use lamella::design::search::Budget;
 use lamella::design::variables::edited_document;
-use serde_json::json;
+use serde_json::{Value, json};
 
 use super::design_args::{Format, json_bytes};
+use super::matching::point_json;
 use super::{CliResult, Failure, load_scene, write_out};
 
 /// Flags of `lamella fit`.
 #[derive(Debug, Clone, clap::Args)]
 pub struct FitArgs {
-    /// Scene file (JSON); layers with `vary_nm: [low, high]` are fitted.
+    /// Scene file (JSON); layers with `vary_nm: [low, high]` are fitted (with
+    /// a `coating` section, the platelet's).
     pub scene: PathBuf,
     /// Measured unpolarized reflectance: CSV with a header and columns
-    /// `wavelength_nm,R` (R as a fraction), optionally `angle_deg`.
+    /// `wavelength_nm,R` (R as a fraction), optionally `angle_deg`. For a
+    /// coating, a `geometry` column (names such as 45as15) instead, and R the
+    /// reflectance factor as a fraction: 1 is the perfect white diffuser
+    /// (Y = 100 in `multiangle`), so divide readings in percent by 100.
     #[arg(long, value_name = "FILE.csv")]
     pub measured: PathBuf,
     /// Angle of incidence of rows without an `angle_deg` column, degrees.
@@ -67,7 +73,6 @@ pub fn run(args: &FitArgs) -> CliResult {
     let report = json!({
         "rms": out.rms,
         "points": out.points,
-        "angles_deg": measured.iter().map(|m| m.angle_deg).collect::<Vec<_>>(),
         "thicknesses_nm": out.variables.iter().zip(&out.thicknesses_nm).zip(&out.uncertainties_nm)
             .map(|((v, t), u)| json!({
                 "pointer": v.pointer, "material": v.material, "value": t, "uncertainty": u,
@@ -78,5 +83,17 @@ pub fn run(args: &FitArgs) -> CliResult {
         "wall_time_s": started.elapsed().as_secs_f64(),
         "seed": args.seed,
     });
+    let mut report = report;
+    report[if measured[0].at.geometry().is_some() {
+        "geometries"
+    } else {
+        "angles_deg"
+    }] = measured
+        .iter()
+        .map(|m| match point_json(&m.at).into_iter().next() {
+            Some((_, v)) => v,
+            None => Value::Null,
+        })
+        .collect();
     write_out(args.output.as_deref(), &[json_bytes(&report)])
 }

@@ -1,9 +1,11 @@
-//! `lamella match`: optimise the `vary_nm` thicknesses toward a target colour.
+//! `lamella match`: optimise the `vary_nm` thicknesses toward a target colour
+//! (at angles for a film, at geometries for a coating's platelet).
 
 use std::path::{Path, PathBuf};
 use std::time::Instant;
 
 use lamella::colorimetry::Colour;
+use lamella::design::coating::At;
 use lamella::design::matching::{Goal, MatchOutcome, MatchSettings, match_colour};
 use lamella::design::search::Budget;
 use lamella::design::variables::edited_document;
@@ -17,20 +19,34 @@ use super::{CliResult, Failure, load_scene, write_out};
 #[derive(Debug, Clone, clap::Args)]
 pub struct MatchArgs {
     /// Scene file (JSON); layers with `vary_nm: [low, high]` are optimised
-    /// (a layer in a repeat group is one variable for all its periods).
+    /// (a layer in a repeat group is one variable for all its periods). With
+    /// a `coating` section, the platelet's `vary_nm` layers are optimised and
+    /// targets are given at geometries (--geometry, GEOMETRY:L,a,b goals),
+    /// the colour being that of the coating's reflectance factor there.
     pub scene: PathBuf,
     #[command(flatten)]
     pub target: TargetArgs,
-    /// Angle of incidence of the main target, degrees.
-    #[arg(long, default_value_t = 0.0, allow_hyphen_values = true)]
-    pub angle: f64,
-    /// A further target `ANGLE:L,a,b` (repeatable), to shape the colour travel.
-    #[arg(long = "goal", value_name = "ANGLE:L,a,b", allow_hyphen_values = true)]
+    /// Angle of incidence of the main target, degrees (films). [default: 0]
+    #[arg(long, allow_hyphen_values = true, conflicts_with = "geometry")]
+    pub angle: Option<f64>,
+    /// Geometry of the main target (coatings): ILLUMINATIONasASPECULAR, e.g.
+    /// 45as15 (illumination 45° from the normal, detection 15° from the
+    /// specular direction toward the normal).
+    #[arg(long, allow_hyphen_values = true)]
+    pub geometry: Option<String>,
+    /// A further target `ANGLE:L,a,b` (films) or `GEOMETRY:L,a,b` (coatings,
+    /// e.g. 45as110:40,5,20), repeatable, to shape the colour travel.
+    #[arg(
+        long = "goal",
+        value_name = "ANGLE|GEOMETRY:L,a,b",
+        allow_hyphen_values = true
+    )]
     pub goals: Vec<String>,
-    /// Upper limit on the total physical thickness of the stack, nm.
+    /// Upper limit on the total physical thickness of the stack (or of the
+    /// coating's platelet), nm.
     #[arg(long)]
     pub max_total_nm: Option<f64>,
-    /// Pull toward bright reflectance: adds W·(1 − Y/100) at the main angle
+    /// Pull toward bright reflectance: adds W·(1 − Y/100) at the main target
     /// to the cost, in ΔE00 units (0 = colour only).
     #[arg(long, default_value_t = 0.0)]
     pub brightness_weight: f64,
@@ -62,21 +78,32 @@ pub fn run(args: &MatchArgs) -> CliResult {
         .target
         .lab(&viewing, &scene.wavelengths_nm)?
         .ok_or_else(|| Failure::input("give --target-lab L,a,b or --target-hex #RRGGBB"))?;
-    let mut goals = vec![Goal {
-        angle_deg: args.angle,
-        lab,
-    }];
+    let main = match (&args.geometry, args.angle) {
+        (Some(g), _) => geometry(g, "--geometry")?,
+        (None, _) if scene.document.get("coating").is_some() => {
+            return Err(Failure::input(
+                "this scene has a coating: give the target's geometry with --geometry (e.g. 45as15)",
+            ));
+        }
+        (None, a) => At::Angle(a.unwrap_or(0.0)),
+    };
+    let mut goals = vec![Goal { at: main, lab }];
     for g in &args.goals {
         let bad = |why: String| Failure::input(format!("--goal {g}: {why}"));
-        let (angle, lab) = g
+        let (at, lab) = g
             .split_once(':')
-            .ok_or_else(|| bad("expected ANGLE:L,a,b".into()))?;
-        let angle_deg = angle
-            .trim()
-            .parse::<f64>()
-            .map_err(|_| bad(format!("`{angle}` is not an angle")))?;
+            .ok_or_else(|| bad("expected ANGLE:L,a,b or GEOMETRY:L,a,b".into()))?;
+        let at = if at.contains("as") {
+            geometry(at, "--goal")?
+        } else {
+            At::Angle(
+                at.trim()
+                    .parse::<f64>()
+                    .map_err(|_| bad(format!("`{at}` is not an angle or a geometry")))?,
+            )
+        };
         goals.push(Goal {
-            angle_deg,
+            at,
             lab: parse_lab(lab).map_err(bad)?,
         });
     }
@@ -121,6 +148,36 @@ pub fn run(args: &MatchArgs) -> CliResult {
     Ok(())
 }
 
+/// One geometry name (`45as15`) as a point.
+fn geometry(name: &str, flag: &str) -> Result<At, Failure> {
+    match lamella::pigment::parse_name(name, flag)
+        .map_err(|e| Failure::input(e.to_string()))?
+        .as_slice()
+    {
+        [g] => Ok(At::Geometry(g.clone())),
+        _ => Err(Failure::input(format!(
+            "{flag} {name}: expected one geometry such as 45as15, not a set"
+        ))),
+    }
+}
+
+/// The point of a goal or measurement as JSON fields: `angle_deg`, or
+/// `geometry` with its illumination and aspecular angles.
+pub fn point_json(at: &At) -> serde_json::Map<String, Value> {
+    let v = match at {
+        At::Angle(a) => json!({"angle_deg": a}),
+        At::Geometry(g) => json!({
+            "geometry": g.name,
+            "illumination_deg": g.illumination_deg,
+            "aspecular_deg": g.aspecular_deg,
+        }),
+    };
+    match v {
+        Value::Object(m) => m,
+        _ => unreachable!("an object"),
+    }
+}
+
 fn colour_json(c: &Colour) -> Value {
     json!({"L": c.lab[0], "a": c.lab[1], "b": c.lab[2], "srgb": c.rgb, "hex": c.hex, "in_gamut": c.in_gamut})
 }
@@ -134,12 +191,13 @@ fn report(out: &MatchOutcome, args: &MatchArgs, wall: f64) -> Value {
         "delta_e00_max": worst,
         "reachable": out.reachable,
         "reachable_limit_delta_e00": lamella::design::matching::REACHABLE_DELTA_E,
-        "goals": out.goals.iter().map(|g| json!({
-            "angle_deg": g.goal.angle_deg,
-            "target": {"L": g.goal.lab[0], "a": g.goal.lab[1], "b": g.goal.lab[2]},
-            "achieved": colour_json(&g.achieved),
-            "delta_e00": g.delta_e00,
-        })).collect::<Vec<_>>(),
+        "goals": out.goals.iter().map(|g| {
+            let mut v = point_json(&g.goal.at);
+            v.insert("target".into(), json!({"L": g.goal.lab[0], "a": g.goal.lab[1], "b": g.goal.lab[2]}));
+            v.insert("achieved".into(), colour_json(&g.achieved));
+            v.insert("delta_e00".into(), json!(g.delta_e00));
+            Value::Object(v)
+        }).collect::<Vec<_>>(),
         "thicknesses_nm": out.variables.iter().zip(&out.thicknesses_nm).map(|(v, t)| json!({
             "pointer": v.pointer, "material": v.material, "value": t,
             "low": v.low_nm, "high": v.high_nm,

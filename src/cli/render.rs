@@ -17,7 +17,10 @@ pub struct RenderArgs {
     /// Scene file (JSON); its optional `preview` object holds defaults for
     /// every flag below (keys shape, size, ssaa, exposure, tone,
     /// roughness_deg, base, lights, orbit_deg, elevation_deg, fov_deg,
-    /// distance, turntable).
+    /// distance, turntable). A scene with a `coating` section is shaded with
+    /// its platelet model (the colour `multiangle` reports, for every pair of
+    /// light and view directions) over the coating's own background, plus
+    /// the binder surface's gloss.
     pub scene: PathBuf,
     /// Output PNG file. With --turntable N, frames go to FILE-000.png,
     /// FILE-001.png, …
@@ -42,12 +45,14 @@ pub struct RenderArgs {
     #[arg(long)]
     pub tone: Option<String>,
     /// Width of the facet orientation distribution in degrees (surface
-    /// roughness, or the spread of flake orientations of effect pigments);
-    /// 0 is a mirror-smooth film, up to 60. [default: 0]
+    /// roughness); 0 is a mirror-smooth film, up to 60. For a coating it
+    /// roughens only the binder surface's gloss: the platelets' spread is the
+    /// coating's tilt_sigma_deg. [default: 0]
     #[arg(long = "roughness")]
     pub roughness_deg: Option<f64>,
     /// What lies under the film, lit by the light the film transmits: black,
-    /// white or #RRGGBB (sRGB, a diffuse colour). [default: black]
+    /// white or #RRGGBB (sRGB, a diffuse colour); not used for a coating,
+    /// whose own `background` is in its model. [default: black]
     #[arg(long)]
     pub base: Option<String>,
     /// A light, repeatable; replaces the preview's lights. `sky[,intensity=X][,illuminant=NAME]`

@@ -9,6 +9,7 @@ use serde_json::{Value, json};
 
 use super::color::ViewArgs;
 use super::design_args::{Format, json_bytes};
+use super::matching::point_json;
 use super::{CliResult, Failure, load_scene, write_out};
 
 /// Flags of `lamella tolerance`.
@@ -21,6 +22,9 @@ use super::{CliResult, Failure, load_scene, write_out};
 /// (each sample's worst angle). Sensitivity: each layer alone is moved by
 /// +1σ and −1σ; its ΔE00 (worst angle, mean of the two) ranks the layers,
 /// largest first (combined with the index effect when --sigma-n is given).
+/// With a `coating` section the layers are the platelet's (each error shared
+/// by every platelet of the batch) and the colour is judged at each of the
+/// coating's geometries instead of angles (report key `geometries`).
 #[derive(Debug, Clone, clap::Args)]
 #[command(group(clap::ArgGroup::new("sigma").required(true).args(["sigma_nm", "sigma_pct"])))]
 pub struct ToleranceArgs {
@@ -97,16 +101,18 @@ pub fn run(args: &ToleranceArgs) -> CliResult {
             Sigma::Pct(p) => json!({"pct": p, "n": args.sigma_n}),
         },
     );
+    let coating = out.points.iter().any(|p| p.geometry().is_some());
     obj.insert(
-        "angles".into(),
-        out.angles_deg
+        if coating { "geometries" } else { "angles" }.into(),
+        out.points
             .iter()
-            .zip(&out.per_angle)
+            .zip(&out.per_point)
             .zip(&out.nominal_lab)
-            .map(|((a, s), lab)| {
+            .map(|((p, s), lab)| {
                 let mut v = stats_json(s);
-                v["angle_deg"] = json!(a);
-                v["nominal_lab"] = json!(lab);
+                let o = v.as_object_mut().expect("an object");
+                o.extend(point_json(p));
+                o.insert("nominal_lab".into(), json!(lab));
                 v
             })
             .collect(),

@@ -1,28 +1,34 @@
 //! Fitting the `vary_nm` thicknesses (and optionally an intensity scale) to a
-//! measured reflectance spectrum by least squares: a seeded global search
+//! measured reflectance spectrum (or, for a coating's platelet, to measured
+//! reflectance factors at geometries) by least squares: a seeded global search
 //! against the interference fringes' local minima, then Levenberg–Marquardt
 //! with uncertainties from the Jacobian.
 
+use super::coating::{At, CoatingEvaluator, design_items, with_coating};
 use super::evaluator::Evaluator;
 use super::search::{self, Budget};
-use super::variables::{Variable, varying};
+use super::variables::{Variable, varying_in};
 use crate::angle_colour::{Polarization, Side};
 use crate::error::{Error, Result};
+use crate::pigment::parse_name;
 use crate::scene::Scene;
 
-/// Measured reflectance at one angle.
+/// Measured reflectance at one angle, or reflectance factor at one geometry.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Measured {
-    /// Angle of incidence in degrees.
-    pub angle_deg: f64,
+    /// Angle of incidence (a film) or geometry (a coating).
+    pub at: At,
     /// Wavelengths in nm.
     pub wavelengths_nm: Vec<f64>,
-    /// Reflectance as a fraction.
+    /// Reflectance, or reflectance factor, as a fraction (the perfect
+    /// diffuser's reflectance factor is 1).
     pub r: Vec<f64>,
 }
 
-/// Reads `wavelength_nm,R[,angle_deg]` CSV (columns in any order, a header
-/// line first); rows without an angle column are at `default_angle`.
+/// Reads `wavelength_nm,R[,angle_deg]` or `wavelength_nm,R,geometry` CSV
+/// (columns in any order, a header line first; geometry names such as
+/// `45as15`); rows without an angle or geometry column are at
+/// `default_angle`.
 pub fn parse_measured(text: &str, default_angle: f64) -> Result<Vec<Measured>> {
     let mut lines = text
         .lines()
@@ -37,6 +43,14 @@ pub fn parse_measured(text: &str, default_angle: f64) -> Result<Vec<Measured>> {
         .ok_or_else(|| Error::invalid("measured", header, "needs a wavelength_nm column"))?;
     let r = col("R").ok_or_else(|| Error::invalid("measured", header, "needs an R column"))?;
     let angle = col("angle_deg");
+    let geometry = col("geometry");
+    if angle.is_some() && geometry.is_some() {
+        return Err(Error::invalid(
+            "measured",
+            header,
+            "give an angle_deg or a geometry column, not both",
+        ));
+    }
     let mut groups: Vec<Measured> = Vec::new();
     for (i, line) in lines {
         let cells: Vec<&str> = line.split(',').map(str::trim).collect();
@@ -51,21 +65,37 @@ pub fn parse_measured(text: &str, default_angle: f64) -> Result<Vec<Measured>> {
                 .ok_or_else(|| Error::invalid(&key, cell, format!("{what} is not a number")))
         };
         let (w, rv) = (num(wl, "wavelength_nm")?, num(r, "R")?);
-        let a = angle.map_or(Ok(default_angle), |c| num(c, "angle_deg"))?;
-        if w <= 0.0 || !(a.abs() < 90.0) {
+        let key = format!("measured line {}", i + 1);
+        let at = match geometry {
+            Some(c) => {
+                let name = cells.get(c).copied().unwrap_or("");
+                match parse_name(name, &key)?.as_slice() {
+                    [g] => At::Geometry(g.clone()),
+                    _ => {
+                        return Err(Error::invalid(
+                            &key,
+                            name,
+                            "one geometry per row (a name such as 45as15, not a set)",
+                        ));
+                    }
+                }
+            }
+            None => At::Angle(angle.map_or(Ok(default_angle), |c| num(c, "angle_deg"))?),
+        };
+        if w <= 0.0 || at.angle_deg().is_some_and(|a| !(a.abs() < 90.0)) {
             return Err(Error::invalid(
-                format!("measured line {}", i + 1),
+                key,
                 line,
                 "needs wavelength > 0 and |angle| < 90°",
             ));
         }
-        match groups.iter_mut().find(|g| g.angle_deg == a) {
+        match groups.iter_mut().find(|g| g.at == at) {
             Some(g) => {
                 g.wavelengths_nm.push(w);
                 g.r.push(rv);
             }
             None => groups.push(Measured {
-                angle_deg: a,
+                at,
                 wavelengths_nm: vec![w],
                 r: vec![rv],
             }),
@@ -97,7 +127,7 @@ pub struct FitOutcome {
     pub uncertainties_nm: Vec<Option<f64>>,
     /// Fitted scale and its 1σ uncertainty, when fitted.
     pub scale: Option<(f64, Option<f64>)>,
-    /// Root-mean-square residual in reflectance.
+    /// Root-mean-square residual in reflectance (or reflectance factor).
     pub rms: f64,
     /// Number of measured points.
     pub points: usize,
@@ -105,39 +135,118 @@ pub struct FitOutcome {
     pub evaluations: usize,
 }
 
-/// Fits the scene's `vary_nm` thicknesses to `measured` (unpolarized reflectance).
-pub fn fit(scene: &Scene, measured: &[Measured], settings: &FitSettings) -> Result<FitOutcome> {
-    let vars = varying(scene);
-    if vars.is_empty() {
-        return Err(Error::invalid(
-            "stack",
-            "(no vary_nm)",
-            "mark the layers to fit with \"vary_nm\": [low, high]",
-        ));
-    }
+/// Model values at the measured points for thicknesses `x`.
+type Predict<'a> = Box<dyn Fn(&[f64]) -> Vec<f64> + Sync + 'a>;
+
+/// Film: unpolarized reflectance at each measured angle and wavelength.
+fn film_model<'a>(
+    scene: &'a Scene,
+    vars: &[Variable],
+    measured: &'a [Measured],
+) -> Result<Predict<'a>> {
     let models = measured
         .iter()
         .map(|m| {
+            let angle = m.at.angle_deg().ok_or_else(|| {
+                Error::invalid(
+                    "measured",
+                    "geometry",
+                    "geometries need a scene with a `coating` section",
+                )
+            })?;
             Evaluator::spectral(
                 scene,
-                vars.clone(),
+                vars.to_vec(),
                 &m.wavelengths_nm,
-                &[m.angle_deg],
+                &[angle],
                 Side::Reflect,
                 Polarization::Unpolarized,
             )
         })
         .collect::<Result<Vec<_>>>()?;
+    Ok(Box::new(move |x: &[f64]| {
+        let mut out = Vec::new();
+        for m in &models {
+            m.eval(x, None, |o| out.extend_from_slice(o.spectrum));
+        }
+        out
+    }))
+}
+
+/// Coating: the reflectance factor at each measured geometry and
+/// wavelength, the model built on the union of the measured wavelengths.
+fn coating_model<'a>(
+    scene: &Scene,
+    coating: &crate::pigment::Coating,
+    vars: &[Variable],
+    measured: &'a [Measured],
+) -> Result<Predict<'a>> {
+    let geometries = measured
+        .iter()
+        .map(|m| {
+            m.at.geometry().cloned().ok_or_else(|| {
+                Error::invalid(
+                    "measured",
+                    "angle_deg",
+                    "this scene has a coating: give a geometry column (names such as 45as15)",
+                )
+            })
+        })
+        .collect::<Result<Vec<_>>>()?;
+    let mut grid: Vec<f64> = measured
+        .iter()
+        .flat_map(|m| m.wavelengths_nm.iter().copied())
+        .collect();
+    grid.sort_by(f64::total_cmp);
+    grid.dedup();
+    let picks: Vec<Vec<usize>> = measured
+        .iter()
+        .map(|m| {
+            m.wavelengths_nm
+                .iter()
+                .map(|w| grid.partition_point(|g| g < w))
+                .collect()
+        })
+        .collect();
+    let mut on_grid = scene.clone();
+    on_grid.wavelengths_nm = grid;
+    let eval = CoatingEvaluator::new(&on_grid, coating, vars.to_vec(), &geometries)?;
+    Ok(Box::new(move |x: &[f64]| {
+        eval.spectra(x, None)
+            .iter()
+            .zip(&picks)
+            .flat_map(|(rf, pick)| pick.iter().map(|&i| rf[i]))
+            .collect()
+    }))
+}
+
+/// Fits the scene's `vary_nm` thicknesses to `measured` (unpolarized
+/// reflectance at angles; when the scene has a `coating`, the platelet's
+/// `vary_nm` layers to reflectance factors at geometries).
+pub fn fit(scene: &Scene, measured: &[Measured], settings: &FitSettings) -> Result<FitOutcome> {
+    let (scene, coating) = with_coating(scene)?;
+    let vars = varying_in(&scene, design_items(&scene, coating.as_ref()));
+    if vars.is_empty() {
+        return Err(Error::invalid(
+            if coating.is_some() {
+                "coating.platelet"
+            } else {
+                "stack"
+            },
+            "(no vary_nm)",
+            "mark the layers to fit with \"vary_nm\": [low, high]",
+        ));
+    }
+    let predict = match &coating {
+        None => film_model(&scene, &vars, measured)?,
+        Some(c) => coating_model(&scene, c, &vars, measured)?,
+    };
     let data: Vec<f64> = measured.iter().flat_map(|m| m.r.iter().copied()).collect();
     let points = data.len();
     let count = std::sync::atomic::AtomicUsize::new(0);
     let model = |x: &[f64]| -> Vec<f64> {
         count.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-        let mut out = Vec::with_capacity(points);
-        for m in &models {
-            m.eval(x, None, |o| out.extend_from_slice(o.spectrum));
-        }
-        out
+        predict(x)
     };
     // Best scale for a model spectrum: linear least squares in closed form.
     let best_scale = |r: &[f64]| {

@@ -1,21 +1,21 @@
 //! Matching a target colour: the `vary_nm` thicknesses that bring the
 //! design's colour closest (CIEDE2000) to one or more targets at given
-//! angles, with optional limits on total thickness and a pull toward bright
-//! reflectance.
+//! angles (a film) or measurement geometries (a coating's platelet), with
+//! optional limits on total thickness and a pull toward bright reflectance.
 
-use super::evaluator::Evaluator;
+use super::coating::{At, Colours, design_items, with_coating};
 use super::search::{self, Budget};
-use super::variables::{Variable, total_thickness, varying, with_thicknesses};
+use super::variables::{Variable, total_thickness, varying_in, with_thicknesses};
 use crate::angle_colour::Viewing;
 use crate::colorimetry::{Colour, delta_e2000, xyz_to_lab};
 use crate::error::{Error, Result};
 use crate::scene::Scene;
 
-/// A target colour at one angle of incidence.
-#[derive(Debug, Clone, Copy, PartialEq)]
+/// A target colour at one angle of incidence or geometry.
+#[derive(Debug, Clone, PartialEq)]
 pub struct Goal {
-    /// Angle of incidence in degrees.
-    pub angle_deg: f64,
+    /// Where: an angle for a film, a geometry for a coating.
+    pub at: At,
     /// Target CIELAB L*, a*, b* (under the viewing's illuminant and observer).
     pub lab: [f64; 3],
 }
@@ -25,10 +25,11 @@ pub struct Goal {
 pub struct MatchSettings {
     /// The targets; the first is the main one.
     pub goals: Vec<Goal>,
-    /// Upper limit on the total physical thickness of the stack, nm.
+    /// Upper limit on the total physical thickness of the stack (or of the
+    /// platelet), nm.
     pub max_total_nm: Option<f64>,
-    /// Weight of brightness: adds `w·(1 − Y/100)` at the first goal's angle
-    /// to the cost (ΔE00 units).
+    /// Weight of brightness: adds `w·(1 − Y/100)` at the first goal to the
+    /// cost (ΔE00 units).
     pub brightness_weight: f64,
     /// Evaluation budget, stopping level and seed.
     pub budget: Budget,
@@ -61,7 +62,7 @@ pub struct MatchOutcome {
     pub thicknesses_nm: Vec<f64>,
     /// One entry per goal.
     pub goals: Vec<GoalOutcome>,
-    /// Total physical thickness of the optimised stack, nm.
+    /// Total physical thickness of the optimised stack or platelet, nm.
     pub total_nm: f64,
     /// Whether every goal is within [`REACHABLE_DELTA_E`] and the thickness
     /// limit holds.
@@ -71,17 +72,25 @@ pub struct MatchOutcome {
 }
 
 /// Optimises the `vary_nm` thicknesses of `scene` toward the goals, seen as
-/// `viewing` sees them. `progress(evaluations, best cost)` reports along the way.
+/// `viewing` sees them: the stack's layers at angles, or, when the scene has
+/// a `coating`, the platelet's layers at geometries.
+/// `progress(evaluations, best cost)` reports along the way.
 pub fn match_colour(
     scene: &Scene,
     viewing: &Viewing,
     settings: &MatchSettings,
     progress: &(dyn Fn(usize, f64) + Sync),
 ) -> Result<MatchOutcome> {
-    let vars = varying(scene);
+    let (scene, coating) = with_coating(scene)?;
+    let items = design_items(&scene, coating.as_ref());
+    let vars = varying_in(&scene, items);
     if vars.is_empty() {
         return Err(Error::invalid(
-            "stack",
+            if coating.is_some() {
+                "coating.platelet"
+            } else {
+                "stack"
+            },
             "(no vary_nm)",
             "mark the layers to optimise with \"vary_nm\": [low, high]",
         ));
@@ -89,16 +98,9 @@ pub fn match_colour(
     if settings.goals.is_empty() {
         return Err(Error::invalid("goals", "(none)", "give a target colour"));
     }
-    let angles: Vec<f64> = settings.goals.iter().map(|g| g.angle_deg).collect();
-    if let Some(a) = angles.iter().find(|a| !(a.abs() < 90.0)) {
-        return Err(Error::invalid(
-            "angle",
-            a,
-            "angles of incidence must lie below 90°",
-        ));
-    }
-    let eval = Evaluator::colour(scene, vars.clone(), &angles, viewing)?;
-    let (white, options) = eval.white().expect("a colour evaluator");
+    let points: Vec<At> = settings.goals.iter().map(|g| g.at.clone()).collect();
+    let eval = Colours::new(&scene, coating.as_ref(), vars.clone(), &points, viewing)?;
+    let (white, options) = eval.white();
     let to_x = |u: &[f64]| -> Vec<f64> {
         vars.iter()
             .zip(u)
@@ -106,7 +108,7 @@ pub fn match_colour(
             .collect()
     };
     // Total thickness is affine in the variables.
-    let total_at = |x: &[f64]| total_thickness(&with_thicknesses(&scene.stack, &vars, x));
+    let total_at = |x: &[f64]| total_thickness(&with_thicknesses(items, &vars, x));
     let zero = vec![0.0; vars.len()];
     let base = total_at(&zero);
     let slope: Vec<f64> = (0..vars.len())
@@ -119,13 +121,11 @@ pub fn match_colour(
     let total = |x: &[f64]| base + slope.iter().zip(x).map(|(s, x)| s * x).sum::<f64>();
     let cost = |u: &[f64]| {
         let x = to_x(u);
-        let mut c = eval.eval(&x, None, |out| {
-            let mut c = 0.0;
-            for (g, xyz) in settings.goals.iter().zip(out.xyz) {
-                c += delta_e2000(g.lab, xyz_to_lab(*xyz, white));
-            }
-            c + settings.brightness_weight * (1.0 - out.xyz[0][1] / 100.0)
-        });
+        let xyz = eval.xyz(&x, None);
+        let mut c = settings.brightness_weight * (1.0 - xyz[0][1] / 100.0);
+        for (g, xyz) in settings.goals.iter().zip(&xyz) {
+            c += delta_e2000(g.lab, xyz_to_lab(*xyz, white));
+        }
         if let Some(limit) = settings.max_total_nm {
             c += THICKNESS_PENALTY_PER_NM * (total(&x) - limit).max(0.0);
         }
@@ -138,21 +138,19 @@ pub fn match_colour(
     }
     let found = search::minimise(&cost, vars.len(), budget, progress);
     let x = to_x(&found.u);
-    let goals: Vec<GoalOutcome> = eval.eval(&x, None, |out| {
-        settings
-            .goals
-            .iter()
-            .zip(out.xyz)
-            .map(|(g, xyz)| {
-                let achieved = Colour::new(*xyz, white, &options);
-                GoalOutcome {
-                    goal: *g,
-                    delta_e00: delta_e2000(g.lab, achieved.lab),
-                    achieved,
-                }
-            })
-            .collect()
-    });
+    let goals: Vec<GoalOutcome> = settings
+        .goals
+        .iter()
+        .zip(eval.xyz(&x, None))
+        .map(|(g, xyz)| {
+            let achieved = Colour::new(xyz, white, &options);
+            GoalOutcome {
+                goal: g.clone(),
+                delta_e00: delta_e2000(g.lab, achieved.lab),
+                achieved,
+            }
+        })
+        .collect();
     let total_nm = total(&x);
     let reachable = goals.iter().all(|g| g.delta_e00 <= REACHABLE_DELTA_E)
         && settings.max_total_nm.is_none_or(|l| total_nm <= l + 1e-9);

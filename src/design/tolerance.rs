@@ -1,6 +1,7 @@
 //! Manufacturing tolerance: Monte Carlo over independent Gaussian errors in
 //! each layer's thickness (and optionally its refractive index), the
-//! CIEDE2000 from the nominal colour at each angle, the yield at a ΔE00
+//! CIEDE2000 from the nominal colour at each angle (or, for a coating's
+//! platelet, at each of the coating's geometries), the yield at a ΔE00
 //! limit, and which layer's error moves the colour most.
 //!
 //! Each layer as written in the scene draws one error; a layer inside a
@@ -12,7 +13,7 @@ use rand::rngs::StdRng;
 use rand_distr::{Distribution, StandardNormal};
 use rayon::prelude::*;
 
-use super::evaluator::Evaluator;
+use super::coating::{At, Colours, with_coating};
 use super::variables::{Variable, every_layer, walk_mut};
 use crate::angle_colour::Viewing;
 use crate::colorimetry::{delta_e2000, xyz_to_lab};
@@ -54,7 +55,7 @@ pub struct Sensitivity {
     pub layer: Variable,
     /// Its thickness σ in nm.
     pub sigma_nm: f64,
-    /// ΔE00 (largest over the angles, mean of +σ and −σ) for a one-σ
+    /// ΔE00 (largest over the points, mean of +σ and −σ) for a one-σ
     /// thickness error in this layer alone.
     pub delta_e00_thickness: f64,
     /// The same for a one-σ index error, when index errors are modelled.
@@ -64,20 +65,22 @@ pub struct Sensitivity {
 /// The tolerance analysis.
 #[derive(Debug, Clone)]
 pub struct ToleranceOutcome {
-    /// Angles of incidence analysed.
-    pub angles_deg: Vec<f64>,
-    /// Nominal Lab at each angle.
+    /// Where the colour is judged: the scene's angles of incidence, or its
+    /// coating's geometries.
+    pub points: Vec<At>,
+    /// Nominal Lab at each point.
     pub nominal_lab: Vec<[f64; 3]>,
-    /// ΔE00 statistics per angle.
-    pub per_angle: Vec<Stats>,
-    /// Statistics of each sample's worst angle (a sample passes only if it
-    /// passes at every angle).
+    /// ΔE00 statistics per point.
+    pub per_point: Vec<Stats>,
+    /// Statistics of each sample's worst point (a sample passes only if it
+    /// passes at every point).
     pub overall: Stats,
     /// Layers ranked by their one-σ effect, largest first.
     pub sensitivity: Vec<Sensitivity>,
 }
 
-/// Runs the analysis at the scene's angles as `viewing` sees them.
+/// Runs the analysis at the scene's angles as `viewing` sees them; when the
+/// scene has a `coating`, on the platelet's layers at the coating's geometries.
 pub fn tolerance(
     scene: &Scene,
     viewing: &Viewing,
@@ -93,14 +96,28 @@ pub fn tolerance(
         }
     }
     // Each layer gets a medium of its own so that its index can move alone.
-    let mut own = scene.clone();
+    let (mut own, mut coating) = with_coating(scene)?;
+    let mut items = match &coating {
+        Some(c) => c.platelet.clone(),
+        None => own.stack.clone(),
+    };
     let mut layer_medium = Vec::new();
-    walk_mut(&mut own.stack, &mut |l| {
-        own.media.push(scene.media[l.medium].clone());
+    walk_mut(&mut items, &mut |l| {
+        own.media.push(own.media[l.medium].clone());
         l.medium = own.media.len() - 1;
         layer_medium.push(l.medium);
     });
-    let vars = every_layer(&own);
+    let vars = every_layer(&own, &items);
+    let points: Vec<At> = match &mut coating {
+        Some(c) => {
+            c.platelet = items;
+            c.geometries.iter().cloned().map(At::Geometry).collect()
+        }
+        None => {
+            own.stack = items;
+            own.angles_deg.iter().map(|&a| At::Angle(a)).collect()
+        }
+    };
     let sigma: Vec<f64> = vars
         .iter()
         .map(|v| match settings.thickness {
@@ -108,14 +125,14 @@ pub fn tolerance(
             Sigma::Pct(p) => v.nominal_nm * p / 100.0,
         })
         .collect();
-    let angles = scene.angles_deg.clone();
-    let eval = Evaluator::colour(&own, vars.clone(), &angles, viewing)?;
-    let (white, _) = eval.white().expect("a colour evaluator");
+    let eval = Colours::new(&own, coating.as_ref(), vars.clone(), &points, viewing)?;
+    let (white, _) = eval.white();
     let nominal: Vec<f64> = vars.iter().map(|v| v.nominal_nm).collect();
     let labs = |x: &[f64], dn: Option<&[f64]>| -> Vec<[f64; 3]> {
-        eval.eval(x, dn, |o| {
-            o.xyz.iter().map(|&c| xyz_to_lab(c, white)).collect()
-        })
+        eval.xyz(x, dn)
+            .iter()
+            .map(|&c| xyz_to_lab(c, white))
+            .collect()
     };
     let nominal_lab = labs(&nominal, None);
     let worst = |l: &[[f64; 3]]| -> f64 {
@@ -154,7 +171,7 @@ pub fn tolerance(
                 .collect()
         })
         .collect();
-    let per_angle = (0..angles.len())
+    let per_point = (0..points.len())
         .map(|a| stats(samples.iter().map(|s| s[a]).collect(), settings.limit))
         .collect();
     let overall = stats(
@@ -195,9 +212,9 @@ pub fn tolerance(
     };
     sensitivity.sort_by(|a, b| size(b).total_cmp(&size(a)));
     Ok(ToleranceOutcome {
-        angles_deg: angles,
+        points,
         nominal_lab,
-        per_angle,
+        per_point,
         overall,
         sensitivity,
     })

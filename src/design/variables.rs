@@ -24,8 +24,14 @@ pub struct Variable {
 
 /// The layers marked `vary_nm`, in document order, with their bounds.
 pub fn varying(scene: &Scene) -> Vec<Variable> {
+    varying_in(scene, &scene.stack)
+}
+
+/// The layers of `items` (the scene's stack or a coating's platelet)
+/// marked `vary_nm`.
+pub fn varying_in(scene: &Scene, items: &[Item]) -> Vec<Variable> {
     let mut out = Vec::new();
-    walk(&scene.stack, &mut |l| {
+    walk(items, &mut |l| {
         if let Some((low_nm, high_nm)) = l.vary_nm {
             out.push(Variable {
                 pointer: l.pointer.clone(),
@@ -39,11 +45,11 @@ pub fn varying(scene: &Scene) -> Vec<Variable> {
     out
 }
 
-/// Every layer of the design as written (a layer in a repeat group once),
+/// Every layer of `items` as written (a layer in a repeat group once),
 /// bounded below by zero and unbounded above.
-pub fn every_layer(scene: &Scene) -> Vec<Variable> {
+pub fn every_layer(scene: &Scene, items: &[Item]) -> Vec<Variable> {
     let mut out = Vec::new();
-    walk(&scene.stack, &mut |l| {
+    walk(items, &mut |l| {
         out.push(Variable {
             pointer: l.pointer.clone(),
             material: scene.media[l.medium].name.clone(),

@@ -2,10 +2,10 @@
 //! background, and their colour at the multi-angle measurement geometries.
 //!
 //! Typical use: `Coating::from_scene(&mut scene)`, `Model::new(&scene,
-//! &coating)`, then [`measure`] at the coating's geometries. Design tools call
-//! [`Model::with_platelet`] with edited layers and [`colours`] for the
-//! geometries they target; renderers call [`Model::reflectance_factor`] for
-//! any pair of directions.
+//! &coating)`, then [`measure`] at the coating's geometries. Design tools
+//! build a [`Template`] for the geometries they target, a model per edited
+//! platelet from it, and call [`colours`]; renderers tabulate
+//! [`Model::reflectance_parts`] over pairs of directions.
 
 mod coating;
 mod geometry;
@@ -13,7 +13,7 @@ mod model;
 
 pub use coating::{Background, Coating, KEYS as COATING_KEYS, Orientation};
 pub use geometry::{Geometry, SET_15, SET_45, parse as parse_geometries, parse_name};
-pub use model::{Model, PlateletTable, TABLE_STEP_DEG};
+pub use model::{Model, TABLE_STEP_DEG, Template};
 
 use crate::colorimetry::{Colour, ColourOptions, Weights};
 

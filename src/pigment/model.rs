@@ -60,7 +60,9 @@
 //!
 //! Cost: the platelet's R and T are computed once on a grid of internal
 //! angles (every [`TABLE_STEP_DEG`]°, quadratic interpolation) and the extinction a(θ') on a coarser
-//! grid, so one geometry costs a few dozen operations per wavelength.
+//! grid, so one geometry costs a few dozen operations per wavelength. A
+//! [`Template`] for a few geometries computes only the table nodes they read,
+//! which is what design tools evaluating thousands of platelets use.
 
 use std::f64::consts::PI;
 
@@ -68,6 +70,7 @@ use num_complex::Complex64;
 use rayon::prelude::*;
 
 use super::coating::{Coating, Orientation, interpolate};
+use super::geometry::Geometry;
 use crate::error::{Error, Result};
 use crate::optics::{self, Exit, Node, Rt, Stack};
 use crate::scene::{Item, Scene, realise};
@@ -157,9 +160,12 @@ impl Density {
 }
 
 /// The platelet's R and T (both polarizations) with the binder on both
-/// sides, on a grid of internal angles of incidence × the scene's wavelengths.
+/// sides, on a grid of internal angles of incidence × the scene's
+/// wavelengths; nodes left out of a restricted table hold zeros.
 #[derive(Debug, Clone)]
-pub struct PlateletTable {
+struct PlateletTable {
+    step_deg: f64,
+    count: usize,
     nw: usize,
     rt: Vec<Rt>,
 }
@@ -178,39 +184,65 @@ fn reversed(nodes: &[Node]) -> Vec<Node> {
         .collect()
 }
 
+/// The platelet `items` in the binder, one stack per disorder realisation
+/// and face (both faces of an asymmetric stack, equally likely).
+fn platelet_stacks(coating: &Coating, items: &[Item]) -> Vec<Stack> {
+    let binder = coating.binder;
+    let mut stacks: Vec<Stack> = Vec::new();
+    for nodes in realise(items, coating.disorder.as_ref()) {
+        let back = reversed(&nodes);
+        let symmetric = back == nodes;
+        for n in [Some(nodes), (!symmetric).then_some(back)]
+            .into_iter()
+            .flatten()
+        {
+            stacks.push(Stack {
+                incident: binder,
+                nodes: n,
+                exit: Exit::Medium(binder),
+            });
+        }
+    }
+    stacks
+}
+
+/// The node about which [`PlateletTable::at`] interpolates for `theta`
+/// (radians), and the offset from it in steps.
+fn stencil(step_deg: f64, count: usize, theta: f64) -> (usize, f64) {
+    let x = (theta.to_degrees() / step_deg).clamp(0.0, (count - 1) as f64);
+    let k = (x.round() as usize).clamp(1, count - 2);
+    (k, x - k as f64)
+}
+
 impl PlateletTable {
-    /// Computes the table for the platelet `items` (the coating's, or an
-    /// edited design) in the binder, averaged over the coating's thickness
-    /// disorder and over both faces.
-    pub fn compute(
-        coating: &Coating,
-        items: &[Item],
+    /// R and T of `stacks` (averaged) every `step_deg` from 0, `count`
+    /// nodes; only the nodes in `needed` when given.
+    fn compute(
+        stacks: &[Stack],
         index: &[Vec<Complex64>],
         wavelengths_nm: &[f64],
+        step_deg: f64,
+        count: usize,
+        needed: Option<&[usize]>,
     ) -> PlateletTable {
-        let binder = coating.binder;
-        let mut stacks: Vec<Stack> = Vec::new();
-        for nodes in realise(items, coating.disorder.as_ref()) {
-            let back = reversed(&nodes);
-            let symmetric = back == nodes;
-            for n in [Some(nodes), (!symmetric).then_some(back)]
-                .into_iter()
-                .flatten()
-            {
-                stacks.push(Stack {
-                    incident: binder,
-                    nodes: n,
-                    exit: Exit::Medium(binder),
-                });
+        let nw = wavelengths_nm.len();
+        let nodes: Vec<usize> = needed.map_or_else(|| (0..count).collect(), <[usize]>::to_vec);
+        let angles: Vec<f64> = nodes.iter().map(|&k| k as f64 * step_deg).collect();
+        let spectra = optics::compute(stacks, index, wavelengths_nm, &angles);
+        let rt = if needed.is_none() {
+            spectra.rt
+        } else {
+            let mut rt = vec![Rt::default(); count * nw];
+            for (j, &k) in nodes.iter().enumerate() {
+                rt[k * nw..(k + 1) * nw].copy_from_slice(spectra.at_angle(j));
             }
-        }
-        let angles: Vec<f64> = (0..TABLE_ANGLES)
-            .map(|k| k as f64 * TABLE_STEP_DEG)
-            .collect();
-        let spectra = optics::compute(&stacks, index, wavelengths_nm, &angles);
+            rt
+        };
         PlateletTable {
-            nw: wavelengths_nm.len(),
-            rt: spectra.rt,
+            step_deg,
+            count,
+            nw,
+            rt,
         }
     }
 
@@ -219,10 +251,19 @@ impl PlateletTable {
     /// node, which follows the quadratic bottom of an interference minimum;
     /// angles beyond the last node take its values.
     fn at(&self, theta: f64, w: usize) -> Rt {
-        let x = (theta.to_degrees() / TABLE_STEP_DEG).clamp(0.0, (TABLE_ANGLES - 1) as f64);
-        let k = (x.round() as usize).clamp(1, TABLE_ANGLES - 2);
-        let u = x - k as f64;
-        let l = [0.5 * u * (u - 1.0), 1.0 - u * u, 0.5 * u * (u + 1.0)];
+        let (k, l) = self.lagrange(theta);
+        self.mix(k, &l, w)
+    }
+
+    /// The centre node and the three Lagrange weights for `theta` (radians).
+    fn lagrange(&self, theta: f64) -> (usize, [f64; 3]) {
+        let (k, u) = stencil(self.step_deg, self.count, theta);
+        (k, [0.5 * u * (u - 1.0), 1.0 - u * u, 0.5 * u * (u + 1.0)])
+    }
+
+    /// The weighted sum of the three nodes about `k` at wavelength `w`,
+    /// each component clamped to 0–1.
+    fn mix(&self, k: usize, l: &[f64; 3], w: usize) -> Rt {
         let node = |j: usize| self.rt[(k + j - 1) * self.nw + w];
         let (a, b, c) = (node(0), node(1), node(2));
         let mix = |p: f64, q: f64, r: f64| (l[0] * p + l[1] * q + l[2] * r).clamp(0.0, 1.0);
@@ -233,22 +274,6 @@ impl PlateletTable {
             tp: mix(a.tp, b.tp, c.tp),
         }
     }
-}
-
-/// Everything needed to evaluate the coating at any pair of directions.
-#[derive(Debug, Clone)]
-pub struct Model {
-    wavelengths_nm: Vec<f64>,
-    /// Binder index per wavelength (real).
-    n: Vec<f64>,
-    background: Vec<f64>,
-    /// Saunderson factor M per wavelength.
-    interreflection: Vec<f64>,
-    density: Density,
-    coverage: f64,
-    table: PlateletTable,
-    /// μ'·a(θ') on the extinction grid, `[angle][w]`.
-    extinction: Vec<f64>,
 }
 
 /// Unit cross product length squared and vector.
@@ -276,15 +301,87 @@ fn s_alignment(d: [f64; 3], n1: [f64; 3], n2: [f64; 3]) -> f64 {
     }
 }
 
-impl Model {
-    /// The model of the scene's coating with its own platelet.
-    pub fn new(scene: &Scene, coating: &Coating) -> Result<Model> {
-        Model::with_platelet(scene, coating, &coating.platelet)
-    }
+/// A pair of outside directions carried into a binder of index n: the
+/// refracted directions (Snell's law), the platelet normal m that mirrors
+/// one into the other, and cos θ_d = ω_i'·m.
+struct Inside {
+    di: [f64; 3],
+    do_: [f64; 3],
+    m: [f64; 3],
+    cos_d: f64,
+}
 
-    /// The model with the platelet layers `items` in place of the coating's
-    /// (design tools pass edited thicknesses here).
-    pub fn with_platelet(scene: &Scene, coating: &Coating, items: &[Item]) -> Result<Model> {
+impl Inside {
+    fn new(n: f64, illumination: [f64; 3], detection: [f64; 3]) -> Inside {
+        let refract = |d: [f64; 3]| {
+            let (x, y) = (d[0] / n, d[1] / n);
+            [x, y, (1.0 - x * x - y * y).max(0.0).sqrt()]
+        };
+        let (di, do_) = (refract(illumination), refract(detection));
+        let h = [di[0] + do_[0], di[1] + do_[1], di[2] + do_[2]];
+        let len = dot(h, h).sqrt();
+        let m = [h[0] / len, h[1] / len, h[2] / len];
+        Inside {
+            di,
+            do_,
+            m,
+            cos_d: dot(di, m).clamp(0.0, 1.0),
+        }
+    }
+}
+
+/// Step of the coarse transmittance table behind the extinction of a
+/// model restricted to a few geometries, degrees. The extinction averages
+/// the platelet's transmittance over the tilt distribution, which smooths
+/// its angular fringes (the restricted model agrees with the full one to
+/// ΔE00 < 0.1; see the tests).
+const COARSE_STEP_DEG: f64 = 4.0;
+const COARSE_ANGLES: usize = 23;
+
+/// Which nodes of the tables a restricted model computes.
+#[derive(Debug, Clone)]
+struct Plan {
+    /// Nodes of the fine R/T table.
+    fine: Vec<usize>,
+    /// Nodes of the coarse table the extinction reads.
+    coarse: Vec<usize>,
+    /// Nodes of the extinction table.
+    extinction: Vec<usize>,
+}
+
+/// The parts of a coating's model that do not depend on the platelet's
+/// layer thicknesses: design tools build one and then a [`Model`] per
+/// design. A template made for a list of geometries computes only the
+/// table nodes those geometries read (the platelet's R near each mirror
+/// angle; its T on a coarse grid for the extinction along each direction),
+/// so its models are valid at those geometries only.
+#[derive(Debug, Clone)]
+pub struct Template {
+    coating: Coating,
+    wavelengths_nm: Vec<f64>,
+    index: Vec<Vec<Complex64>>,
+    n: Vec<f64>,
+    background: Vec<f64>,
+    density: Density,
+    /// Platelet normals and normalised weights for the extinction.
+    normals: Vec<([f64; 3], f64)>,
+    plan: Option<Plan>,
+}
+
+fn sorted(mut v: Vec<usize>) -> Vec<usize> {
+    v.sort_unstable();
+    v.dedup();
+    v
+}
+
+impl Template {
+    /// A template valid at every pair of directions (`geometries` = `None`)
+    /// or at the listed geometries only.
+    pub fn new(
+        scene: &Scene,
+        coating: &Coating,
+        geometries: Option<&[Geometry]>,
+    ) -> Result<Template> {
         let wavelengths_nm = scene.wavelengths_nm.clone();
         let index = scene.indices(&wavelengths_nm)?;
         let binder = &scene.media[coating.binder];
@@ -303,21 +400,121 @@ impl Model {
                 }
             })
             .collect::<Result<_>>()?;
-        let table = PlateletTable::compute(coating, items, &index, &wavelengths_nm);
         let density = Density::new(&coating.orientation);
-        let extinction = extinction_table(&table, &density, wavelengths_nm.len());
         let background = coating.background.on(&wavelengths_nm)?;
-        let mut model = Model {
+        let mut template = Template {
+            coating: coating.clone(),
             wavelengths_nm,
+            index,
             n,
-            background,
-            interreflection: Vec::new(),
+            normals: normals(&density),
             density,
-            coverage: coating.coverage,
+            background,
+            plan: None,
+        };
+        if let Some(list) = geometries {
+            template.plan = Some(template.plan(list));
+        }
+        Ok(template)
+    }
+
+    /// The wavelength grid of the models.
+    pub fn wavelengths_nm(&self) -> &[f64] {
+        &self.wavelengths_nm
+    }
+
+    /// The table nodes that the geometries read.
+    fn plan(&self, geometries: &[Geometry]) -> Plan {
+        let (mut fine, mut extinction) = (Vec::new(), Vec::new());
+        for g in geometries {
+            if g.illumination[2] <= 0.0 || g.detection[2] <= 0.0 {
+                continue;
+            }
+            for &n in &self.n {
+                let inside = Inside::new(n, g.illumination, g.detection);
+                let (k, _) = stencil(TABLE_STEP_DEG, TABLE_ANGLES, inside.cos_d.acos());
+                fine.extend(k - 1..=k + 1);
+                for mu in [inside.di[2], inside.do_[2]] {
+                    let (k, _) = extinction_node(mu);
+                    extinction.extend([k, k + 1]);
+                }
+            }
+        }
+        // The interreflection with a reflecting background reads them all.
+        if self.background.iter().any(|&r| r > 0.0) {
+            extinction = (0..EXTINCTION_ANGLES).collect();
+        }
+        let extinction = sorted(extinction);
+        let mut coarse = Vec::new();
+        for &a in &extinction {
+            let d = extinction_direction(a);
+            for (m, _) in &self.normals {
+                let theta = dot(d, *m).abs().min(1.0).acos();
+                let (k, _) = stencil(COARSE_STEP_DEG, COARSE_ANGLES, theta);
+                coarse.extend(k - 1..=k + 1);
+            }
+        }
+        Plan {
+            fine: sorted(fine),
+            coarse: sorted(coarse),
+            extinction,
+        }
+    }
+
+    /// The model with the platelet layers `items` (the coating's, or an
+    /// edited design with the same layers), and when `dn` is given the real
+    /// index of medium m shifted by `dn[m]` in the platelet.
+    pub fn model(&self, items: &[Item], dn: Option<&[f64]>) -> Model {
+        let shifted;
+        let index = match dn {
+            None => &self.index,
+            Some(dn) => {
+                shifted = self
+                    .index
+                    .iter()
+                    .zip(dn)
+                    .map(|(n, d)| n.iter().map(|z| z + d).collect())
+                    .collect::<Vec<Vec<Complex64>>>();
+                &shifted
+            }
+        };
+        let stacks = platelet_stacks(&self.coating, items);
+        let wl = &self.wavelengths_nm;
+        let nw = wl.len();
+        let plan = self.plan.as_ref();
+        let table = PlateletTable::compute(
+            &stacks,
+            index,
+            wl,
+            TABLE_STEP_DEG,
+            TABLE_ANGLES,
+            plan.map(|p| p.fine.as_slice()),
+        );
+        let extinction = match plan {
+            None => extinction_table(&table, &self.normals, nw, None),
+            Some(p) => {
+                let coarse = PlateletTable::compute(
+                    &stacks,
+                    index,
+                    wl,
+                    COARSE_STEP_DEG,
+                    COARSE_ANGLES,
+                    Some(&p.coarse),
+                );
+                extinction_table(&coarse, &self.normals, nw, Some(&p.extinction))
+            }
+        };
+        let mut model = Model {
+            wavelengths_nm: wl.clone(),
+            n: self.n.clone(),
+            background: self.background.clone(),
+            interreflection: Vec::new(),
+            density: self.density.clone(),
+            coverage: self.coating.coverage,
             table,
             extinction,
         };
-        model.interreflection = (0..model.wavelengths_nm.len())
+        model.interreflection = (0..nw)
             .map(|w| {
                 let rho = model.background[w];
                 if rho == 0.0 {
@@ -335,7 +532,58 @@ impl Model {
                 1.0 / (1.0 - rho * r_i * t_d * t_d)
             })
             .collect();
-        Ok(model)
+        model
+    }
+}
+
+/// Everything needed to evaluate the coating at any pair of directions (or,
+/// from a restricted [`Template`], at its geometries).
+#[derive(Debug, Clone)]
+pub struct Model {
+    wavelengths_nm: Vec<f64>,
+    /// Binder index per wavelength (real).
+    n: Vec<f64>,
+    background: Vec<f64>,
+    /// Saunderson factor M per wavelength.
+    interreflection: Vec<f64>,
+    density: Density,
+    coverage: f64,
+    table: PlateletTable,
+    /// μ'·a(θ') on the extinction grid, `[angle][w]`.
+    extinction: Vec<f64>,
+}
+
+/// The extinction node below cos θ' = `mu` and the offset from it.
+fn extinction_node(mu: f64) -> (usize, f64) {
+    let x = mu.clamp(0.0, 1.0).acos().to_degrees() / EXTINCTION_STEP_DEG;
+    let k = (x as usize).min(EXTINCTION_ANGLES - 2);
+    (k, x - k as f64)
+}
+
+/// The direction inside the binder at extinction node `a` (in the x–z plane).
+fn extinction_direction(a: usize) -> [f64; 3] {
+    let theta = (a as f64 * EXTINCTION_STEP_DEG).min(90.0).to_radians();
+    [theta.sin(), 0.0, theta.cos()]
+}
+
+/// One pair of directions at one wavelength: p(m), the platelet term over
+/// p(m), and the background term of the reflectance factor.
+struct Terms {
+    density: f64,
+    platelet: f64,
+    background: f64,
+}
+
+impl Model {
+    /// The model of the scene's coating with its own platelet.
+    pub fn new(scene: &Scene, coating: &Coating) -> Result<Model> {
+        Model::with_platelet(scene, coating, &coating.platelet)
+    }
+
+    /// The model with the platelet layers `items` in place of the coating's.
+    /// Design tools evaluating many designs build a [`Template`] once instead.
+    pub fn with_platelet(scene: &Scene, coating: &Coating, items: &[Item]) -> Result<Model> {
+        Ok(Template::new(scene, coating, None)?.model(items, None))
     }
 
     /// The wavelength grid of the spectra.
@@ -345,9 +593,7 @@ impl Model {
 
     /// Extinction a(θ') per unit coverage at cos θ' = `mu`, wavelength `w`.
     fn extinction(&self, mu: f64, w: usize) -> f64 {
-        let x = mu.clamp(0.0, 1.0).acos().to_degrees() / EXTINCTION_STEP_DEG;
-        let k = (x as usize).min(EXTINCTION_ANGLES - 2);
-        let f = x - k as f64;
+        let (k, f) = extinction_node(mu);
         let nw = self.wavelengths_nm.len();
         let (a, b) = (
             self.extinction[k * nw + w],
@@ -359,6 +605,50 @@ impl Model {
     /// Direct transmittance of the platelet layer along cos θ' = `mu`.
     fn transmittance(&self, mu: f64, w: usize) -> f64 {
         (-self.coverage * self.extinction(mu, w)).exp()
+    }
+
+    /// The terms at wavelength `w` for directions above the surface; the
+    /// platelet term only where p(m) > 0 unless `always`.
+    fn terms(&self, illumination: [f64; 3], detection: [f64; 3], w: usize, always: bool) -> Terms {
+        let n = self.n[w];
+        let z = [0.0, 0.0, 1.0];
+        let Inside { di, do_, m, cos_d } = Inside::new(n, illumination, detection);
+        let (ti_s, ti_p) = fresnel_t(1.0, n, illumination[2], di[2]);
+        let (to_s, to_p) = fresnel_t(1.0, n, detection[2], do_[2]);
+        let p = self.density.at(m[2].clamp(-1.0, 1.0).acos());
+        let (ai, ao) = (self.extinction(di[2], w), self.extinction(do_[2], w));
+        let mut platelet = 0.0;
+        if (p > 0.0 || always) && self.coverage > 0.0 {
+            let rt = self.table.at(cos_d.acos(), w);
+            let ca = s_alignment(di, z, m);
+            let cb = s_alignment(do_, m, z);
+            // Intensities in the platelet's s/p frame after entry.
+            let (is, ip) = (
+                0.5 * (ca * ti_s + (1.0 - ca) * ti_p),
+                0.5 * ((1.0 - ca) * ti_s + ca * ti_p),
+            );
+            let (js, jp) = (rt.rs * is, rt.rp * ip);
+            let q = to_s * (cb * js + (1.0 - cb) * jp) + to_p * ((1.0 - cb) * js + cb * jp);
+            let sum = ai + ao;
+            let c_eff = if sum * self.coverage < 1e-12 {
+                self.coverage
+            } else {
+                -(-self.coverage * sum).exp_m1() / sum
+            };
+            platelet = PI * c_eff * q / (4.0 * n * n * di[2] * do_[2]);
+        }
+        let rho = self.background[w];
+        let mut background = 0.0;
+        if rho > 0.0 {
+            let t = (-self.coverage * (ai + ao)).exp();
+            background =
+                rho * self.interreflection[w] * 0.25 * (ti_s + ti_p) * (to_s + to_p) * t / (n * n);
+        }
+        Terms {
+            density: p,
+            platelet,
+            background,
+        }
     }
 
     /// Reflectance factor spectrum (see the module notes) for light from
@@ -376,50 +666,53 @@ impl Model {
             out.fill(0.0);
             return;
         }
-        let z = [0.0, 0.0, 1.0];
         for (w, o) in out.iter_mut().enumerate() {
-            let n = self.n[w];
-            let refract = |d: [f64; 3]| {
-                let (x, y) = (d[0] / n, d[1] / n);
-                [x, y, (1.0 - x * x - y * y).max(0.0).sqrt()]
-            };
-            let (di, do_) = (refract(illumination), refract(detection));
-            let (ti_s, ti_p) = fresnel_t(1.0, n, illumination[2], di[2]);
-            let (to_s, to_p) = fresnel_t(1.0, n, detection[2], do_[2]);
-            let h = [di[0] + do_[0], di[1] + do_[1], di[2] + do_[2]];
-            let len = dot(h, h).sqrt();
-            let m = [h[0] / len, h[1] / len, h[2] / len];
-            let cos_d = dot(di, m).clamp(0.0, 1.0);
-            let p = self.density.at(m[2].clamp(-1.0, 1.0).acos());
-            let (ai, ao) = (self.extinction(di[2], w), self.extinction(do_[2], w));
-            let mut total = 0.0;
-            if p > 0.0 && self.coverage > 0.0 {
-                let rt = self.table.at(cos_d.acos(), w);
-                let ca = s_alignment(di, z, m);
-                let cb = s_alignment(do_, m, z);
-                // Intensities in the platelet's s/p frame after entry.
-                let (is, ip) = (
-                    0.5 * (ca * ti_s + (1.0 - ca) * ti_p),
-                    0.5 * ((1.0 - ca) * ti_s + ca * ti_p),
-                );
-                let (js, jp) = (rt.rs * is, rt.rp * ip);
-                let q = to_s * (cb * js + (1.0 - cb) * jp) + to_p * ((1.0 - cb) * js + cb * jp);
-                let sum = ai + ao;
-                let c_eff = if sum * self.coverage < 1e-12 {
-                    self.coverage
-                } else {
-                    -(-self.coverage * sum).exp_m1() / sum
-                };
-                total += PI * c_eff * p * q / (4.0 * n * n * di[2] * do_[2]);
-            }
-            let rho = self.background[w];
-            if rho > 0.0 {
-                let t = (-self.coverage * (ai + ao)).exp();
-                total += rho * self.interreflection[w] * 0.25 * (ti_s + ti_p) * (to_s + to_p) * t
-                    / (n * n);
-            }
-            *o = total;
+            let t = self.terms(illumination, detection, w, false);
+            *o = t.density * t.platelet + t.background;
         }
+    }
+
+    /// The reflectance factor split as R_F = p(m)·`platelet` + `background`,
+    /// with p(m) the density of platelet normals at the normal that mirrors
+    /// one direction into the other ([`Model::normal_density`]): the
+    /// platelet part without its sharp orientation factor varies smoothly
+    /// with the directions, so renderers tabulate it. Zero below the surface.
+    pub fn reflectance_parts(
+        &self,
+        illumination: [f64; 3],
+        detection: [f64; 3],
+        platelet: &mut [f64],
+        background: &mut [f64],
+    ) {
+        let nw = self.wavelengths_nm.len();
+        assert!(platelet.len() == nw && background.len() == nw);
+        if illumination[2] <= 0.0 || detection[2] <= 0.0 {
+            platelet.fill(0.0);
+            background.fill(0.0);
+            return;
+        }
+        for w in 0..nw {
+            let t = self.terms(illumination, detection, w, true);
+            platelet[w] = t.platelet;
+            background[w] = t.background;
+        }
+    }
+
+    /// p(m) per steradian for the pair of directions, with the binder
+    /// index `n` (a reference value for a dispersive binder).
+    pub fn normal_density(&self, n: f64, illumination: [f64; 3], detection: [f64; 3]) -> f64 {
+        let m = Inside::new(n, illumination, detection).m;
+        self.density.at(m[2].clamp(-1.0, 1.0).acos())
+    }
+
+    /// The largest platelet tilt with a non-zero density, degrees.
+    pub fn max_tilt_deg(&self) -> f64 {
+        self.density.max_tilt.to_degrees()
+    }
+
+    /// The binder's index at each wavelength.
+    pub fn binder_index(&self) -> &[f64] {
+        &self.n
     }
 
     /// Unpolarized mirror reflectance of the binder's top surface at
@@ -439,10 +732,10 @@ impl Model {
     }
 }
 
-/// μ'·a(θ') = ∫ |ω'·m| p(m) (1 − T_pl) dω_m on the extinction grid, by a
-/// midpoint rule over tilt and azimuth (the density self-normalised on the
-/// same nodes, so flat platelets give exactly μ'(1 − T_pl(θ'))).
-fn extinction_table(table: &PlateletTable, density: &Density, nw: usize) -> Vec<f64> {
+/// Platelet normals for the extinction quadrature: a midpoint rule over
+/// tilt and azimuth, weights normalised on the same nodes (so flat
+/// platelets give exactly μ'(1 − T_pl(θ'))); nodes of zero weight dropped.
+fn normals(density: &Density) -> Vec<([f64; 3], f64)> {
     let dt = density.max_tilt / TILT_NODES as f64;
     let dphi = PI / AZIMUTH_NODES as f64;
     let mut nodes = Vec::with_capacity(TILT_NODES * AZIMUTH_NODES);
@@ -459,25 +752,40 @@ fn extinction_table(table: &PlateletTable, density: &Density, nw: usize) -> Vec<
         }
     }
     let total: f64 = nodes.iter().map(|n| n.1).sum();
-    (0..EXTINCTION_ANGLES)
+    nodes.iter_mut().for_each(|n| n.1 /= total);
+    nodes
+}
+
+/// μ'·a(θ') = ∫ |ω'·m| p(m) (1 − T_pl) dω_m on the extinction grid (only
+/// the nodes in `needed` when given; the others hold zeros).
+fn extinction_table(
+    table: &PlateletTable,
+    normals: &[([f64; 3], f64)],
+    nw: usize,
+    needed: Option<&[usize]>,
+) -> Vec<f64> {
+    let nodes: Vec<usize> =
+        needed.map_or_else(|| (0..EXTINCTION_ANGLES).collect(), <[usize]>::to_vec);
+    let rows: Vec<(usize, Vec<f64>)> = nodes
         .into_par_iter()
-        .flat_map_iter(|a| {
-            let theta = (a as f64 * EXTINCTION_STEP_DEG).min(90.0).to_radians();
-            let d = [theta.sin(), 0.0, theta.cos()];
-            let hits: Vec<(f64, f64, f64)> = nodes
-                .iter()
-                .map(|(m, wt)| {
-                    let c = dot(d, *m).abs().min(1.0);
-                    (c, c.acos(), *wt / total)
-                })
-                .collect();
-            (0..nw).map(move |w| {
-                hits.iter()
-                    .map(|&(c, th, wt)| wt * c * (1.0 - table.at(th, w).t()))
-                    .sum::<f64>()
-            })
+        .map(|a| {
+            let d = extinction_direction(a);
+            let mut row = vec![0.0; nw];
+            for (m, wt) in normals {
+                let c = dot(d, *m).abs().min(1.0);
+                let (k, l) = table.lagrange(c.acos());
+                for (w, r) in row.iter_mut().enumerate() {
+                    *r += wt * c * (1.0 - table.mix(k, &l, w).t());
+                }
+            }
+            (a, row)
         })
-        .collect()
+        .collect();
+    let mut out = vec![0.0; EXTINCTION_ANGLES * nw];
+    for (a, row) in rows {
+        out[a * nw..(a + 1) * nw].copy_from_slice(&row);
+    }
+    out
 }
 
 #[cfg(test)]

@@ -5,6 +5,7 @@
 
 pub mod camera;
 pub mod mesh;
+mod pigment;
 mod raster;
 pub mod settings;
 mod shading;

@@ -13,11 +13,13 @@ use glam::Vec3;
 use rayon::prelude::*;
 
 use super::camera::Camera;
+use super::pigment::{Body, Convert, Lobe};
 use super::settings::{Base, Light, Settings, Source};
 use crate::angle_colour::Viewing;
 use crate::colorimetry::{Illuminant, RgbDisplay, RgbSpace, Weights};
 use crate::error::Result;
 use crate::optics;
+use crate::pigment::{Coating, Model};
 use crate::scene::Scene;
 
 /// Angle step of the reflectance tables in degrees.
@@ -27,13 +29,13 @@ const STEP_2D: f64 = 0.5;
 
 /// Values on the grid 0, STEP, …, 90° with linear interpolation.
 #[derive(Debug, Clone)]
-struct Table {
-    step: f32,
-    values: Vec<Vec3>,
+pub(super) struct Table {
+    pub(super) step: f32,
+    pub(super) values: Vec<Vec3>,
 }
 
 impl Table {
-    fn at(&self, theta_deg: f32) -> Vec3 {
+    pub(super) fn at(&self, theta_deg: f32) -> Vec3 {
         let x = (theta_deg / self.step).clamp(0.0, (self.values.len() - 1) as f32);
         let i = (x as usize).min(self.values.len() - 2);
         let f = x - i as f32;
@@ -76,6 +78,8 @@ struct Disc {
     reflect: Table,
     /// Intensity × RGB of T(θ_light)·T(θ_view), when the base is not black.
     through: Option<Table2>,
+    /// The coating's lobe under this light, for a scene with a `coating`.
+    lobe: Option<Lobe>,
 }
 
 /// The film's look-up tables for one scene and one set of settings.
@@ -87,6 +91,8 @@ pub struct Shader {
     sky_through: Option<Table>,
     discs: Vec<Disc>,
     base: Option<Vec3>,
+    /// The coating's platelet model, for a scene with a `coating`.
+    body: Option<Body>,
 }
 
 /// A spectrum per angle of the table grid.
@@ -97,10 +103,15 @@ type PerAngle = Vec<Vec<f64>>;
 /// stack reaches as cos θ₀ → 0 with a lossless incident medium (the Fresnel
 /// coefficients of the first interface tend to −1; Born & Wolf, *Principles
 /// of Optics*, 7th ed. 1999, §1.5.2).
-fn film(scene: &Scene) -> Result<(PerAngle, PerAngle)> {
+fn film(scene: &Scene, body: Option<&Body>) -> Result<(PerAngle, PerAngle)> {
     let wl = &scene.wavelengths_nm;
     let n = (90.0 / STEP).round() as usize;
     let angles: Vec<f64> = (0..n).map(|i| i as f64 * STEP).collect();
+    if let Some(body) = body {
+        let mut r = body.gloss(&angles);
+        r.push(vec![1.0; wl.len()]);
+        return Ok((r, vec![vec![0.0; wl.len()]; n + 1]));
+    }
     let spectra = optics::compute(
         &scene.realisations(&scene.stack),
         &scene.indices(wl)?,
@@ -192,28 +203,62 @@ impl Shader {
     /// base). The display white is that of the scene's illuminant; every light
     /// is weighted with its own spectrum, normalised to Y = 100 for the
     /// perfect reflector, and adapted to D65 like `Colour::new`.
+    ///
+    /// A scene with a `coating` is shaded with its platelet model instead of
+    /// the film: the binder surface's Fresnel reflection is the mirror (or
+    /// rough) gloss, the platelets and the coating's own background add the
+    /// body colour ([`super::pigment`]), and `base` is not used. A disc
+    /// light's body colour is taken from its centre direction.
     pub fn new(scene: &Scene, settings: &Settings) -> Result<Shader> {
         let wl = &scene.wavelengths_nm;
         let viewing = Viewing::of_scene(scene)?;
         let display = RgbDisplay::new(viewing.weights(wl)?.white(), RgbSpace::Srgb);
-        let (r, t) = film(scene)?;
+        let body = match scene.document.get("coating") {
+            None => None,
+            Some(_) => {
+                let mut scene = scene.clone();
+                let coating = Coating::from_scene(&mut scene)?;
+                Some(Body::new(Model::new(&scene, &coating)?))
+            }
+        };
+        let (r, t) = film(scene, body.as_ref())?;
         let slope = settings.roughness_deg.to_radians().tan() as f32;
-        let base = match settings.base {
-            Base::Black => None,
-            Base::Diffuse(rgb) => Some(Vec3::from(rgb.map(|c| c as f32))),
+        let base = match (settings.base, &body) {
+            (_, Some(_)) | (Base::Black, None) => None,
+            (Base::Diffuse(rgb), None) => Some(Vec3::from(rgb.map(|c| c as f32))),
+        };
+        let lights = settings
+            .lights
+            .iter()
+            .map(|light| Ok((light_weights(light, &viewing, wl)?, light.intensity as f32)))
+            .collect::<Result<Vec<_>>>()?;
+        let converters: Vec<Box<Convert>> = lights
+            .iter()
+            .map(|(weights, k)| {
+                let display = &display;
+                Box::new(move |spectrum: &[f64]| {
+                    *k * Vec3::from(display.linear(weights.xyz(spectrum)).map(|c| c as f32))
+                }) as Box<Convert>
+            })
+            .collect();
+        let mut lobes = match &body {
+            Some(b) => b
+                .lobes(&converters.iter().map(|c| c.as_ref()).collect::<Vec<_>>())
+                .into_iter()
+                .map(Some)
+                .collect(),
+            None => vec![None; lights.len()],
         };
         let mut shader = Shader {
             sky: None,
             sky_through: None,
             discs: Vec::new(),
             base,
+            body: None,
         };
-        for light in &settings.lights {
-            let weights = light_weights(light, &viewing, wl)?;
-            let k = light.intensity as f32;
-            let rgb = |spectrum: &[f64]| {
-                k * Vec3::from(display.linear(weights.xyz(spectrum)).map(|c| c as f32))
-            };
+        for (index, light) in settings.lights.iter().enumerate() {
+            let rgb = &converters[index];
+            let lobe = lobes[index].take();
             let reflect = Table {
                 step: STEP as f32,
                 values: r.par_iter().map(|s| rgb(s)).collect(),
@@ -226,6 +271,9 @@ impl Shader {
                         reflect
                     };
                     add(&mut shader.sky, sky);
+                    if let (Some(b), Some(lobe)) = (&body, &lobe) {
+                        add(&mut shader.sky, b.sky(lobe, STEP));
+                    }
                     if base.is_some() {
                         let hemi = hemispherical(&t);
                         let values = t
@@ -268,10 +316,12 @@ impl Shader {
                         slope: (slope * slope + half * half).sqrt(),
                         reflect,
                         through,
+                        lobe,
                     });
                 }
             }
         }
+        shader.body = body;
         Ok(shader)
     }
 
@@ -362,6 +412,9 @@ impl Frame<'_> {
             if let (Some(base), Some(t)) = (s.base, &disc.through) {
                 let theta_l = cos_l.min(1.0).acos().to_degrees();
                 rgb += cos_l * base * t.at(theta_l, theta_v);
+            }
+            if let (Some(body), Some(lobe)) = (&s.body, &disc.lobe) {
+                rgb += body.shade(lobe, n, l, v);
             }
         }
         rgb
