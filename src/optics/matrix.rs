@@ -106,6 +106,86 @@ impl Field {
     }
 }
 
+/// The field vectors of both polarizations for `N` wavelengths at once, in
+/// structure-of-arrays form (s: B re, B im, C re, C im, then p likewise), so
+/// that lossless layers shared by all lanes run in vector registers.
+#[derive(Debug, Clone, Copy)]
+pub struct FieldLanes<const N: usize> {
+    v: [[f64; N]; 8],
+    log: [[f64; N]; 2],
+}
+
+impl<const N: usize> FieldLanes<N> {
+    /// Packs per-lane fields.
+    pub fn load(fs: &[Field; N], fp: &[Field; N]) -> Self {
+        let mut out = FieldLanes {
+            v: [[0.0; N]; 8],
+            log: [[0.0; N]; 2],
+        };
+        for (pol, fields) in [fs, fp].into_iter().enumerate() {
+            for (l, f) in fields.iter().enumerate() {
+                let [b, c] = f.v;
+                for (j, x) in [b.re, b.im, c.re, c.im].into_iter().enumerate() {
+                    out.v[4 * pol + j][l] = x;
+                }
+                out.log[pol][l] = f.log;
+            }
+        }
+        out
+    }
+
+    /// Unpacks into per-lane fields.
+    pub fn store(&self, fs: &mut [Field; N], fp: &mut [Field; N]) {
+        for (pol, fields) in [fs, fp].into_iter().enumerate() {
+            for (l, f) in fields.iter_mut().enumerate() {
+                let at = |j: usize| self.v[4 * pol + j][l];
+                f.v = [Complex64::new(at(0), at(1)), Complex64::new(at(2), at(3))];
+                f.log = self.log[pol][l];
+            }
+        }
+    }
+
+    /// [`Field::through_layer`] for a lossless, propagating layer on every
+    /// lane: phase k0·d·q, admittances `eta` and their inverses per polarization.
+    #[inline]
+    pub fn through_real(
+        &mut self,
+        k0d: [f64; N],
+        q: [f64; N],
+        eta: [[f64; N]; 2],
+        inv_eta: [[f64; N]; 2],
+    ) {
+        let delta: [f64; N] = std::array::from_fn(|l| k0d[l] * q[l]);
+        let (sn, cs) = super::trig::sin_cos_lanes(delta);
+        for pol in 0..2 {
+            let [br, bi, cr, ci] = [0, 1, 2, 3].map(|j| self.v[4 * pol + j]);
+            for l in 0..N {
+                let (x, y) = (sn[l] * inv_eta[pol][l], sn[l] * eta[pol][l]);
+                self.v[4 * pol][l] = br[l] * cs[l] + x * ci[l];
+                self.v[4 * pol + 1][l] = bi[l] * cs[l] - x * cr[l];
+                self.v[4 * pol + 2][l] = y * bi[l] + cr[l] * cs[l];
+                self.v[4 * pol + 3][l] = ci[l] * cs[l] - y * br[l];
+            }
+        }
+    }
+
+    /// [`Field::renormalise`] on every lane and polarization.
+    pub fn renormalise(&mut self) {
+        for pol in 0..2 {
+            for l in 0..N {
+                let big = (0..4).fold(0.0f64, |m, j| m.max(self.v[4 * pol + j][l].abs()));
+                if big > BIG {
+                    let inv = 1.0 / big;
+                    for j in 0..4 {
+                        self.v[4 * pol + j][l] *= inv;
+                    }
+                    self.log[pol][l] += big.ln();
+                }
+            }
+        }
+    }
+}
+
 /// A 2×2 complex matrix `m` times e^{log}.
 #[derive(Debug, Clone, Copy)]
 pub struct Mat {

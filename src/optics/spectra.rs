@@ -1,13 +1,14 @@
 //! Reflectance and transmittance over a grid of wavelengths and angles,
 //! averaged over an ensemble of stack realisations, in parallel.
 
+use std::array::from_fn;
 use std::f64::consts::PI;
 
 use num_complex::Complex64;
 use rayon::prelude::*;
 
 use super::medium::MediumTerms;
-use super::stack::{Rt, Stack};
+use super::stack::{LANES, Rt, Stack};
 
 /// R and T per polarization on a wavelength × angle grid. Arrays are
 /// angle-major: the value at angle `a`, wavelength `w` is at `a * nw + w`.
@@ -52,37 +53,43 @@ pub fn compute(
     angles_deg: &[f64],
 ) -> Spectra {
     let nw = wavelengths_nm.len();
+    // Wavelengths go in blocks of LANES (the last block repeats its final
+    // wavelength to fill up; the extra results are dropped).
+    let blocks = nw.div_ceil(LANES);
     let incident = realisations[0].incident;
     let weight = 1.0 / realisations.len() as f64;
     let sines: Vec<f64> = angles_deg.iter().map(|a| a.to_radians().sin()).collect();
-    let rt = (0..angles_deg.len() * nw)
+    let per_block: Vec<[Rt; LANES]> = (0..angles_deg.len() * blocks)
         .into_par_iter()
-        .with_min_len(32)
+        .with_min_len(8)
         .map_init(
-            || Vec::with_capacity(index.len()),
-            |terms: &mut Vec<MediumTerms>, i| {
-                let (a, w) = (i / nw, i % nw);
-                let wl = wavelengths_nm[w];
-                let beta = index[incident][w].re * sines[a];
-                terms.clear();
-                terms.extend(index.iter().map(|n| MediumTerms::new(n[w], beta)));
-                let k0 = 2.0 * PI / wl;
-                let mut sum = Rt::default();
+            || vec![Vec::with_capacity(index.len()); LANES],
+            |terms: &mut Vec<Vec<MediumTerms>>, i| {
+                let (a, b) = (i / blocks, i % blocks);
+                let ws: [usize; LANES] = from_fn(|l| (b * LANES + l).min(nw - 1));
+                for (t, &w) in terms.iter_mut().zip(&ws) {
+                    let beta = index[incident][w].re * sines[a];
+                    t.clear();
+                    t.extend(index.iter().map(|n| MediumTerms::new(n[w], beta)));
+                }
+                let lanes: [&[MediumTerms]; LANES] = from_fn(|l| terms[l].as_slice());
+                let k0 = ws.map(|w| 2.0 * PI / wavelengths_nm[w]);
+                let mut sum = [Rt::default(); LANES];
                 for stack in realisations {
-                    let x = stack.rt(terms, k0);
-                    sum.rs += x.rs;
-                    sum.rp += x.rp;
-                    sum.ts += x.ts;
-                    sum.tp += x.tp;
+                    for (acc, x) in sum.iter_mut().zip(stack.rt_lanes(lanes, k0)) {
+                        acc.rs += x.rs * weight;
+                        acc.rp += x.rp * weight;
+                        acc.ts += x.ts * weight;
+                        acc.tp += x.tp * weight;
+                    }
                 }
-                Rt {
-                    rs: sum.rs * weight,
-                    rp: sum.rp * weight,
-                    ts: sum.ts * weight,
-                    tp: sum.tp * weight,
-                }
+                sum
             },
         )
+        .collect();
+    let rt = per_block
+        .chunks(blocks)
+        .flat_map(|angle| angle.iter().flatten().take(nw).copied())
         .collect();
     Spectra {
         wavelengths_nm: wavelengths_nm.to_vec(),

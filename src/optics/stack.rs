@@ -3,7 +3,9 @@
 
 use num_complex::Complex64;
 
-use super::matrix::{Field, Mat, Phase, RealPair};
+use std::array::from_fn;
+
+use super::matrix::{Field, FieldLanes, Mat, Phase, RealPair};
 use super::medium::MediumTerms;
 
 /// One element of a stack, listed from the incident side.
@@ -75,7 +77,76 @@ pub struct Rt {
     pub tp: f64,
 }
 
+/// Number of wavelengths [`Stack::rt_lanes`] evaluates side by side.
+pub const LANES: usize = 4;
+
 impl Stack {
+    /// [`Stack::rt`] for [`LANES`] wavelengths at once (`terms[l]` and `k0[l]`
+    /// per lane, all at the same angle). Lossless layers that propagate on
+    /// every lane run in structure-of-arrays form; anything else (absorbing or
+    /// evanescent layers, repeat groups, an incoherent sheet) goes lane by lane
+    /// through the same code as [`Stack::rt`].
+    pub fn rt_lanes(&self, terms: [&[MediumTerms]; LANES], k0: [f64; LANES]) -> [Rt; LANES] {
+        let Exit::Medium(m) = self.exit else {
+            return from_fn(|l| self.rt(terms[l], k0[l]));
+        };
+        let mut fs: [Field; LANES] = from_fn(|l| Field::exit(terms[l][m].eta_s));
+        let mut fp: [Field; LANES] = from_fn(|l| Field::exit(terms[l][m].eta_p));
+        let mut lanes = FieldLanes::load(&fs, &fp);
+        let mut packed = true;
+        for (i, node) in self.nodes.iter().rev().enumerate() {
+            match node {
+                Node::Layer {
+                    medium,
+                    thickness_nm,
+                } if terms.iter().all(|t| t[*medium].real) => {
+                    if !packed {
+                        lanes = FieldLanes::load(&fs, &fp);
+                        packed = true;
+                    }
+                    let t = |l: usize| &terms[l][*medium];
+                    lanes.through_real(
+                        from_fn(|l| k0[l] * thickness_nm),
+                        from_fn(|l| t(l).q.re),
+                        [from_fn(|l| t(l).eta_s.re), from_fn(|l| t(l).eta_p.re)],
+                        [
+                            from_fn(|l| t(l).inv_eta_s.re),
+                            from_fn(|l| t(l).inv_eta_p.re),
+                        ],
+                    );
+                    if i % 8 == 7 {
+                        lanes.renormalise();
+                    }
+                }
+                _ => {
+                    if packed {
+                        lanes.store(&mut fs, &mut fp);
+                        packed = false;
+                    }
+                    for l in 0..LANES {
+                        apply(
+                            std::slice::from_ref(node),
+                            terms[l],
+                            k0[l],
+                            &mut fs[l],
+                            &mut fp[l],
+                        );
+                    }
+                }
+            }
+        }
+        if packed {
+            lanes.renormalise();
+            lanes.store(&mut fs, &mut fp);
+        }
+        from_fn(|l| {
+            let (inc, ex) = (&terms[l][self.incident], &terms[l][m]);
+            let (rs, ts) = coherent(inc.eta_s, ex.eta_s, &fs[l]);
+            let (rp, tp) = coherent(inc.eta_p, ex.eta_p, &fp[l]);
+            Rt { rs, rp, ts, tp }
+        })
+    }
+
     /// R and T at one wavelength: `terms[m]` holds medium m's terms at this
     /// (λ, angle) and `k0` = 2π/λ in nm⁻¹.
     pub fn rt(&self, terms: &[MediumTerms], k0: f64) -> Rt {
