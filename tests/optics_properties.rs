@@ -165,6 +165,18 @@ fn extreme_inputs_stay_finite() {
             }
         }
     }
+    // The same through the grid driver, which takes lossless layers four
+    // wavelengths at a time.
+    let index: Vec<Vec<Complex64>> = media.iter().map(|&n| vec![n; 5]).collect();
+    for s in [&thick, &long, &powered, &metal_period] {
+        let grid = lamella::optics::compute(
+            std::slice::from_ref(s),
+            &index,
+            &[380.0, 450.0, 550.0, 650.0, 780.0],
+            &[0.0, 45.0, 89.99],
+        );
+        assert!(grid.rt.iter().all(finite_unit), "{:?}", grid.rt);
+    }
     // Deep in the stop band of 10⁴ periods nothing gets through.
     let x = rt_at(&powered, &media, 550.0, 0.0);
     assert!(x.t() < 1e-300 && (x.r() - 1.0).abs() < 1e-12);
@@ -294,5 +306,35 @@ fn incoherent_sheet_equals_the_phase_average_of_coherent_sheets() {
     ] {
         // T differs by the change of single-pass absorption across the period (≈ 4e-5).
         assert!((a - b).abs() < 1e-4, "incoherent {x:?} vs averaged {avg:?}");
+    }
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(120))]
+
+    /// The grid driver evaluates several wavelengths side by side; it must
+    /// equal the one-wavelength oracle for any mix of lossless, absorbing and
+    /// evanescent layers, repeat groups and odd grid sizes.
+    #[test]
+    fn grid_driver_equals_the_single_wavelength_oracle(
+        (media, s) in random_stack(medium()),
+        repeat_count in 1u64..6,
+        nw in 1usize..11,
+        deg in 0.0f64..89.0,
+    ) {
+        let mut s = s;
+        if s.nodes.len() > 2 {
+            let tail = s.nodes.split_off(s.nodes.len() / 2);
+            s.nodes.push(Node::Repeat { count: repeat_count, nodes: tail });
+        }
+        let wavelengths: Vec<f64> = (0..nw).map(|i| 380.0 + 37.0 * i as f64).collect();
+        let index: Vec<Vec<Complex64>> = media.iter().map(|&n| vec![n; nw]).collect();
+        let grid = lamella::optics::compute(std::slice::from_ref(&s), &index, &wavelengths, &[deg]);
+        for (w, &wl) in wavelengths.iter().enumerate() {
+            let (a, b) = (grid.rt[w], rt_at(&s, &media, wl, deg));
+            for (x, y) in [(a.rs, b.rs), (a.rp, b.rp), (a.ts, b.ts), (a.tp, b.tp)] {
+                prop_assert!((x - y).abs() < 1e-12, "{a:?} vs {b:?} at {wl} nm");
+            }
+        }
     }
 }
