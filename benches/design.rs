@@ -19,5 +19,10 @@ fn five_layer(c: &mut Criterion) {
     });
 }
 
-criterion_group!(benches, five_layer);
+// No plots: the charts' font setup is not registered inside criterion.
+criterion_group! {
+    name = benches;
+    config = Criterion::default().without_plots();
+    targets = five_layer
+}
 criterion_main!(benches);

@@ -66,7 +66,12 @@ fn colour_overhead_ratio() {
     }
 }
 
-criterion_group!(benches, engine, colour);
+// No plots: the charts' font setup is not registered inside criterion.
+criterion_group! {
+    name = benches;
+    config = Criterion::default().without_plots();
+    targets = engine, colour
+}
 
 fn main() {
     benches();
