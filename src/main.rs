@@ -50,11 +50,13 @@ enum Command {
         #[arg(short = 'o', long = "output")]
         output: Option<PathBuf>,
     },
-    /// Colour of an effect-pigment coating (the scene's `coating`: platelets
-    /// in a binder over a background) at multi-angle geometries such as
-    /// 45as15 (illumination 45°, detection 15° from the specular direction
-    /// toward the normal): reflectance factor, XYZ, CIELAB, C*, h, sRGB, hex
-    /// and gamut per geometry, the flop index and the hue travel.
+    /// Colour of an effect-pigment coating at the multi-angle geometries
+    /// (45as15 …), with the flop index and hue travel.
+    ///
+    /// The scene's `coating` holds platelets in a binder over a background;
+    /// `45as15` is illumination at 45° and detection 15° from the specular
+    /// direction toward the normal. Per geometry: reflectance factor, XYZ,
+    /// CIELAB, C*, h, sRGB, hex and gamut.
     #[command(after_help = cli::multiangle::HELP)]
     Multiangle {
         /// Scene file (JSON) with a `coating` section.
