@@ -8,10 +8,17 @@ use std::path::Path;
 /// Writes the concatenated `chunks` to `path` atomically, or to stdout when
 /// `path` is `None`. Special files such as `/dev/null` are written in place.
 pub fn emit(path: Option<&Path>, chunks: &[Vec<u8>]) -> io::Result<()> {
+    emit_with(path, |out| chunks.iter().try_for_each(|c| out.write_all(c)))
+}
+
+/// Like [`emit`], with the content produced by `write` as it goes, so large
+/// outputs need not be held in memory whole.
+pub fn emit_with(
+    path: Option<&Path>,
+    write: impl FnOnce(&mut dyn Write) -> io::Result<()>,
+) -> io::Result<()> {
     let write_all = |out: &mut dyn Write| -> io::Result<()> {
-        for c in chunks {
-            out.write_all(c)?;
-        }
+        write(out)?;
         out.flush()
     };
     let Some(path) = path else {

@@ -5,7 +5,9 @@ use std::path::Path;
 use lamella::optics::Spectra;
 use rayon::prelude::*;
 
-use super::{CliResult, Failure, load_scene, write_out};
+use std::io::{self, Write};
+
+use super::{CliResult, Failure, load_scene, output};
 
 /// Output format of the spectrum.
 #[derive(Debug, Clone, Copy, clap::ValueEnum)]
@@ -35,11 +37,11 @@ pub fn run(scene_path: &Path, format: Format, out: Option<&Path>) -> CliResult {
     let spectra = scene
         .spectra()
         .map_err(|e| Failure::input(format!("{}: {e}", scene_path.display())))?;
-    let chunks = match format {
-        Format::Csv => csv(&spectra),
-        Format::Json => vec![json(&scene.title, &spectra).into_bytes()],
+    let written = match format {
+        Format::Csv => output::emit_with(out, |w| write_csv(&spectra, w)),
+        Format::Json => output::emit(out, &[json(&scene.title, &spectra).into_bytes()]),
     };
-    write_out(out, &chunks)
+    written.map_err(|e| Failure::io(out.unwrap_or(Path::new("<stdout>")), e))
 }
 
 fn row_values(s: &Spectra, a: usize, w: usize) -> [f64; 9] {
@@ -58,36 +60,44 @@ fn row_values(s: &Spectra, a: usize, w: usize) -> [f64; 9] {
     ]
 }
 
-/// Rows per angle block, formatted in parallel; numbers print in the
-/// shortest form that reads back to the same f64.
-fn csv(s: &Spectra) -> Vec<Vec<u8>> {
-    let mut header = COLUMNS.join(",").into_bytes();
-    header.push(b'\n');
+/// Writes the CSV: blocks of angles formatted in parallel into reused
+/// buffers, then written in order. Numbers print in the shortest form that
+/// reads back to the same f64.
+fn write_csv(s: &Spectra, out: &mut dyn Write) -> io::Result<()> {
+    out.write_all(COLUMNS.join(",").as_bytes())?;
+    out.write_all(b"\n")?;
     let mut num = zmij::Buffer::new();
     let wavelengths: Vec<String> = s
         .wavelengths_nm
         .iter()
         .map(|&w| num.format(w).to_string())
         .collect();
-    let blocks = (0..s.angles_deg.len()).into_par_iter().map(|a| {
-        let mut num = zmij::Buffer::new();
-        let angle = num.format(s.angles_deg[a]).to_string();
-        let mut out = Vec::with_capacity(wavelengths.len() * 190);
-        for (w, wl) in wavelengths.iter().enumerate() {
-            out.extend_from_slice(wl.as_bytes());
-            out.push(b',');
-            out.extend_from_slice(angle.as_bytes());
-            for v in &row_values(s, a, w)[2..] {
-                out.push(b',');
-                out.extend_from_slice(num.format(*v).as_bytes());
-            }
-            out.push(b'\n');
-        }
-        out
-    });
-    std::iter::once(header)
-        .chain(blocks.collect::<Vec<_>>())
-        .collect()
+    let mut buffers =
+        vec![Vec::with_capacity(wavelengths.len() * 190); 8 * rayon::current_num_threads()];
+    for first in (0..s.angles_deg.len()).step_by(buffers.len()) {
+        let count = buffers.len().min(s.angles_deg.len() - first);
+        buffers[..count]
+            .par_iter_mut()
+            .enumerate()
+            .for_each(|(i, buf)| {
+                let a = first + i;
+                let mut num = zmij::Buffer::new();
+                let angle = num.format(s.angles_deg[a]).to_string();
+                buf.clear();
+                for (w, wl) in wavelengths.iter().enumerate() {
+                    buf.extend_from_slice(wl.as_bytes());
+                    buf.push(b',');
+                    buf.extend_from_slice(angle.as_bytes());
+                    for v in &row_values(s, a, w)[2..] {
+                        buf.push(b',');
+                        buf.extend_from_slice(num.format(*v).as_bytes());
+                    }
+                    buf.push(b'\n');
+                }
+            });
+        buffers[..count].iter().try_for_each(|b| out.write_all(b))?;
+    }
+    Ok(())
 }
 
 fn json(title: &str, s: &Spectra) -> String {
