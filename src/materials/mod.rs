@@ -324,6 +324,13 @@ impl Dispersion {
 
 /// n + i·k = √ε on the branch with k ≥ 0.
 pub fn index_from_permittivity(eps: Complex64) -> Complex64 {
+    // A rounding-sized negative Im ε (a lossless mixture computed from
+    // complex parts) is zero, not gain.
+    let eps = if eps.im < 0.0 && eps.im.abs() <= 1e-12 * eps.norm() {
+        Complex64::new(eps.re, 0.0)
+    } else {
+        eps
+    };
     let n = eps.sqrt();
     if n.im < 0.0 { -n } else { n }
 }
@@ -373,6 +380,23 @@ mod tests {
         };
         let n = d.index(550.0).unwrap();
         assert!(n.im > 0.0 && n.im > n.re, "{n}");
+    }
+
+    #[test]
+    fn rounding_sized_loss_does_not_flip_the_branch() {
+        // Regression: a metal host mixed to fraction 1 of air left Im ε ≈ −1e-17
+        // and gave n = −1.
+        let n = index_from_permittivity(Complex64::new(1.0, -1.6e-17));
+        assert!((n.re - 1.0).abs() < 1e-15 && n.im >= 0.0, "{n}");
+        let silver = library::find("silver").unwrap().dispersion;
+        let mix = Dispersion::Mixture {
+            rule: MixingRule::MaxwellGarnett,
+            host: Box::new(silver),
+            guest: Box::new(Dispersion::Constant { n: 1.0, k: 0.0 }),
+            fraction: 1.0,
+        };
+        let n = mix.index(550.0).unwrap();
+        assert!(n.re > 0.99 && n.im >= 0.0, "{n}");
     }
 
     #[test]

@@ -401,13 +401,21 @@ impl Template {
             })
             .collect::<Result<_>>()?;
         let density = Density::new(&coating.orientation);
+        let normals = normals(&density);
+        if !(density.inv_norm.is_finite() && density.inv_norm > 0.0) || normals.is_empty() {
+            return Err(Error::invalid(
+                "coating.tilt_density",
+                "(weights)",
+                "too narrow to resolve: give the spread over at least a few degrees, with non-zero weights on a range of tilts",
+            ));
+        }
         let background = coating.background.on(&wavelengths_nm)?;
         let mut template = Template {
             coating: coating.clone(),
             wavelengths_nm,
             index,
             n,
-            normals: normals(&density),
+            normals,
             density,
             background,
             plan: None,
