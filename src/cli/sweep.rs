@@ -1,7 +1,7 @@
 //! `lamella sweep`: evaluate many designs over the `vary_nm` ranges, one
 //! JSON line each.
 
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 use lamella::design::evaluator::Evaluator;
 use lamella::design::sweep::{Plan, lines, shard};
@@ -9,7 +9,7 @@ use lamella::design::variables::varying;
 
 use super::color::ViewArgs;
 use super::design_args::TargetArgs;
-use super::{CliResult, Failure, load_scene, write_out};
+use super::{CliResult, Failure, load_scene, output};
 
 /// Flags of `lamella sweep`.
 ///
@@ -55,6 +55,12 @@ pub fn run(args: &SweepArgs) -> CliResult {
     let target = args.target.lab(&viewing, &scene.wavelengths_nm)?;
     let bad = |e: lamella::Error| Failure::input(format!("{}: {e}", args.scene.display()));
     let vars = varying(&scene);
+    if vars.is_empty() {
+        return Err(Failure::input(format!(
+            "{}: stack = (no vary_nm): mark the layers to sweep with \"vary_nm\": [low, high]",
+            args.scene.display()
+        )));
+    }
     let plan = match (args.samples, args.grid) {
         (Some(samples), _) => Plan::Random {
             samples,
@@ -84,5 +90,17 @@ pub fn run(args: &SweepArgs) -> CliResult {
         )));
     }
     let eval = Evaluator::colour(&scene, vars, &[args.angle], &viewing).map_err(bad)?;
-    write_out(args.output.as_deref(), &lines(&eval, plan, range, target))
+    // Streamed in batches so that a large sweep never sits in memory whole.
+    let batch = 1 << 18;
+    let out = args.output.as_deref();
+    output::emit_with(out, |w| {
+        for start in range.clone().step_by(batch) {
+            let end = (start + batch as u64).min(range.end);
+            lines(&eval, plan, start..end, target)
+                .iter()
+                .try_for_each(|c| w.write_all(c))?;
+        }
+        Ok(())
+    })
+    .map_err(|e| Failure::io(out.unwrap_or(Path::new("<stdout>")), e))
 }

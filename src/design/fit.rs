@@ -54,6 +54,13 @@ pub fn parse_measured(text: &str, default_angle: f64) -> Result<Vec<Measured>> {
     let mut groups: Vec<Measured> = Vec::new();
     for (i, line) in lines {
         let cells: Vec<&str> = line.split(',').map(str::trim).collect();
+        if cells.len() != names.len() {
+            return Err(Error::invalid(
+                format!("measured line {}", i + 1),
+                line,
+                format!("expected {} columns as in the header", names.len()),
+            ));
+        }
         let num = |c: usize, what: &str| -> Result<f64> {
             let key = format!("measured line {}", i + 1);
             let cell = cells
@@ -82,11 +89,11 @@ pub fn parse_measured(text: &str, default_angle: f64) -> Result<Vec<Measured>> {
             }
             None => At::Angle(angle.map_or(Ok(default_angle), |c| num(c, "angle_deg"))?),
         };
-        if w <= 0.0 || at.angle_deg().is_some_and(|a| !(a.abs() < 90.0)) {
+        if w <= 0.0 || rv < 0.0 || at.angle_deg().is_some_and(|a| !(a.abs() < 90.0)) {
             return Err(Error::invalid(
                 key,
                 line,
-                "needs wavelength > 0 and |angle| < 90°",
+                "needs wavelength > 0, R ≥ 0 and |angle| < 90°",
             ));
         }
         match groups.iter_mut().find(|g| g.at == at) {
@@ -243,6 +250,14 @@ pub fn fit(scene: &Scene, measured: &[Measured], settings: &FitSettings) -> Resu
     };
     let data: Vec<f64> = measured.iter().flat_map(|m| m.r.iter().copied()).collect();
     let points = data.len();
+    let parameters = vars.len() + usize::from(settings.fit_scale);
+    if points <= parameters {
+        return Err(Error::invalid(
+            "measured",
+            format!("{points} points"),
+            format!("a fit of {parameters} parameters needs more points than that"),
+        ));
+    }
     let count = std::sync::atomic::AtomicUsize::new(0);
     let model = |x: &[f64]| -> Vec<f64> {
         count.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
