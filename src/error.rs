@@ -58,9 +58,16 @@ pub enum Error {
 impl Error {
     /// Builds [`Error::Invalid`] from anything printable.
     pub fn invalid(key: impl Into<String>, value: impl Display, why: impl Into<String>) -> Self {
+        let mut value = value.to_string();
+        // Very large or small numbers print in exponent form, not 300 digits.
+        if value.len() > 24
+            && let Ok(x) = value.parse::<f64>()
+        {
+            value = format!("{x:e}");
+        }
         Error::Invalid {
             key: key.into(),
-            value: value.to_string(),
+            value,
             why: why.into(),
         }
     }

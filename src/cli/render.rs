@@ -77,8 +77,8 @@ pub struct RenderArgs {
     /// is scaled to a bounding sphere of radius 1). [default: frames the object]
     #[arg(long)]
     pub distance: Option<f64>,
-    /// Write N frames of a full turn of the object (camera and lights fixed).
-    #[arg(long)]
+    /// Write N frames of a full turn of the object (camera and lights fixed), 1–3600.
+    #[arg(long, value_parser = clap::value_parser!(u32).range(1..=3600))]
     pub turntable: Option<u32>,
 }
 

@@ -407,6 +407,13 @@ impl Settings {
             s.view.distance = Some(x);
         }
         if let Some(n) = o.u64("turntable")? {
+            if n == 0 {
+                return Err(Error::invalid(
+                    o.key("turntable"),
+                    n,
+                    "at least 1 frame (leave the key out for a single image)",
+                ));
+            }
             s.turntable = n.min(u32::MAX as u64) as u32;
         }
         Ok(s)
