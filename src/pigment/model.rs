@@ -51,10 +51,11 @@
 //!    top surface M = 1 / (1 − ρ r_i t_d²) (Saunderson, JOSA 32, 727, 1942),
 //!    r_i the cosine-weighted internal reflectance of the surface (total
 //!    internal reflection included) and t_d the cosine-weighted mean of
-//!    t(ω'). Platelet scattering of that diffuse light is neglected.
+//!    t(ω') (t_d² stands in for the mean of t² over the diffuse round trip,
+//!    an approximation). Platelet scattering of that diffuse light is neglected.
 //!
 //! Every term is symmetric in ω_i and ω_o, so R_F obeys Helmholtz
-//! reciprocity. Platelets lie either face up with equal probability: for
+//! reciprocity. Platelets lie face up or face down with equal probability: for
 //! an asymmetric stack R and T are the means over both faces. The binder is
 //! lossless; its thickness does not enter.
 //!
