@@ -169,6 +169,27 @@ impl<const N: usize> FieldLanes<N> {
         }
     }
 
+    /// Multiplies every lane by its real-form matrix: `m` holds lane
+    /// `pol · N + l` for polarization `pol` (s = 0, p = 1) and wavelength `l`;
+    /// `M` must be `2 · N`.
+    #[inline]
+    pub fn through_real_matrix<const M: usize>(&mut self, m: &RealLanes<M>) {
+        debug_assert_eq!(M, 2 * N);
+        for pol in 0..2 {
+            let [br, bi, cr, ci] = [0, 1, 2, 3].map(|j| self.v[4 * pol + j]);
+            for l in 0..N {
+                let k = pol * N + l;
+                let (a, b, c, d) = (m.a[k], m.b[k], m.c[k], m.d[k]);
+                // B' = a B − i b C, C' = −i c B + d C.
+                self.v[4 * pol][l] = a * br[l] + b * ci[l];
+                self.v[4 * pol + 1][l] = a * bi[l] - b * cr[l];
+                self.v[4 * pol + 2][l] = c * bi[l] + d * cr[l];
+                self.v[4 * pol + 3][l] = d * ci[l] - c * br[l];
+                self.log[pol][l] += m.log[k];
+            }
+        }
+    }
+
     /// [`Field::renormalise`] on every lane and polarization.
     pub fn renormalise(&mut self) {
         for pol in 0..2 {
@@ -274,64 +295,67 @@ impl Mat {
     }
 }
 
-/// The characteristic matrices of lossless, propagating layers for both
-/// polarizations at once (lane 0: s, lane 1: p): [[a, −i·b], [−i·c, d]] with
-/// a, b, c, d real, times e^{log} (a scale per lane: in a long stop band the
-/// two polarizations grow at different rates). Products of such matrices keep
-/// the form, so a quarter of the complex arithmetic suffices, and the two
-/// lanes run side by side in vector registers.
+/// Characteristic matrices of lossless, propagating layers, several at once
+/// (lanes: s and p, and for [`RealLanes::<8>`] four wavelengths of each):
+/// [[a, −i·b], [−i·c, d]] with a, b, c, d real, times e^{log} (a scale per
+/// lane: in a long stop band the lanes grow at different rates). Products of
+/// such matrices keep the form, so a quarter of the complex arithmetic
+/// suffices, and the lanes run side by side in vector registers.
 #[derive(Debug, Clone, Copy)]
-pub struct RealPair {
-    a: [f64; 2],
-    b: [f64; 2],
-    c: [f64; 2],
-    d: [f64; 2],
-    log: [f64; 2],
+pub struct RealLanes<const M: usize> {
+    a: [f64; M],
+    b: [f64; M],
+    c: [f64; M],
+    d: [f64; M],
+    log: [f64; M],
 }
 
-impl RealPair {
+/// One wavelength: lane 0 is s, lane 1 is p.
+pub type RealPair = RealLanes<2>;
+
+impl<const M: usize> RealLanes<M> {
     /// The identity.
     pub fn identity() -> Self {
-        RealPair {
-            a: [1.0; 2],
-            b: [0.0; 2],
-            c: [0.0; 2],
-            d: [1.0; 2],
-            log: [0.0; 2],
+        RealLanes {
+            a: [1.0; M],
+            b: [0.0; M],
+            c: [0.0; M],
+            d: [1.0; M],
+            log: [0.0; M],
         }
     }
 
-    /// One lossless layer with real phase `ph` and real admittances
-    /// `eta` = (η_s, η_p) and their inverses.
-    pub fn layer(ph: &Phase, eta: [f64; 2], inv_eta: [f64; 2]) -> Self {
-        let (cs, sn) = (ph.cos.re, ph.sin.re);
-        RealPair {
-            a: [cs; 2],
-            b: [sn * inv_eta[0], sn * inv_eta[1]],
-            c: [sn * eta[0], sn * eta[1]],
-            d: [cs; 2],
-            log: [0.0; 2],
+    /// One lossless layer: cos δ and sin δ per lane, admittances and their inverses.
+    #[inline]
+    pub fn layer(cos: [f64; M], sin: [f64; M], eta: [f64; M], inv_eta: [f64; M]) -> Self {
+        RealLanes {
+            a: cos,
+            b: std::array::from_fn(|i| sin[i] * inv_eta[i]),
+            c: std::array::from_fn(|i| sin[i] * eta[i]),
+            d: cos,
+            log: [0.0; M],
         }
     }
 
     /// The product `self · rhs`, lane by lane.
-    pub fn mul(&self, r: &RealPair) -> RealPair {
-        let lanes = |f: &dyn Fn(usize) -> f64| [f(0), f(1)];
-        let mut out = RealPair {
-            a: lanes(&|i| self.a[i] * r.a[i] - self.b[i] * r.c[i]),
-            b: lanes(&|i| self.a[i] * r.b[i] + self.b[i] * r.d[i]),
-            c: lanes(&|i| self.c[i] * r.a[i] + self.d[i] * r.c[i]),
-            d: lanes(&|i| self.d[i] * r.d[i] - self.c[i] * r.b[i]),
-            log: lanes(&|i| self.log[i] + r.log[i]),
-        };
-        let big = lanes(&|i| {
+    #[inline]
+    pub fn mul(&self, r: &RealLanes<M>) -> RealLanes<M> {
+        let mut out = RealLanes::identity();
+        for i in 0..M {
+            out.a[i] = self.a[i] * r.a[i] - self.b[i] * r.c[i];
+            out.b[i] = self.a[i] * r.b[i] + self.b[i] * r.d[i];
+            out.c[i] = self.c[i] * r.a[i] + self.d[i] * r.c[i];
+            out.d[i] = self.d[i] * r.d[i] - self.c[i] * r.b[i];
+            out.log[i] = self.log[i] + r.log[i];
+        }
+        let big: [f64; M] = std::array::from_fn(|i| {
             out.a[i]
                 .abs()
                 .max(out.b[i].abs())
                 .max(out.c[i].abs())
                 .max(out.d[i].abs())
         });
-        if big[0] > BIG || big[1] > BIG {
+        if big.iter().any(|&m| m > BIG) {
             for (i, &m) in big.iter().enumerate().filter(|(_, m)| **m > BIG) {
                 let inv = 1.0 / m;
                 out.a[i] *= inv;
@@ -345,8 +369,16 @@ impl RealPair {
     }
 
     /// `self^n` by binary powering: O(log n) products.
-    pub fn pow(&self, n: u64) -> RealPair {
-        power(*self, n, RealPair::identity(), RealPair::mul)
+    pub fn pow(&self, n: u64) -> RealLanes<M> {
+        power(*self, n, RealLanes::identity(), RealLanes::mul)
+    }
+}
+
+impl RealPair {
+    /// One lossless layer with real phase `ph` and real admittances
+    /// `eta` = (η_s, η_p) and their inverses.
+    pub fn of_layer(ph: &Phase, eta: [f64; 2], inv_eta: [f64; 2]) -> Self {
+        RealLanes::layer([ph.cos.re; 2], [ph.sin.re; 2], eta, inv_eta)
     }
 
     /// The two matrices (s, p) in complex form.

@@ -5,8 +5,9 @@ use num_complex::Complex64;
 
 use std::array::from_fn;
 
-use super::matrix::{Field, FieldLanes, Mat, Phase, RealPair};
+use super::matrix::{Field, FieldLanes, Mat, Phase, RealLanes, RealPair};
 use super::medium::MediumTerms;
+use super::trig::sin_cos_lanes;
 
 /// One element of a stack, listed from the incident side.
 #[derive(Debug, Clone, PartialEq)]
@@ -117,6 +118,14 @@ impl Stack {
                     if i % 8 == 7 {
                         lanes.renormalise();
                     }
+                }
+                Node::Repeat { count, nodes } if terms.iter().all(|t| all_real(nodes, t)) => {
+                    if !packed {
+                        lanes = FieldLanes::load(&fs, &fp);
+                        packed = true;
+                    }
+                    lanes.through_real_matrix(&product_real_lanes(nodes, terms, k0).pow(*count));
+                    lanes.renormalise();
                 }
                 _ => {
                     if packed {
@@ -233,6 +242,38 @@ fn all_real(nodes: &[Node], terms: &[MediumTerms]) -> bool {
     })
 }
 
+/// [`product_real`] for [`LANES`] wavelengths at once: lane `pol · LANES + l`
+/// holds polarization `pol` (s = 0, p = 1) at wavelength `l`.
+fn product_real_lanes(
+    nodes: &[Node],
+    terms: [&[MediumTerms]; LANES],
+    k0: [f64; LANES],
+) -> RealLanes<{ 2 * LANES }> {
+    let mut m = RealLanes::identity();
+    for node in nodes {
+        let next = match node {
+            Node::Layer {
+                medium,
+                thickness_nm,
+            } => {
+                let t = |k: usize| &terms[k % LANES][*medium];
+                let phase: [f64; LANES] = from_fn(|l| k0[l] * thickness_nm * t(l).q.re);
+                let (sn, cs) = sin_cos_lanes(phase);
+                let pick = |k: usize, s: f64, p: f64| if k < LANES { s } else { p };
+                RealLanes::layer(
+                    from_fn(|k| cs[k % LANES]),
+                    from_fn(|k| sn[k % LANES]),
+                    from_fn(|k| pick(k, t(k).eta_s.re, t(k).eta_p.re)),
+                    from_fn(|k| pick(k, t(k).inv_eta_s.re, t(k).inv_eta_p.re)),
+                )
+            }
+            Node::Repeat { count, nodes } => product_real_lanes(nodes, terms, k0).pow(*count),
+        };
+        m = m.mul(&next);
+    }
+    m
+}
+
 /// [`product`] for lossless, propagating layers, both polarizations at once.
 fn product_real(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> RealPair {
     let mut m = RealPair::identity();
@@ -244,7 +285,7 @@ fn product_real(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> RealPair {
             } => {
                 let t = &terms[*medium];
                 let ph = Phase::new(k0 * thickness_nm, t.q);
-                RealPair::layer(
+                RealPair::of_layer(
                     &ph,
                     [t.eta_s.re, t.eta_p.re],
                     [t.inv_eta_s.re, t.inv_eta_p.re],
