@@ -340,37 +340,62 @@ impl<const M: usize> RealLanes<M> {
     /// The product `self · rhs`, lane by lane.
     #[inline]
     pub fn mul(&self, r: &RealLanes<M>) -> RealLanes<M> {
-        let mut out = RealLanes::identity();
-        for i in 0..M {
-            out.a[i] = self.a[i] * r.a[i] - self.b[i] * r.c[i];
-            out.b[i] = self.a[i] * r.b[i] + self.b[i] * r.d[i];
-            out.c[i] = self.c[i] * r.a[i] + self.d[i] * r.c[i];
-            out.d[i] = self.d[i] * r.d[i] - self.c[i] * r.b[i];
-            out.log[i] = self.log[i] + r.log[i];
-        }
-        let big: [f64; M] = std::array::from_fn(|i| {
-            out.a[i]
-                .abs()
-                .max(out.b[i].abs())
-                .max(out.c[i].abs())
-                .max(out.d[i].abs())
-        });
-        if big.iter().any(|&m| m > BIG) {
-            for (i, &m) in big.iter().enumerate().filter(|(_, m)| **m > BIG) {
-                let inv = 1.0 / m;
-                out.a[i] *= inv;
-                out.b[i] *= inv;
-                out.c[i] *= inv;
-                out.d[i] *= inv;
-                out.log[i] += m.ln();
-            }
-        }
+        let mut out = *self;
+        out.mul_assign(r);
         out
     }
 
-    /// `self^n` by binary powering: O(log n) products.
-    pub fn pow(&self, n: u64) -> RealLanes<M> {
-        power(*self, n, RealLanes::identity(), RealLanes::mul)
+    /// `self = self · rhs` in place, with the lanes' magnitudes moved into
+    /// the scale where they grow large.
+    #[inline(always)]
+    fn mul_assign(&mut self, r: &RealLanes<M>) {
+        let mut big = [0.0f64; M];
+        for i in 0..M {
+            let (a, b, c, d) = (self.a[i], self.b[i], self.c[i], self.d[i]);
+            self.a[i] = a * r.a[i] - b * r.c[i];
+            self.b[i] = a * r.b[i] + b * r.d[i];
+            self.c[i] = c * r.a[i] + d * r.c[i];
+            self.d[i] = d * r.d[i] - c * r.b[i];
+            self.log[i] += r.log[i];
+            // Plain comparisons (not f64::max) so the lanes vectorize.
+            let m1 = if self.a[i].abs() > self.b[i].abs() {
+                self.a[i].abs()
+            } else {
+                self.b[i].abs()
+            };
+            let m2 = if self.c[i].abs() > self.d[i].abs() {
+                self.c[i].abs()
+            } else {
+                self.d[i].abs()
+            };
+            big[i] = if m1 > m2 { m1 } else { m2 };
+        }
+        if big.iter().any(|&m| m > BIG) {
+            for (i, &m) in big.iter().enumerate().filter(|(_, m)| **m > BIG) {
+                let inv = 1.0 / m;
+                self.a[i] *= inv;
+                self.b[i] *= inv;
+                self.c[i] *= inv;
+                self.d[i] *= inv;
+                self.log[i] += m.ln();
+            }
+        }
+    }
+
+    /// `self^n` by binary powering in place: O(log n) products.
+    pub fn pow(&self, mut n: u64) -> RealLanes<M> {
+        let (mut base, mut acc) = (*self, RealLanes::identity());
+        while n > 0 {
+            if n & 1 == 1 {
+                acc.mul_assign(&base);
+            }
+            n >>= 1;
+            if n > 0 {
+                let b = base;
+                base.mul_assign(&b);
+            }
+        }
+        acc
     }
 }
 
