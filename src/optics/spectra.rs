@@ -55,42 +55,36 @@ pub fn compute(
     let nw = wavelengths_nm.len();
     // Wavelengths go in blocks of LANES (the last block repeats its final
     // wavelength to fill up; the extra results are dropped).
-    let blocks = nw.div_ceil(LANES);
     let incident = realisations[0].incident;
     let weight = 1.0 / realisations.len() as f64;
     let sines: Vec<f64> = angles_deg.iter().map(|a| a.to_radians().sin()).collect();
-    let per_block: Vec<[Rt; LANES]> = (0..angles_deg.len() * blocks)
-        .into_par_iter()
-        .with_min_len(8)
-        .map_init(
-            || vec![Vec::with_capacity(index.len()); LANES],
-            |terms: &mut Vec<Vec<MediumTerms>>, i| {
-                let (a, b) = (i / blocks, i % blocks);
-                let ws: [usize; LANES] = from_fn(|l| (b * LANES + l).min(nw - 1));
-                for (t, &w) in terms.iter_mut().zip(&ws) {
-                    let beta = index[incident][w].re * sines[a];
-                    t.clear();
-                    t.extend(index.iter().map(|n| MediumTerms::new(n[w], beta)));
-                }
-                let lanes: [&[MediumTerms]; LANES] = from_fn(|l| terms[l].as_slice());
-                let k0 = ws.map(|w| 2.0 * PI / wavelengths_nm[w]);
-                let mut sum = [Rt::default(); LANES];
-                for stack in realisations {
-                    for (acc, x) in sum.iter_mut().zip(stack.rt_lanes(lanes, k0)) {
-                        acc.rs += x.rs * weight;
-                        acc.rp += x.rp * weight;
-                        acc.ts += x.ts * weight;
-                        acc.tp += x.tp * weight;
+    let mut rt = vec![Rt::default(); angles_deg.len() * nw];
+    rt.par_chunks_mut(nw).enumerate().for_each(|(a, row)| {
+        row.par_chunks_mut(LANES)
+            .enumerate()
+            .with_min_len(8)
+            .for_each_init(
+                || vec![Vec::with_capacity(index.len()); LANES],
+                |terms: &mut Vec<Vec<MediumTerms>>, (b, out)| {
+                    let ws: [usize; LANES] = from_fn(|l| (b * LANES + l).min(nw - 1));
+                    for (t, &w) in terms.iter_mut().zip(&ws) {
+                        let beta = index[incident][w].re * sines[a];
+                        t.clear();
+                        t.extend(index.iter().map(|n| MediumTerms::new(n[w], beta)));
                     }
-                }
-                sum
-            },
-        )
-        .collect();
-    let rt = per_block
-        .chunks(blocks)
-        .flat_map(|angle| angle.iter().flatten().take(nw).copied())
-        .collect();
+                    let lanes: [&[MediumTerms]; LANES] = from_fn(|l| terms[l].as_slice());
+                    let k0 = ws.map(|w| 2.0 * PI / wavelengths_nm[w]);
+                    for stack in realisations {
+                        for (acc, x) in out.iter_mut().zip(stack.rt_lanes(lanes, k0)) {
+                            acc.rs += x.rs * weight;
+                            acc.rp += x.rp * weight;
+                            acc.ts += x.ts * weight;
+                            acc.tp += x.tp * weight;
+                        }
+                    }
+                },
+            );
+    });
     Spectra {
         wavelengths_nm: wavelengths_nm.to_vec(),
         angles_deg: angles_deg.to_vec(),
