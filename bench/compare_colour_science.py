@@ -149,7 +149,7 @@ def best_of(repeats, fn):
 GNU_TIME = "/usr/bin/time"
 
 
-def run_lamella(binary, scene_path, out_path):
+def run_lamella(binary, scene_path, out_path, memory=True):
     """Run lamella once; return (wall seconds, max RSS in MiB, exit status, stderr text).
 
     The max RSS is taken from GNU time's report on its own child (%M), because on Linux
@@ -160,7 +160,8 @@ def run_lamella(binary, scene_path, out_path):
     argv = [binary, "spectrum", scene_path, "--format", "csv", "-o", out_path]
     with tempfile.TemporaryDirectory() as tmp:
         stats = os.path.join(tmp, "rss")
-        if USE_GNU_TIME:
+        with_time = memory and USE_GNU_TIME
+        if with_time:
             argv = [GNU_TIME, "-f", "%M", "-o", stats] + argv
         with open(os.path.join(tmp, "stderr"), "w+b") as err:
             actions = [
@@ -175,7 +176,7 @@ def run_lamella(binary, scene_path, out_path):
             err.seek(0)
             message = err.read().decode(errors="replace").strip()
         code = os.waitstatus_to_exitcode(status)
-        if USE_GNU_TIME:
+        if with_time:
             with open(stats) as f:
                 lines = f.read().split()
             rss_kib = float(lines[-1]) if code == 0 and lines else float("nan")
@@ -218,15 +219,18 @@ def load_scene(name):
 def lamella_side(name, binary, repeats, csv_dir):
     """Time lamella on one scene and keep one real CSV; return a result dict or an error."""
     path, scene = load_scene(name)
-    runs = [run_lamella(binary, path, os.devnull) for _ in range(repeats)]
-    failed = [r for r in runs if r[2] != 0]
+    # Timed runs start lamella directly; the memory run goes through GNU time,
+    # whose own start-up would otherwise count as lamella's.
+    runs = [run_lamella(binary, path, os.devnull, memory=False) for _ in range(repeats)]
+    _, rss, code, message = run_lamella(binary, path, os.devnull)
+    failed = [r for r in runs if r[2] != 0] + ([(0.0, rss, code, message)] if code != 0 else [])
     if failed:
         return {"error": f"exit status {failed[0][2]}: {failed[0][3]}"}
     out = os.path.join(csv_dir, f"{name}.csv")
     _, _, code, message = run_lamella(binary, path, out)
     if code != 0:
         return {"error": f"csv check run, exit status {code}: {message}"}
-    return {"time": min(r[0] for r in runs), "rss": max(r[1] for r in runs), "csv": out}
+    return {"time": min(r[0] for r in runs), "rss": rss, "csv": out}
 
 
 def colour_science_side(name, repeats, lamella):
