@@ -60,8 +60,8 @@ impl AbTravel {
 }
 
 impl Chart for AbTravel {
-    fn label(&self) -> String {
-        format!("{}: {}", self.caption.title, self.caption.subject)
+    fn caption(&self) -> &style::Caption {
+        &self.caption
     }
 
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> DrawResult<DB> {

@@ -360,8 +360,8 @@ fn whole<DB: DrawingBackend>(area: &DrawingArea<DB, Shift>, s: &Style) -> ((f64,
 }
 
 impl Chart for Chromaticity {
-    fn label(&self) -> String {
-        format!("{}: {}", self.caption.title, self.caption.subject)
+    fn caption(&self) -> &style::Caption {
+        &self.caption
     }
 
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> DrawResult<DB> {

@@ -78,8 +78,8 @@ fn edges(v: &[f64]) -> Vec<f64> {
 }
 
 impl Chart for ReflectanceMap {
-    fn label(&self) -> String {
-        format!("{}: {}", self.caption.title, self.caption.subject)
+    fn caption(&self) -> &style::Caption {
+        &self.caption
     }
 
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> DrawResult<DB> {

@@ -38,8 +38,14 @@ pub trait Chart {
     /// Draws the whole chart on `root` (which is already white).
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> DrawResult<DB>;
 
+    /// The chart's title block.
+    fn caption(&self) -> &style::Caption;
+
     /// One line describing the chart (SVG title and accessible label).
-    fn label(&self) -> String;
+    fn label(&self) -> String {
+        let c = self.caption();
+        format!("{}: {}", c.title, c.subject)
+    }
 }
 
 /// Output format.

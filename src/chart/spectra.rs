@@ -288,8 +288,8 @@ fn pol_list(p: &[Polarization]) -> String {
 }
 
 impl Chart for SpectraChart {
-    fn label(&self) -> String {
-        format!("{}: {}", self.caption.title, self.caption.subject)
+    fn caption(&self) -> &style::Caption {
+        &self.caption
     }
 
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> DrawResult<DB> {

@@ -187,8 +187,8 @@ fn default_ticks(lo: f64, hi: f64) -> Vec<f64> {
 }
 
 impl Chart for AngleStrip {
-    fn label(&self) -> String {
-        format!("{}: {}", self.caption.title, self.caption.subject)
+    fn caption(&self) -> &style::Caption {
+        &self.caption
     }
 
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> DrawResult<DB> {

@@ -192,8 +192,8 @@ fn half_step(v: &[f64]) -> f64 {
 }
 
 impl Chart for ThicknessAngle {
-    fn label(&self) -> String {
-        format!("{}: {}", self.caption.title, self.caption.subject)
+    fn caption(&self) -> &style::Caption {
+        &self.caption
     }
 
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> DrawResult<DB> {
