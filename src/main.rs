@@ -101,6 +101,11 @@ fn main() -> ExitCode {
             return ExitCode::from(code);
         }
     };
+    // This thread joins the pool as worker 0, so a 2-core machine starts one
+    // extra thread rather than two and never waits on a sleeping main thread.
+    let _ = rayon::ThreadPoolBuilder::new()
+        .use_current_thread()
+        .build_global();
     let result = match args.command {
         Command::Spectrum {
             scene,

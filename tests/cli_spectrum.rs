@@ -61,12 +61,31 @@ fn csv_has_the_contract_header_and_a_row_per_angle_and_wavelength() {
         .map(|l| l.split(',').map(|v| v.parse().unwrap()).collect())
         .collect();
     assert_eq!(rows.len(), 7 * 3);
-    // Angles are the outer loop; R is the mean of R_s and R_p; A = 1 − R − T.
+    // Angles are the outer loop; R is the mean of R_s and R_p; nothing in
+    // this stack absorbs, so A is 0 exactly and R + T = 1 to rounding.
     assert_eq!((rows[0][0], rows[0][1]), (400.0, 0.0));
     assert_eq!((rows[7][0], rows[7][1]), (400.0, 30.0));
     for r in &rows {
         assert!((r[4] - 0.5 * (r[2] + r[3])).abs() < 1e-15);
-        assert!((r[8] - (1.0 - r[4] - r[7])).abs() < 1e-15);
+        assert_eq!(r[8], 0.0);
+        assert!((r[4] + r[7] - 1.0).abs() < 1e-13);
+    }
+}
+
+#[test]
+fn absorbing_stacks_report_a_as_one_minus_r_minus_t() {
+    let dir = temp_dir("absorbing");
+    let scene = write(
+        &dir,
+        "s.json",
+        &GOOD.replace(r#""hi": {"n": 2.35, "k": 0.0}"#, r#""hi": {"n": 2.35, "k": 0.05}"#),
+    );
+    let out = lamella(&["spectrum", scene.to_str().unwrap()]);
+    assert!(out.status.success());
+    let text = String::from_utf8(out.stdout).unwrap();
+    for line in text.lines().skip(1) {
+        let r: Vec<f64> = line.split(',').map(|v| v.parse().unwrap()).collect();
+        assert!(r[8] > 1e-3 && r[8] == 1.0 - r[4] - r[7], "{line}");
     }
 }
 

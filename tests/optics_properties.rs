@@ -338,3 +338,114 @@ proptest! {
         }
     }
 }
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(60))]
+
+    /// Long lossless repeat groups, powered through the Cayley–Hamilton pair
+    /// on the grid driver's lanes, equal the same periods written out (which
+    /// go layer by layer), in and out of the stop band.
+    #[test]
+    fn long_lossless_repeats_equal_their_expansion(
+        period in prop::collection::vec((1.2f64..2.6, 20.0f64..200.0), 1..4),
+        count in 1u64..1500,
+        deg in 0.0f64..85.0,
+    ) {
+        let mut media = vec![c(1.0, 0.0)];
+        let nodes: Vec<Node> = period.iter().map(|&(n, d)| { media.push(c(n, 0.0)); layer(media.len() - 1, d) }).collect();
+        media.push(c(1.52, 0.0));
+        let exit = media.len() - 1;
+        let powered = stack(0, vec![Node::Repeat { count, nodes: nodes.clone() }], exit);
+        let expanded = stack(0, (0..count).flat_map(|_| nodes.clone()).collect(), exit);
+        let wavelengths: Vec<f64> = (0..7).map(|i| 400.0 + 53.0 * i as f64).collect();
+        let index: Vec<Vec<Complex64>> = media.iter().map(|&n| vec![n; wavelengths.len()]).collect();
+        let grid = lamella::optics::compute(std::slice::from_ref(&powered), &index, &wavelengths, &[deg]);
+        for (w, &wl) in wavelengths.iter().enumerate() {
+            let (a, b) = (grid.rt[w], rt_at(&expanded, &media, wl, deg));
+            for (x, y) in [(a.rs, b.rs), (a.rp, b.rp), (a.ts, b.ts), (a.tp, b.tp)] {
+                prop_assert!((x - y).abs() < 1e-9, "{a:?} vs {b:?} at {wl} nm");
+            }
+        }
+    }
+
+    /// Rows computed piece by piece, from any first wavelength, equal the
+    /// whole grid computed at once.
+    #[test]
+    fn rows_in_pieces_equal_the_whole_grid(
+        (media, s) in random_stack(medium()),
+        nw in 1usize..23,
+        first in 0usize..22,
+        angles in prop::collection::vec(0.0f64..89.0, 1..4),
+    ) {
+        let first = first % nw;
+        let wavelengths: Vec<f64> = (0..nw).map(|i| 380.0 + 17.0 * i as f64).collect();
+        let index: Vec<Vec<Complex64>> = media.iter().map(|&n| vec![n; nw]).collect();
+        let stacks = std::slice::from_ref(&s);
+        let rows = lamella::optics::Rows::new(stacks, &index, &wavelengths, &angles);
+        let whole = rows.all();
+        for a in 0..angles.len() {
+            let mut piece = vec![Rt::default(); nw - first];
+            rows.fill(a, first, &mut piece);
+            prop_assert_eq!(&piece[..], &whole.at_angle(a)[first..]);
+        }
+    }
+}
+
+/// A lossless structure reports A = 0 exactly; an absorbing layer or a black
+/// backing behind an incoherent sheet makes it 1 − R − T > 0.
+#[test]
+fn absorptance_is_zero_only_where_nothing_absorbs() {
+    let wavelengths = [450.0, 550.0, 650.0];
+    let clear = [c(1.0, 0.0), c(2.3, 0.0), c(1.5, 0.0)];
+    let metal_in_blue = [
+        c(1.0, 0.0),
+        c(2.3, 0.0),
+        c(1.5, 0.0),
+        // Absorbing at the first wavelength only.
+        c(1.8, 0.0),
+    ];
+    let film = stack(0, vec![layer(1, 80.0)], 2);
+    let index = |media: &[Complex64]| -> Vec<Vec<Complex64>> {
+        media.iter().map(|&n| vec![n; wavelengths.len()]).collect()
+    };
+    let clear_index = index(&clear);
+    let lossless = lamella::optics::Rows::new(
+        std::slice::from_ref(&film),
+        &clear_index,
+        &wavelengths,
+        &[30.0],
+    );
+    for w in 0..wavelengths.len() {
+        assert!(lossless.lossless(w));
+        assert_eq!(lossless.all().at_angle(0)[w].a(true), 0.0);
+    }
+    let mut absorbing = index(&metal_in_blue);
+    absorbing[3][0] = c(1.8, 0.4);
+    let coated = stack(0, vec![layer(1, 80.0), layer(3, 30.0)], 2);
+    let rows = lamella::optics::Rows::new(
+        std::slice::from_ref(&coated),
+        &absorbing,
+        &wavelengths,
+        &[30.0],
+    );
+    assert!(!rows.lossless(0) && rows.lossless(1) && rows.lossless(2));
+    let x = rows.all().at_angle(0)[0];
+    assert!(x.a(false) > 1e-3 && (x.a(false) - (1.0 - x.r() - x.t())).abs() == 0.0);
+    let sheet = Stack {
+        incident: 0,
+        nodes: vec![layer(1, 80.0)],
+        exit: Exit::Sheet {
+            medium: 2,
+            thickness_nm: 5e4,
+            behind: Behind::Black,
+        },
+    };
+    let backed = lamella::optics::Rows::new(
+        std::slice::from_ref(&sheet),
+        &clear_index,
+        &wavelengths,
+        &[30.0],
+    );
+    assert!(!backed.lossless(1));
+    assert!(backed.all().at_angle(0)[1].a(false) > 0.5);
+}

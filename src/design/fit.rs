@@ -440,9 +440,11 @@ fn solve(mut a: Vec<Vec<f64>>, mut b: Vec<f64>) -> Option<Vec<f64>> {
         a.swap(c, piv);
         b.swap(c, piv);
         for r in c + 1..n {
-            let f = a[r][c] / a[c][c];
-            for k in c..n {
-                a[r][k] -= f * a[c][k];
+            let (above, below) = a.split_at_mut(r);
+            let (pivot, row) = (&above[c], &mut below[0]);
+            let f = row[c] / pivot[c];
+            for (x, p) in row[c..].iter_mut().zip(&pivot[c..]) {
+                *x -= f * p;
             }
             b[r] -= f * b[c];
         }

@@ -193,14 +193,21 @@ impl<const N: usize> FieldLanes<N> {
     /// [`Field::renormalise`] on every lane and polarization.
     pub fn renormalise(&mut self) {
         for pol in 0..2 {
-            for l in 0..N {
-                let big = (0..4).fold(0.0f64, |m, j| m.max(self.v[4 * pol + j][l].abs()));
-                if big > BIG {
-                    let inv = 1.0 / big;
+            let v = &self.v[4 * pol..4 * pol + 4];
+            let mut big = [0.0; N];
+            for (l, m) in big.iter_mut().enumerate() {
+                *m = larger(
+                    larger(v[0][l].abs(), v[1][l].abs()),
+                    larger(v[2][l].abs(), v[3][l].abs()),
+                );
+            }
+            if any_big(&big) {
+                for (l, &m) in big.iter().enumerate().filter(|(_, m)| **m > BIG) {
+                    let inv = 1.0 / m;
                     for j in 0..4 {
                         self.v[4 * pol + j][l] *= inv;
                     }
-                    self.log[pol][l] += big.ln();
+                    self.log[pol][l] += m.ln();
                 }
             }
         }
@@ -349,7 +356,6 @@ impl<const M: usize> RealLanes<M> {
     /// the scale where they grow large.
     #[inline(always)]
     fn mul_assign(&mut self, r: &RealLanes<M>) {
-        let mut big = [0.0f64; M];
         for i in 0..M {
             let (a, b, c, d) = (self.a[i], self.b[i], self.c[i], self.d[i]);
             self.a[i] = a * r.a[i] - b * r.c[i];
@@ -357,20 +363,20 @@ impl<const M: usize> RealLanes<M> {
             self.c[i] = c * r.a[i] + d * r.c[i];
             self.d[i] = d * r.d[i] - c * r.b[i];
             self.log[i] += r.log[i];
-            // Plain comparisons (not f64::max) so the lanes vectorize.
-            let m1 = if self.a[i].abs() > self.b[i].abs() {
-                self.a[i].abs()
-            } else {
-                self.b[i].abs()
-            };
-            let m2 = if self.c[i].abs() > self.d[i].abs() {
-                self.c[i].abs()
-            } else {
-                self.d[i].abs()
-            };
-            big[i] = if m1 > m2 { m1 } else { m2 };
         }
-        if big.iter().any(|&m| m > BIG) {
+        self.rescale();
+    }
+
+    /// Moves the magnitude of lanes whose entries exceed [`BIG`] into the scale.
+    #[inline(always)]
+    fn rescale(&mut self) {
+        let big: [f64; M] = std::array::from_fn(|i| {
+            larger(
+                larger(self.a[i].abs(), self.b[i].abs()),
+                larger(self.c[i].abs(), self.d[i].abs()),
+            )
+        });
+        if any_big(&big) {
             for (i, &m) in big.iter().enumerate().filter(|(_, m)| **m > BIG) {
                 let inv = 1.0 / m;
                 self.a[i] *= inv;
@@ -382,21 +388,90 @@ impl<const M: usize> RealLanes<M> {
         }
     }
 
-    /// `self^n` by binary powering in place: O(log n) products.
-    pub fn pow(&self, mut n: u64) -> RealLanes<M> {
-        let (mut base, mut acc) = (*self, RealLanes::identity());
-        while n > 0 {
-            if n & 1 == 1 {
-                acc.mul_assign(&base);
+    /// `self^n` in O(log n) steps. By Cayley–Hamilton, M² = t·M − D·I with
+    /// t = tr M and D = det M, so every power is M^n = p·M + q·I and only the
+    /// pair (p, q) is powered, by squaring. For unimodular M (lossless
+    /// periods), p and −q are the Chebyshev polynomials U_{n−1}(t/2) and
+    /// U_{n−2}(t/2) of Abelès' formula for periodic multilayers (Born & Wolf,
+    /// *Principles of Optics*, 7th ed. 1999, §1.6.5); D is kept as computed,
+    /// so rounding and the matrix's own scale stay consistent.
+    pub fn pow(&self, n: u64) -> RealLanes<M> {
+        let t: [f64; M] = std::array::from_fn(|i| self.a[i] + self.d[i]);
+        let det: [f64; M] = std::array::from_fn(|i| self.a[i] * self.d[i] + self.b[i] * self.c[i]);
+        let mut base = PowerPair {
+            p: [1.0; M],
+            q: [0.0; M],
+            log: [0.0; M],
+        };
+        let mut acc: Option<PowerPair<M>> = None;
+        let mut k = n;
+        while k > 0 {
+            if k & 1 == 1 {
+                acc = Some(acc.map_or(base, |a| a.times(&base, &t, &det)));
             }
-            n >>= 1;
-            if n > 0 {
-                let b = base;
-                base.mul_assign(&b);
+            k >>= 1;
+            if k > 0 {
+                base = base.times(&base, &t, &det);
             }
         }
-        acc
+        let Some(PowerPair { p, q, log }) = acc else {
+            return RealLanes::identity();
+        };
+        let mut out = RealLanes {
+            a: std::array::from_fn(|i| p[i] * self.a[i] + q[i]),
+            b: std::array::from_fn(|i| p[i] * self.b[i]),
+            c: std::array::from_fn(|i| p[i] * self.c[i]),
+            d: std::array::from_fn(|i| p[i] * self.d[i] + q[i]),
+            log: std::array::from_fn(|i| log[i] + n as f64 * self.log[i]),
+        };
+        out.rescale();
+        out
     }
+}
+
+/// The coefficients of a matrix power M^k = (p·M + q·I)·e^{log}, per lane.
+#[derive(Debug, Clone, Copy)]
+struct PowerPair<const M: usize> {
+    p: [f64; M],
+    q: [f64; M],
+    log: [f64; M],
+}
+
+impl<const M: usize> PowerPair<M> {
+    /// The coefficients of M^{j+k} from those of M^j (`self`) and M^k (`r`),
+    /// with M² = t·M − D·I: p = t·p₁p₂ + p₁q₂ + q₁p₂, q = q₁q₂ − D·p₁p₂.
+    #[inline(always)]
+    fn times(&self, r: &PowerPair<M>, t: &[f64; M], det: &[f64; M]) -> PowerPair<M> {
+        let mut out = *self;
+        for i in 0..M {
+            let pp = self.p[i] * r.p[i];
+            out.p[i] = t[i] * pp + self.p[i] * r.q[i] + self.q[i] * r.p[i];
+            out.q[i] = self.q[i] * r.q[i] - det[i] * pp;
+            out.log[i] = self.log[i] + r.log[i];
+        }
+        let big: [f64; M] = std::array::from_fn(|i| larger(out.p[i].abs(), out.q[i].abs()));
+        if any_big(&big) {
+            for (i, &m) in big.iter().enumerate().filter(|(_, m)| **m > BIG) {
+                out.p[i] /= m;
+                out.q[i] /= m;
+                out.log[i] += m.ln();
+            }
+        }
+        out
+    }
+}
+
+/// Whether any lane's magnitude exceeds [`BIG`] (a branch-free reduction).
+#[inline(always)]
+fn any_big<const M: usize>(big: &[f64; M]) -> bool {
+    big.iter().fold(0.0, |hi, &m| larger(hi, m)) > BIG
+}
+
+/// The larger of two magnitudes, by a plain comparison (not `f64::max`) so
+/// that lanes vectorize.
+#[inline(always)]
+fn larger(x: f64, y: f64) -> f64 {
+    if x > y { x } else { y }
 }
 
 impl RealPair {
@@ -435,4 +510,42 @@ fn power<T: Copy>(mut base: T, mut n: u64, identity: T, mul: fn(&T, &T) -> T) ->
         }
     }
     acc
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Entry `(a, b, c, d)` of lane `i` times its scale, for comparisons.
+    fn entries<const M: usize>(m: &RealLanes<M>, i: usize) -> [f64; 4] {
+        let s = m.log[i].exp();
+        [m.a[i] * s, m.b[i] * s, m.c[i] * s, m.d[i] * s]
+    }
+
+    /// The Cayley–Hamilton power equals repeated multiplication, also for
+    /// matrices that are not unimodular and carry a scale of their own.
+    #[test]
+    fn power_equals_repeated_products() {
+        let m = RealPair {
+            a: [0.8, 1.9],
+            b: [0.35, -0.7],
+            c: [-0.9, 1.3],
+            d: [1.1, 0.6],
+            log: [0.0, -0.25],
+        };
+        for n in [0, 1, 2, 3, 7, 20, 37] {
+            let mut slow = RealPair::identity();
+            for _ in 0..n {
+                slow.mul_assign(&m);
+            }
+            let fast = m.pow(n);
+            for i in 0..2 {
+                let (x, y) = (entries(&fast, i), entries(&slow, i));
+                let size = y.iter().fold(0.0f64, |s, v| s.max(v.abs()));
+                for (u, v) in x.iter().zip(&y) {
+                    assert!((u - v).abs() <= 1e-12 * size, "n = {n}, lane {i}: {x:?} vs {y:?}");
+                }
+            }
+        }
+    }
 }

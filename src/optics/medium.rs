@@ -32,15 +32,16 @@ impl MediumTerms {
     pub fn new(n: Complex64, beta: f64) -> Self {
         let n2 = n * n;
         if n.im == 0.0 && n2.re > beta * beta {
-            let q = (n2.re - beta * beta).sqrt();
+            let (n2, q) = (n2.re, (n2.re - beta * beta).sqrt());
+            // One division serves all three quotients: 1/q, n²/q and q/n².
+            let inv = 1.0 / (q * n2);
             let re = |x: f64| Complex64::new(x, 0.0);
-            let eta_p = n2.re / q;
             return MediumTerms {
                 q: re(q),
                 eta_s: re(q),
-                eta_p: re(eta_p),
-                inv_eta_s: re(1.0 / q),
-                inv_eta_p: re(1.0 / eta_p),
+                eta_p: re(n2 * n2 * inv),
+                inv_eta_s: re(n2 * inv),
+                inv_eta_p: re(q * q * inv),
                 real: true,
             };
         }

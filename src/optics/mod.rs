@@ -12,5 +12,5 @@ mod stack;
 mod trig;
 
 pub use medium::MediumTerms;
-pub use spectra::{Spectra, compute};
+pub use spectra::{Rows, Spectra, compute};
 pub use stack::{Behind, Exit, Node, Rt, Stack};

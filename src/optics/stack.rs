@@ -332,15 +332,14 @@ fn product(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> (Mat, Mat) {
 /// (2016), eq. 14–15, written with tilted admittances.
 fn coherent(eta0: Complex64, eta_m: Complex64, f: &Field) -> (f64, f64) {
     let [b, c] = f.v;
-    let den = eta0 * b + c;
-    let r = (eta0 * b - c) / den;
+    let inv_den2 = 1.0 / (eta0 * b + c).norm_sqr();
     let scale = if f.log == 0.0 {
         1.0
     } else {
         (-2.0 * f.log).exp()
     };
-    let t = 4.0 * eta0.norm_sqr() * eta_m.re / (eta0.re * den.norm_sqr()) * scale;
-    (r.norm_sqr(), t)
+    let t = 4.0 * eta0.norm_sqr() * eta_m.re / eta0.re * inv_den2 * scale;
+    ((eta0 * b - c).norm_sqr() * inv_den2, t)
 }
 
 /// A coherent stack (matrix `m`) on a thick sheet whose back face reflects

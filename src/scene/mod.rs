@@ -266,14 +266,20 @@ impl Scene {
 
     /// R and T on the scene's grid (averaged over the disorder ensemble).
     pub fn spectra(&self) -> Result<Spectra> {
+        self.with_rows(|rows| rows.all())
+    }
+
+    /// Runs `f` on the scene's grid computation, for callers that take the
+    /// spectra row by row rather than whole.
+    pub fn with_rows<T>(&self, f: impl FnOnce(&optics::Rows) -> T) -> Result<T> {
         let index = self.indices(&self.wavelengths_nm)?;
         let stacks = self.realisations(&self.stack);
-        Ok(optics::compute(
+        Ok(f(&optics::Rows::new(
             &stacks,
             &index,
             &self.wavelengths_nm,
             &self.angles_deg,
-        ))
+        )))
     }
 
     /// Parses a list of layer items (the `stack` syntax, repeats included)
