@@ -29,10 +29,11 @@ impl MediumTerms {
     /// (tilted admittances η_s = y n cos θ, η_p = y n / cos θ); branch of
     /// n cos θ for absorbing and evanescent media: Born & Wolf, *Principles of
     /// Optics* (7th ed., 1999), §1.5.4 and §13.2.
+    #[inline(always)]
     pub fn new(n: Complex64, beta: f64) -> Self {
-        let n2 = n * n;
-        if n.im == 0.0 && n2.re > beta * beta {
-            let (n2, q) = (n2.re, (n2.re - beta * beta).sqrt());
+        let n2 = n.re * n.re;
+        if n.im == 0.0 && n2 > beta * beta {
+            let q = (n2 - beta * beta).sqrt();
             // One division serves all three quotients: 1/q, n²/q and q/n².
             let inv = 1.0 / (q * n2);
             let re = |x: f64| Complex64::new(x, 0.0);
@@ -45,6 +46,12 @@ impl MediumTerms {
                 real: true,
             };
         }
+        Self::lossy_or_evanescent(n, beta)
+    }
+
+    /// [`MediumTerms::new`] where n is complex or the wave is evanescent.
+    fn lossy_or_evanescent(n: Complex64, beta: f64) -> Self {
+        let n2 = n * n;
         let arg = n2 - beta * beta;
         // Force +0 on the imaginary part so a lossless evanescent wave gets +i·|q|.
         let arg = Complex64::new(arg.re, if arg.im == 0.0 { 0.0 } else { arg.im });

@@ -146,9 +146,8 @@ impl<'a> Rows<'a> {
 
     /// Scratch space for [`Rows::fill_block`]: one list of medium terms per lane.
     fn scratch(&self) -> Vec<Vec<MediumTerms>> {
-        (0..LANES)
-            .map(|_| Vec::with_capacity(self.index.len()))
-            .collect()
+        let blank = MediumTerms::new(Complex64::new(1.0, 0.0), 0.0);
+        vec![vec![blank; self.index.len()]; LANES]
     }
 
     /// Up to [`LANES`] wavelengths from `first_w` side by side (a short block
@@ -158,10 +157,11 @@ impl<'a> Rows<'a> {
         let last = first_w + out.len() - 1;
         let ws: [usize; LANES] = from_fn(|l| (first_w + l).min(last));
         let incident = self.realisations[0].incident;
-        for (t, &w) in terms.iter_mut().zip(&ws) {
+        for (lane, &w) in terms.iter_mut().zip(&ws) {
             let beta = self.index[incident][w].re * self.sines[a];
-            t.clear();
-            t.extend(self.index.iter().map(|n| MediumTerms::new(n[w], beta)));
+            for (t, n) in lane.iter_mut().zip(self.index) {
+                *t = MediumTerms::new(n[w], beta);
+            }
         }
         let lanes: [&[MediumTerms]; LANES] = from_fn(|l| terms[l].as_slice());
         let k0 = ws.map(|w| 2.0 * PI / self.wavelengths_nm[w]);
