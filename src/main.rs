@@ -19,6 +19,8 @@ struct Args {
 }
 
 #[derive(Subcommand)]
+// Each subcommand's arguments are defined only when it is the one invoked.
+#[command(defer = true)]
 enum Command {
     /// Reflectance, transmittance and absorptance per polarization for every
     /// angle and wavelength of a scene.
