@@ -12,9 +12,11 @@ For each bench scene (bench/periodic.json, bench/irregular.json):
         temporaries, usually faster; printed as the stricter comparison).
 (b) the whole process `lamella spectrum SCENE --format csv -o /dev/null`.
 
-Both sides: best wall time of --repeats runs. The lamella peak memory is the max RSS of
-the lamella process alone, as reported by GNU time (/usr/bin/time -f %M) around each run
-(not the RUSAGE_CHILDREN maximum over all children; see run_lamella). lamella runs
+Both sides: best wall time of --repeats runs (lamella: of at least 25, since its runs
+take milliseconds and scheduling noise weighs on them far more; its median is printed
+too). The lamella peak memory is the max RSS of the lamella process alone, as reported
+by GNU time (/usr/bin/time -f %M) around a separate run (not the RUSAGE_CHILDREN maximum
+over all children; see run_lamella). lamella runs
 before colour-science so this Python process is still small when it spawns lamella.
 
 Then lamella is run once more writing a real CSV, and R_s, R_p, T_s, T_p are compared with
@@ -186,6 +188,7 @@ def run_lamella(binary, scene_path, out_path, memory=True):
 
 
 USE_GNU_TIME = os.access(GNU_TIME, os.X_OK)
+LAMELLA_MIN_RUNS = 25
 
 
 def read_lamella_csv(path, wl, ang):
@@ -221,7 +224,13 @@ def lamella_side(name, binary, repeats, csv_dir):
     path, scene = load_scene(name)
     # Timed runs start lamella directly; the memory run goes through GNU time,
     # whose own start-up would otherwise count as lamella's.
-    runs = [run_lamella(binary, path, os.devnull, memory=False) for _ in range(repeats)]
+    # A run of a few milliseconds is far more exposed to scheduling noise than
+    # one of seconds, and costs little to repeat: lamella keeps the best of at
+    # least LAMELLA_MIN_RUNS.
+    runs = [
+        run_lamella(binary, path, os.devnull, memory=False)
+        for _ in range(max(repeats, LAMELLA_MIN_RUNS))
+    ]
     _, rss, code, message = run_lamella(binary, path, os.devnull)
     failed = [r for r in runs if r[2] != 0] + ([(0.0, rss, code, message)] if code != 0 else [])
     if failed:
@@ -230,7 +239,9 @@ def lamella_side(name, binary, repeats, csv_dir):
     _, _, code, message = run_lamella(binary, path, out)
     if code != 0:
         return {"error": f"csv check run, exit status {code}: {message}"}
-    return {"time": min(r[0] for r in runs), "rss": rss, "csv": out}
+    times = sorted(r[0] for r in runs)
+    return {"time": times[0], "median": times[len(times) // 2], "runs": len(times), "rss": rss,
+            "csv": out}
 
 
 def colour_science_side(name, repeats, lamella):
@@ -250,7 +261,8 @@ def colour_science_side(name, repeats, lamella):
     if "error" in lamella:
         print(f"lamella failed: {lamella['error']}")
         return
-    print(f"lamella whole process, csv to /dev/null (best of {repeats}): {lamella['time']:8.3f} s")
+    print(f"lamella whole process, csv to /dev/null (best of {lamella['runs']}): "
+          f"{lamella['time'] * 1e3:.2f} ms (median {lamella['median'] * 1e3:.2f} ms)")
     print(f"lamella peak memory (max RSS of the process): {lamella['rss']:.1f} MiB")
     print(f"ratio colour-science one call / lamella: {t_one / lamella['time']:.1f}x")
     print(f"ratio colour-science per-angle calls / lamella: {t_per / lamella['time']:.1f}x")

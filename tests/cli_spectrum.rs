@@ -78,7 +78,10 @@ fn absorbing_stacks_report_a_as_one_minus_r_minus_t() {
     let scene = write(
         &dir,
         "s.json",
-        &GOOD.replace(r#""hi": {"n": 2.35, "k": 0.0}"#, r#""hi": {"n": 2.35, "k": 0.05}"#),
+        &GOOD.replace(
+            r#""hi": {"n": 2.35, "k": 0.0}"#,
+            r#""hi": {"n": 2.35, "k": 0.05}"#,
+        ),
     );
     let out = lamella(&["spectrum", scene.to_str().unwrap()]);
     assert!(out.status.success());

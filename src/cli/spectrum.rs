@@ -72,8 +72,13 @@ fn write_csv(rows: &Rows, out: &mut dyn Write) -> io::Result<()> {
     for first in (0..pieces).step_by(buffers.len()) {
         let count = buffers.len().min(pieces - first);
         buffers[..count].par_iter_mut().enumerate().for_each_init(
-            || (vec![Rt::default(); PIECE.min(nw)], zmij::Buffer::new()),
-            |(values_buf, num), (i, buf)| {
+            || {
+                (
+                    vec![Rt::default(); PIECE.min(nw)],
+                    [(); 7].map(|_| zmij::Buffer::new()),
+                )
+            },
+            |(values_buf, nums), (i, buf)| {
                 let (a, w0) = ((first + i) / per_angle, (first + i) % per_angle * PIECE);
                 let piece = &mut values_buf[..PIECE.min(nw - w0)];
                 rows.fill(a, w0, piece);
@@ -82,9 +87,19 @@ fn write_csv(rows: &Rows, out: &mut dyn Write) -> io::Result<()> {
                     buf.extend_from_slice(wavelengths[w].as_bytes());
                     buf.push(b',');
                     buf.extend_from_slice(angles[a].as_bytes());
-                    for v in values(x, rows.lossless(w)) {
+                    // All seven are formatted before any is copied: reading
+                    // a number's text right after it is written stalls.
+                    let mut texts = [""; 7];
+                    for ((t, n), v) in texts
+                        .iter_mut()
+                        .zip(nums.iter_mut())
+                        .zip(values(x, rows.lossless(w)))
+                    {
+                        *t = n.format(v);
+                    }
+                    for t in texts {
                         buf.push(b',');
-                        buf.extend_from_slice(num.format(v).as_bytes());
+                        buf.extend_from_slice(t.as_bytes());
                     }
                     buf.push(b'\n');
                 }

@@ -543,7 +543,10 @@ mod tests {
                 let (x, y) = (entries(&fast, i), entries(&slow, i));
                 let size = y.iter().fold(0.0f64, |s, v| s.max(v.abs()));
                 for (u, v) in x.iter().zip(&y) {
-                    assert!((u - v).abs() <= 1e-12 * size, "n = {n}, lane {i}: {x:?} vs {y:?}");
+                    assert!(
+                        (u - v).abs() <= 1e-12 * size,
+                        "n = {n}, lane {i}: {x:?} vs {y:?}"
+                    );
                 }
             }
         }
