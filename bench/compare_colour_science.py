@@ -12,12 +12,15 @@ For each bench scene (bench/periodic.json, bench/irregular.json):
         temporaries, usually faster; printed as the stricter comparison).
 (b) the whole process `lamella spectrum SCENE --format csv -o /dev/null`.
 
-Both sides: best wall time of --repeats runs (lamella: of at least 25, since its runs
-take milliseconds and scheduling noise weighs on them far more; its median is printed
-too). The lamella peak memory is the max RSS of the lamella process alone, as reported
-by GNU time (/usr/bin/time -f %M) around a separate run (not the RUSAGE_CHILDREN maximum
-over all children; see run_lamella). lamella runs
-before colour-science so this Python process is still small when it spawns lamella.
+Both sides: best wall time. colour-science: of --repeats runs of each way. lamella: of
+bursts of at least 10 runs, one before colour-science and one after each colour-science
+run, so that its runs are spread over the whole measurement; a run of a few
+milliseconds on two cores is far more exposed to scheduling noise on a shared machine
+than one of seconds on one core, and costs little to repeat (its median is printed too).
+The lamella peak memory is the max RSS of the lamella process alone, as reported by GNU
+time (/usr/bin/time -f %M) around a separate run (not the RUSAGE_CHILDREN maximum over
+all children; see run_lamella); lamella starts with posix_spawn, so the size of this
+Python process does not weigh on its start.
 
 Then lamella is run once more writing a real CSV, and R_s, R_p, T_s, T_p are compared with
 colour-science over the whole grid. All media are lossless and every wave propagates in
@@ -139,12 +142,15 @@ def cs_per_angle(n, t, wl, ang):
     return R, T
 
 
-def best_of(repeats, fn):
+def best_of(repeats, fn, between=lambda: None):
+    """Best wall time of `repeats` calls of fn (and its last result); `between` runs
+    after each call, untimed."""
     best, result = float("inf"), None
     for _ in range(repeats):
         start = time.perf_counter()
         result = fn()
         best = min(best, time.perf_counter() - start)
+        between()
     return best, result
 
 
@@ -188,7 +194,7 @@ def run_lamella(binary, scene_path, out_path, memory=True):
 
 
 USE_GNU_TIME = os.access(GNU_TIME, os.X_OK)
-LAMELLA_MIN_RUNS = 25
+LAMELLA_BURST = 10
 
 
 def read_lamella_csv(path, wl, ang):
@@ -220,36 +226,41 @@ def load_scene(name):
 
 
 def lamella_side(name, binary, repeats, csv_dir):
-    """Time lamella on one scene and keep one real CSV; return a result dict or an error."""
+    """Time lamella on one scene and keep one real CSV; return a result dict or an error.
+
+    The dict's "burst" runs LAMELLA_BURST more timed runs; colour_science_side calls it
+    between its own repetitions, so that lamella's runs are spread over the whole
+    measurement rather than bunched before it.
+    """
     path, scene = load_scene(name)
     # Timed runs start lamella directly; the memory run goes through GNU time,
     # whose own start-up would otherwise count as lamella's.
-    # A run of a few milliseconds is far more exposed to scheduling noise than
-    # one of seconds, and costs little to repeat: lamella keeps the best of at
-    # least LAMELLA_MIN_RUNS.
-    runs = [
-        run_lamella(binary, path, os.devnull, memory=False)
-        for _ in range(max(repeats, LAMELLA_MIN_RUNS))
-    ]
+    runs = []
+
+    def burst():
+        runs.extend(run_lamella(binary, path, os.devnull, memory=False)
+                    for _ in range(max(repeats, LAMELLA_BURST)))
+        return [r for r in runs if r[2] != 0]
+
+    failed = burst()
     _, rss, code, message = run_lamella(binary, path, os.devnull)
-    failed = [r for r in runs if r[2] != 0] + ([(0.0, rss, code, message)] if code != 0 else [])
+    failed += [(0.0, rss, code, message)] if code != 0 else []
     if failed:
         return {"error": f"exit status {failed[0][2]}: {failed[0][3]}"}
     out = os.path.join(csv_dir, f"{name}.csv")
     _, _, code, message = run_lamella(binary, path, out)
     if code != 0:
         return {"error": f"csv check run, exit status {code}: {message}"}
-    times = sorted(r[0] for r in runs)
-    return {"time": times[0], "median": times[len(times) // 2], "runs": len(times), "rss": rss,
-            "csv": out}
+    return {"runs": runs, "burst": burst, "rss": rss, "csv": out}
 
 
 def colour_science_side(name, repeats, lamella):
     _, scene = load_scene(name)
     n, t, wl, ang = colour_science_inputs(scene)
     print(f"\n== {name}: {len(t)} layers, {len(wl)} wavelengths x {len(ang)} angles ==")
-    t_one, _ = best_of(repeats, lambda: cs_one_call(n, t, wl, ang))
-    t_per, (R_cs, T_cs) = best_of(repeats, lambda: cs_per_angle(n, t, wl, ang))
+    between = lamella["burst"] if lamella and "burst" in lamella else (lambda: [])
+    t_one, _ = best_of(repeats, lambda: cs_one_call(n, t, wl, ang), between)
+    t_per, (R_cs, T_cs) = best_of(repeats, lambda: cs_per_angle(n, t, wl, ang), between)
     t_cs = min(t_one, t_per)
     print(f"colour-science {colour.__version__} multilayer_tmm (best of {repeats}):")
     print(f"  one call, vectorised over wavelength and angle : {t_one:8.3f} s")
@@ -261,8 +272,14 @@ def colour_science_side(name, repeats, lamella):
     if "error" in lamella:
         print(f"lamella failed: {lamella['error']}")
         return
-    print(f"lamella whole process, csv to /dev/null (best of {lamella['runs']}): "
-          f"{lamella['time'] * 1e3:.2f} ms (median {lamella['median'] * 1e3:.2f} ms)")
+    failed = [r for r in lamella["runs"] if r[2] != 0]
+    if failed:
+        print(f"lamella failed: exit status {failed[0][2]}: {failed[0][3]}")
+        return
+    times = sorted(r[0] for r in lamella["runs"])
+    lamella["time"] = times[0]
+    print(f"lamella whole process, csv to /dev/null (best of {len(times)}): "
+          f"{times[0] * 1e3:.2f} ms (median {times[len(times) // 2] * 1e3:.2f} ms)")
     print(f"lamella peak memory (max RSS of the process): {lamella['rss']:.1f} MiB")
     print(f"ratio colour-science one call / lamella: {t_one / lamella['time']:.1f}x")
     print(f"ratio colour-science per-angle calls / lamella: {t_per / lamella['time']:.1f}x")
