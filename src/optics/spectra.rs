@@ -64,6 +64,8 @@ pub struct Rows<'a> {
     angles_deg: &'a [f64],
     /// sin θ₀ per angle.
     sines: Vec<f64>,
+    /// Vacuum wavenumber 2π/λ per wavelength, in nm⁻¹.
+    k0: Vec<f64>,
     /// Whether nothing absorbs at each wavelength.
     lossless: Vec<bool>,
 }
@@ -95,6 +97,7 @@ impl<'a> Rows<'a> {
             wavelengths_nm,
             angles_deg,
             sines: angles_deg.iter().map(|a| a.to_radians().sin()).collect(),
+            k0: wavelengths_nm.iter().map(|w| 2.0 * PI / w).collect(),
             lossless,
         }
     }
@@ -164,7 +167,7 @@ impl<'a> Rows<'a> {
             }
         }
         let lanes: [&[MediumTerms]; LANES] = from_fn(|l| terms[l].as_slice());
-        let k0 = ws.map(|w| 2.0 * PI / self.wavelengths_nm[w]);
+        let k0 = ws.map(|w| self.k0[w]);
         let weight = 1.0 / self.realisations.len() as f64;
         out.fill(Rt::default());
         for stack in self.realisations {

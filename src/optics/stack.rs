@@ -249,7 +249,7 @@ fn product_real_lanes(
     terms: [&[MediumTerms]; LANES],
     k0: [f64; LANES],
 ) -> RealLanes<{ 2 * LANES }> {
-    let mut m = RealLanes::identity();
+    let mut m: Option<RealLanes<{ 2 * LANES }>> = None;
     for node in nodes {
         let next = match node {
             Node::Layer {
@@ -269,9 +269,9 @@ fn product_real_lanes(
             }
             Node::Repeat { count, nodes } => product_real_lanes(nodes, terms, k0).pow(*count),
         };
-        m = m.mul(&next);
+        m = Some(m.map_or(next, |m| m.mul(&next)));
     }
-    m
+    m.unwrap_or_else(RealLanes::identity)
 }
 
 /// [`product`] for lossless, propagating layers, both polarizations at once.
