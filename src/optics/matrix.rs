@@ -190,6 +190,38 @@ impl<const N: usize> FieldLanes<N> {
         }
     }
 
+    /// R and T on every lane, `[R, T][polarization]`, where the incident
+    /// admittances `eta0` and the exit admittances `eta_m` (per polarization
+    /// and lane) are real: r = (η₀B − C)/(η₀B + C), R = |r|² and
+    /// T = 4η₀η_m/|η₀B + C|², with the field's scale e^{log} divided out of T
+    /// (Macleod, *Thin-Film Optical Filters*, 2010, eq. 2.99–2.100).
+    #[inline]
+    pub fn reflect_transmit(
+        &self,
+        eta0: [[f64; N]; 2],
+        eta_m: [[f64; N]; 2],
+    ) -> [[[f64; N]; 2]; 2] {
+        let mut out = [[[0.0; N]; 2]; 2];
+        for pol in 0..2 {
+            let [br, bi, cr, ci] = [0, 1, 2, 3].map(|j| self.v[4 * pol + j]);
+            for l in 0..N {
+                let (e0, em) = (eta0[pol][l], eta_m[pol][l]);
+                let (dr, di) = (e0 * br[l] + cr[l], e0 * bi[l] + ci[l]);
+                let (nr, ni) = (e0 * br[l] - cr[l], e0 * bi[l] - ci[l]);
+                let inv_den2 = 1.0 / (dr * dr + di * di);
+                out[0][pol][l] = (nr * nr + ni * ni) * inv_den2;
+                out[1][pol][l] = 4.0 * e0 * em * inv_den2;
+            }
+            for l in 0..N {
+                let log = self.log[pol][l];
+                if log != 0.0 {
+                    out[1][pol][l] *= (-2.0 * log).exp();
+                }
+            }
+        }
+        out
+    }
+
     /// [`Field::renormalise`] on every lane and polarization.
     pub fn renormalise(&mut self) {
         for pol in 0..2 {

@@ -119,7 +119,7 @@ impl Stack {
                         lanes.renormalise();
                     }
                 }
-                Node::Repeat { count, nodes } if terms.iter().all(|t| all_real(nodes, t)) => {
+                Node::Repeat { count, nodes } if real_on_all_lanes(nodes, &terms) => {
                     if !packed {
                         lanes = FieldLanes::load(&fs, &fp);
                         packed = true;
@@ -146,6 +146,29 @@ impl Stack {
         }
         if packed {
             lanes.renormalise();
+            let (inc, ex) = (self.incident, m);
+            if terms.iter().all(|t| t[ex].real) {
+                // Real admittances on both sides: R and T straight from the lanes.
+                let eta = |k: usize, s: bool| {
+                    from_fn(|l| {
+                        if s {
+                            terms[l][k].eta_s.re
+                        } else {
+                            terms[l][k].eta_p.re
+                        }
+                    })
+                };
+                let [[rs, rp], [ts, tp]] = lanes.reflect_transmit(
+                    [eta(inc, true), eta(inc, false)],
+                    [eta(ex, true), eta(ex, false)],
+                );
+                return from_fn(|l| Rt {
+                    rs: rs[l],
+                    rp: rp[l],
+                    ts: ts[l],
+                    tp: tp[l],
+                });
+            }
             lanes.store(&mut fs, &mut fp);
         }
         from_fn(|l| {
@@ -233,6 +256,27 @@ fn repeat(nodes: &[Node], count: u64, terms: &[MediumTerms], k0: f64) -> (Mat, M
         let (s, p) = product(nodes, terms, k0);
         (s.pow(count), p.pow(count))
     }
+}
+
+/// [`all_real`] on every lane at once.
+fn real_on_all_lanes(nodes: &[Node], terms: &[&[MediumTerms]; LANES]) -> bool {
+    for node in nodes {
+        match node {
+            Node::Layer { medium, .. } => {
+                for t in terms {
+                    if !t[*medium].real {
+                        return false;
+                    }
+                }
+            }
+            Node::Repeat { nodes, .. } => {
+                if !real_on_all_lanes(nodes, terms) {
+                    return false;
+                }
+            }
+        }
+    }
+    true
 }
 
 fn all_real(nodes: &[Node], terms: &[MediumTerms]) -> bool {
