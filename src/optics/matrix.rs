@@ -212,10 +212,9 @@ impl<const N: usize> FieldLanes<N> {
                 out[0][pol][l] = (nr * nr + ni * ni) * inv_den2;
                 out[1][pol][l] = 4.0 * e0 * em * inv_den2;
             }
-            for l in 0..N {
-                let log = self.log[pol][l];
+            for (t, &log) in out[1][pol].iter_mut().zip(&self.log[pol]) {
                 if log != 0.0 {
-                    out[1][pol][l] *= (-2.0 * log).exp();
+                    *t *= (-2.0 * log).exp();
                 }
             }
         }
