@@ -429,25 +429,30 @@ impl<const M: usize> RealLanes<M> {
     pub fn pow(&self, n: u64) -> RealLanes<M> {
         let t: [f64; M] = std::array::from_fn(|i| self.a[i] + self.d[i]);
         let det: [f64; M] = std::array::from_fn(|i| self.a[i] * self.d[i] + self.b[i] * self.c[i]);
+        if n == 0 {
+            return RealLanes::identity();
+        }
+        // Square and multiply, the accumulator starting at the lowest set bit.
         let mut base = PowerPair {
             p: [1.0; M],
             q: [0.0; M],
             log: [0.0; M],
         };
-        let mut acc: Option<PowerPair<M>> = None;
         let mut k = n;
+        while k & 1 == 0 {
+            base.square(&t, &det);
+            k >>= 1;
+        }
+        let mut acc = base;
+        k >>= 1;
         while k > 0 {
+            base.square(&t, &det);
             if k & 1 == 1 {
-                acc = Some(acc.map_or(base, |a| a.times(&base, &t, &det)));
+                acc.mul_assign(&base, &t, &det);
             }
             k >>= 1;
-            if k > 0 {
-                base = base.times(&base, &t, &det);
-            }
         }
-        let Some(PowerPair { p, q, log }) = acc else {
-            return RealLanes::identity();
-        };
+        let PowerPair { p, q, log } = acc;
         let mut out = RealLanes {
             a: std::array::from_fn(|i| p[i] * self.a[i] + q[i]),
             b: std::array::from_fn(|i| p[i] * self.b[i]),
@@ -472,23 +477,43 @@ impl<const M: usize> PowerPair<M> {
     /// The coefficients of M^{j+k} from those of M^j (`self`) and M^k (`r`),
     /// with M² = t·M − D·I: p = t·p₁p₂ + p₁q₂ + q₁p₂, q = q₁q₂ − D·p₁p₂.
     #[inline(always)]
-    fn times(&self, r: &PowerPair<M>, t: &[f64; M], det: &[f64; M]) -> PowerPair<M> {
-        let mut out = *self;
+    fn mul_assign(&mut self, r: &PowerPair<M>, t: &[f64; M], det: &[f64; M]) {
         for i in 0..M {
-            let pp = self.p[i] * r.p[i];
-            out.p[i] = t[i] * pp + self.p[i] * r.q[i] + self.q[i] * r.p[i];
-            out.q[i] = self.q[i] * r.q[i] - det[i] * pp;
-            out.log[i] = self.log[i] + r.log[i];
+            let (p, q) = (self.p[i], self.q[i]);
+            let pp = p * r.p[i];
+            self.p[i] = t[i] * pp + p * r.q[i] + q * r.p[i];
+            self.q[i] = q * r.q[i] - det[i] * pp;
+            self.log[i] += r.log[i];
         }
-        let big: [f64; M] = std::array::from_fn(|i| larger(out.p[i].abs(), out.q[i].abs()));
+        self.rescale();
+    }
+
+    /// [`PowerPair::mul_assign`] by itself: p = p·(t·p + 2q), q = q² − D·p².
+    #[inline(always)]
+    fn square(&mut self, t: &[f64; M], det: &[f64; M]) {
+        for i in 0..M {
+            let (p, q) = (self.p[i], self.q[i]);
+            self.p[i] = p * (t[i] * p + 2.0 * q);
+            self.q[i] = q * q - det[i] * (p * p);
+            self.log[i] += self.log[i];
+        }
+        self.rescale();
+    }
+
+    /// Moves the magnitude of lanes beyond [`BIG`] into the scale.
+    #[inline(always)]
+    fn rescale(&mut self) {
+        let mut big = [0.0; M];
+        for (m, (p, q)) in big.iter_mut().zip(self.p.iter().zip(&self.q)) {
+            *m = larger(p.abs(), q.abs());
+        }
         if any_big(&big) {
             for (i, &m) in big.iter().enumerate().filter(|(_, m)| **m > BIG) {
-                out.p[i] /= m;
-                out.q[i] /= m;
-                out.log[i] += m.ln();
+                self.p[i] /= m;
+                self.q[i] /= m;
+                self.log[i] += m.ln();
             }
         }
-        out
     }
 }
 
