@@ -34,7 +34,7 @@ pub struct AngleStrip {
 }
 
 impl AngleStrip {
-    /// Computes the colour at about [`SAMPLES`] angles spanning the scene's
+    /// Computes the colour at about `SAMPLES` angles spanning the scene's
     /// angle grid (every grid angle included) and at `ticks` (default: a
     /// round step giving at most nine).
     pub fn compute(scene: &Scene, viewing: &Viewing, ticks: Option<&[f64]>) -> Result<Self> {

@@ -82,7 +82,7 @@ pub struct Rt {
 pub const LANES: usize = 4;
 
 impl Stack {
-    /// [`Stack::rt`] for [`LANES`] wavelengths at once (`terms[l]` and `k0[l]`
+    /// [`Stack::rt`] for `LANES` (four) wavelengths at once (`terms[l]` and `k0[l]`
     /// per lane, all at the same angle). Lossless layers that propagate on
     /// every lane run in structure-of-arrays form; anything else (absorbing or
     /// evanescent layers, repeat groups, an incoherent sheet) goes lane by lane

@@ -1,6 +1,6 @@
 //! Preview renders of objects wearing the coating: a CPU rasterizer with a
 //! depth buffer and a perspective camera, shaded spectrally through look-up
-//! tables of the film's reflectance and transmittance (see [`shading`]).
+//! tables of the film's reflectance and transmittance (module `shading`).
 //! The library returns an sRGB byte buffer; encoding it is the caller's job.
 
 pub mod camera;
