@@ -232,15 +232,13 @@ impl<const N: usize> FieldLanes<N> {
                     larger(v[2][l].abs(), v[3][l].abs()),
                 );
             }
-            if any_big(&big) {
-                for (l, &m) in big.iter().enumerate().filter(|(_, m)| **m > BIG) {
-                    let inv = 1.0 / m;
-                    for j in 0..4 {
-                        self.v[4 * pol + j][l] *= inv;
-                    }
-                    self.log[pol][l] += m.ln();
+            for_each_big(&big, |l, m| {
+                let inv = 1.0 / m;
+                for j in 0..4 {
+                    self.v[4 * pol + j][l] *= inv;
                 }
-            }
+                self.log[pol][l] += m.ln();
+            });
         }
     }
 }
@@ -407,16 +405,14 @@ impl<const M: usize> RealLanes<M> {
                 larger(self.c[i].abs(), self.d[i].abs()),
             )
         });
-        if any_big(&big) {
-            for (i, &m) in big.iter().enumerate().filter(|(_, m)| **m > BIG) {
-                let inv = 1.0 / m;
-                self.a[i] *= inv;
-                self.b[i] *= inv;
-                self.c[i] *= inv;
-                self.d[i] *= inv;
-                self.log[i] += m.ln();
-            }
-        }
+        for_each_big(&big, |i, m| {
+            let inv = 1.0 / m;
+            self.a[i] *= inv;
+            self.b[i] *= inv;
+            self.c[i] *= inv;
+            self.d[i] *= inv;
+            self.log[i] += m.ln();
+        });
     }
 
     /// `self^n` in O(log n) steps. By Cayley–Hamilton, M² = t·M − D·I with
@@ -427,11 +423,11 @@ impl<const M: usize> RealLanes<M> {
     /// *Principles of Optics*, 7th ed. 1999, §1.6.5); D is kept as computed,
     /// so rounding and the matrix's own scale stay consistent.
     pub fn pow(&self, n: u64) -> RealLanes<M> {
-        let t: [f64; M] = std::array::from_fn(|i| self.a[i] + self.d[i]);
-        let det: [f64; M] = std::array::from_fn(|i| self.a[i] * self.d[i] + self.b[i] * self.c[i]);
         if n == 0 {
             return RealLanes::identity();
         }
+        let t: [f64; M] = std::array::from_fn(|i| self.a[i] + self.d[i]);
+        let det: [f64; M] = std::array::from_fn(|i| self.a[i] * self.d[i] + self.b[i] * self.c[i]);
         // Square and multiply, the accumulator starting at the lowest set bit.
         let mut base = PowerPair {
             p: [1.0; M],
@@ -507,20 +503,23 @@ impl<const M: usize> PowerPair<M> {
         for (m, (p, q)) in big.iter_mut().zip(self.p.iter().zip(&self.q)) {
             *m = larger(p.abs(), q.abs());
         }
-        if any_big(&big) {
-            for (i, &m) in big.iter().enumerate().filter(|(_, m)| **m > BIG) {
-                self.p[i] /= m;
-                self.q[i] /= m;
-                self.log[i] += m.ln();
-            }
-        }
+        for_each_big(&big, |i, m| {
+            self.p[i] /= m;
+            self.q[i] /= m;
+            self.log[i] += m.ln();
+        });
     }
 }
 
-/// Whether any lane's magnitude exceeds [`BIG`] (a branch-free reduction).
+/// Calls `rescale(lane, magnitude)` for each lane whose magnitude exceeds
+/// [`BIG`]; the common case, none, is one branch-free reduction.
 #[inline(always)]
-fn any_big<const M: usize>(big: &[f64; M]) -> bool {
-    big.iter().fold(0.0, |hi, &m| larger(hi, m)) > BIG
+fn for_each_big<const M: usize>(big: &[f64; M], mut rescale: impl FnMut(usize, f64)) {
+    if big.iter().fold(0.0, |hi, &m| larger(hi, m)) > BIG {
+        for (i, &m) in big.iter().enumerate().filter(|(_, m)| **m > BIG) {
+            rescale(i, m);
+        }
+    }
 }
 
 /// The larger of two magnitudes, by a plain comparison (not `f64::max`) so

@@ -149,19 +149,13 @@ impl Stack {
             let (inc, ex) = (self.incident, m);
             if terms.iter().all(|t| t[ex].real) {
                 // Real admittances on both sides: R and T straight from the lanes.
-                let eta = |k: usize, s: bool| {
-                    from_fn(|l| {
-                        if s {
-                            terms[l][k].eta_s.re
-                        } else {
-                            terms[l][k].eta_p.re
-                        }
-                    })
+                let eta = |k: usize| {
+                    [
+                        from_fn(|l| terms[l][k].eta_s.re),
+                        from_fn(|l| terms[l][k].eta_p.re),
+                    ]
                 };
-                let [[rs, rp], [ts, tp]] = lanes.reflect_transmit(
-                    [eta(inc, true), eta(inc, false)],
-                    [eta(ex, true), eta(ex, false)],
-                );
+                let [[rs, rp], [ts, tp]] = lanes.reflect_transmit(eta(inc), eta(ex));
                 return from_fn(|l| Rt {
                     rs: rs[l],
                     rp: rp[l],
