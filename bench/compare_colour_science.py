@@ -240,9 +240,9 @@ def lamella_side(name, binary, repeats, csv_dir):
     def burst():
         runs.extend(run_lamella(binary, path, os.devnull, memory=False)
                     for _ in range(max(repeats, LAMELLA_BURST)))
-        return [r for r in runs if r[2] != 0]
 
-    failed = burst()
+    burst()
+    failed = [r for r in runs if r[2] != 0]
     _, rss, code, message = run_lamella(binary, path, os.devnull)
     failed += [(0.0, rss, code, message)] if code != 0 else []
     if failed:
@@ -258,7 +258,7 @@ def colour_science_side(name, repeats, lamella):
     _, scene = load_scene(name)
     n, t, wl, ang = colour_science_inputs(scene)
     print(f"\n== {name}: {len(t)} layers, {len(wl)} wavelengths x {len(ang)} angles ==")
-    between = lamella["burst"] if lamella and "burst" in lamella else (lambda: [])
+    between = lamella["burst"] if lamella and "burst" in lamella else (lambda: None)
     t_one, _ = best_of(repeats, lambda: cs_one_call(n, t, wl, ang), between)
     t_per, (R_cs, T_cs) = best_of(repeats, lambda: cs_per_angle(n, t, wl, ang), between)
     t_cs = min(t_one, t_per)
@@ -277,12 +277,12 @@ def colour_science_side(name, repeats, lamella):
         print(f"lamella failed: exit status {failed[0][2]}: {failed[0][3]}")
         return
     times = sorted(r[0] for r in lamella["runs"])
-    lamella["time"] = times[0]
+    best = times[0]
     print(f"lamella whole process, csv to /dev/null (best of {len(times)}): "
-          f"{times[0] * 1e3:.2f} ms (median {times[len(times) // 2] * 1e3:.2f} ms)")
+          f"{best * 1e3:.2f} ms (median {times[len(times) // 2] * 1e3:.2f} ms)")
     print(f"lamella peak memory (max RSS of the process): {lamella['rss']:.1f} MiB")
-    print(f"ratio colour-science one call / lamella: {t_one / lamella['time']:.1f}x")
-    print(f"ratio colour-science per-angle calls / lamella: {t_per / lamella['time']:.1f}x")
+    print(f"ratio colour-science one call / lamella: {t_one / best:.1f}x")
+    print(f"ratio colour-science per-angle calls / lamella: {t_per / best:.1f}x")
     try:
         lam = read_lamella_csv(lamella["csv"], wl, ang)
     except (ValueError, KeyError, IndexError) as e:
