@@ -3,7 +3,7 @@
 
 mod common;
 
-use common::{airy, c, layer, rt_at, stack};
+use common::{airy, c, layer, naive_rt, rt_at, stack};
 use lamella::optics::{Behind, Exit, Node, Rt, Stack};
 use num_complex::Complex64;
 use proptest::prelude::*;
@@ -342,9 +342,9 @@ proptest! {
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(60))]
 
-    /// Long lossless repeat groups, powered through the Cayley–Hamilton pair
-    /// on the grid driver's lanes, equal the same periods written out (which
-    /// go layer by layer), in and out of the stop band.
+    /// Long lossless repeat groups, powered on the grid driver's lanes (and
+    /// in double-double from 64 periods), equal the same periods written out
+    /// (which go layer by layer), in and out of the stop band.
     #[test]
     fn long_lossless_repeats_equal_their_expansion(
         period in prop::collection::vec((1.2f64..2.6, 20.0f64..200.0), 1..4),
@@ -448,4 +448,49 @@ fn absorptance_is_zero_only_where_nothing_absorbs() {
     );
     assert!(!backed.lossless(1));
     assert!(backed.all().at_angle(0)[1].a(false) > 0.5);
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(300))]
+
+    /// The fast paths against the naive oracle (`common::naive_rt`: the
+    /// plain complex product, repeats written out): `Stack::rt` and the
+    /// four-wavelength grid driver, on random stacks of lossless, absorbing
+    /// and evanescent layers with repeat groups, at any angle below grazing.
+    /// Absorption and evanescence are kept moderate so that the unscaled
+    /// oracle stays within double range.
+    #[test]
+    fn engine_equals_the_naive_product(
+        n0 in 1.0f64..1.8,
+        layers in prop::collection::vec(((1.0f64..3.0, prop_oneof![Just(0.0), 0.0f64..0.5]), 0.0f64..300.0), 0..10),
+        exit in (1.0f64..2.5, prop_oneof![Just(0.0), 0.0f64..3.0]),
+        split in 0usize..10,
+        count in 1u64..6,
+        nw in 1usize..9,
+        deg in 0.0f64..89.5,
+    ) {
+        let mut media = vec![c(n0, 0.0)];
+        let mut nodes: Vec<Node> = layers.iter().map(|&((n, k), d)| {
+            media.push(c(n, k));
+            layer(media.len() - 1, d)
+        }).collect();
+        media.push(c(exit.0, exit.1));
+        let exit_index = media.len() - 1;
+        if split < nodes.len() {
+            let period = nodes.split_off(split);
+            nodes.push(Node::Repeat { count, nodes: period });
+        }
+        let s = stack(0, nodes, exit_index);
+        let wavelengths: Vec<f64> = (0..nw).map(|i| 380.0 + 51.0 * i as f64).collect();
+        let index: Vec<Vec<Complex64>> = media.iter().map(|&n| vec![n; nw]).collect();
+        let grid = lamella::optics::compute(std::slice::from_ref(&s), &index, &wavelengths, &[deg]);
+        for (w, &wl) in wavelengths.iter().enumerate() {
+            let naive = naive_rt(&s, &media, wl, deg);
+            for x in [rt_at(&s, &media, wl, deg), grid.rt[w]] {
+                for (a, b) in [(x.rs, naive.rs), (x.rp, naive.rp), (x.ts, naive.ts), (x.tp, naive.tp)] {
+                    prop_assert!((a - b).abs() < 1e-10, "{x:?} vs naive {naive:?} at {wl} nm");
+                }
+            }
+        }
+    }
 }

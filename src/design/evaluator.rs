@@ -2,7 +2,6 @@
 //! every (angle, wavelength) are computed once; each design only rewrites the
 //! layer thicknesses of a reused stack and runs the transfer matrices.
 
-use std::f64::consts::PI;
 use std::sync::Mutex;
 
 use num_complex::Complex64;
@@ -11,7 +10,7 @@ use super::variables::{Variable, with_thicknesses};
 use crate::angle_colour::{Polarization, Side, Viewing};
 use crate::colorimetry::{ColourOptions, Weights};
 use crate::error::Result;
-use crate::optics::{MediumTerms, Node, Stack};
+use crate::optics::{MediumTerms, Node, Probe, Stack};
 use crate::scene::Scene;
 
 /// A layer node's thickness as a function of the variables: `base + coef·x[var]`.
@@ -53,8 +52,8 @@ pub struct Evaluator {
     index: Vec<Vec<Complex64>>,
     wavelengths_nm: Vec<f64>,
     angles_deg: Vec<f64>,
-    beta: Vec<f64>,
-    k0: Vec<f64>,
+    /// The evaluation point of every (angle, wavelength), angle-major.
+    probes: Vec<Probe>,
     terms: Vec<MediumTerms>,
     side: Side,
     polarization: Polarization,
@@ -76,13 +75,15 @@ impl Evaluator {
         let index = scene.indices(wavelengths_nm)?;
         let nw = wavelengths_nm.len();
         let nm = index.len();
-        let mut beta = Vec::with_capacity(angles_deg.len() * nw);
+        let mut probes = Vec::with_capacity(angles_deg.len() * nw);
         let mut terms = Vec::with_capacity(angles_deg.len() * nw * nm);
-        for a in angles_deg {
-            for w in 0..nw {
-                let b = index[scene.incident][w].re * a.to_radians().sin();
-                beta.push(b);
-                terms.extend(index.iter().map(|n| MediumTerms::new(n[w], b)));
+        for &a in angles_deg {
+            let sine = Probe::sine(a);
+            for (w, &wavelength) in wavelengths_nm.iter().enumerate() {
+                let k0 = Probe::wavenumber(wavelength);
+                let at = Probe::of(k0, index[scene.incident][w].re, sine);
+                probes.push(at);
+                terms.extend(index.iter().map(|n| MediumTerms::new(n[w], at.beta())));
             }
         }
         let fast = scene
@@ -95,8 +96,7 @@ impl Evaluator {
             index,
             wavelengths_nm: wavelengths_nm.to_vec(),
             angles_deg: angles_deg.to_vec(),
-            beta,
-            k0: wavelengths_nm.iter().map(|w| 2.0 * PI / w).collect(),
+            probes,
             terms,
             side,
             polarization,
@@ -223,16 +223,18 @@ impl Evaluator {
                                 *t
                             } else {
                                 let n = self.index[m][w] + dn[m];
-                                MediumTerms::new(n, self.beta[at])
+                                MediumTerms::new(n, self.probes[at].beta())
                             }
                         }));
                         &ws.terms
                     }
                 };
-                let k0 = self.k0[w];
                 ws.spectrum[at] = stacks
                     .iter()
-                    .map(|s| self.polarization.of(&s.rt(terms, k0), self.side))
+                    .map(|s| {
+                        self.polarization
+                            .of(&s.rt(terms, &self.probes[at]), self.side)
+                    })
                     .sum::<f64>()
                     * weight;
             }

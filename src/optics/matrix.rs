@@ -98,7 +98,7 @@ impl Field {
             .v
             .iter()
             .fold(0.0f64, |acc, z| acc.max(z.re.abs()).max(z.im.abs()));
-        if big > BIG {
+        if big > BIG || (big < 1.0 / BIG && big > 0.0) {
             let inv = 1.0 / big;
             self.v = [self.v[0] * inv, self.v[1] * inv];
             self.log += big.ln();
@@ -232,7 +232,7 @@ impl<const N: usize> FieldLanes<N> {
                     larger(v[2][l].abs(), v[3][l].abs()),
                 );
             }
-            for_each_big(&big, |l, m| {
+            for_each_out_of_range(&big, |l, m| {
                 let inv = 1.0 / m;
                 for j in 0..4 {
                     self.v[4 * pol + j][l] *= inv;
@@ -377,14 +377,14 @@ impl<const M: usize> RealLanes<M> {
     #[inline]
     pub fn mul(&self, r: &RealLanes<M>) -> RealLanes<M> {
         let mut out = *self;
-        out.mul_assign(r);
+        out.mul_assign::<true>(r);
         out
     }
 
     /// `self = self · rhs` in place, with the lanes' magnitudes moved into
-    /// the scale where they grow large.
+    /// the scale where they leave range (when `RESCALE`).
     #[inline(always)]
-    fn mul_assign(&mut self, r: &RealLanes<M>) {
+    fn mul_assign<const RESCALE: bool>(&mut self, r: &RealLanes<M>) {
         for i in 0..M {
             let (a, b, c, d) = (self.a[i], self.b[i], self.c[i], self.d[i]);
             self.a[i] = a * r.a[i] - b * r.c[i];
@@ -393,10 +393,31 @@ impl<const M: usize> RealLanes<M> {
             self.d[i] = d * r.d[i] - c * r.b[i];
             self.log[i] += r.log[i];
         }
-        self.rescale();
+        if RESCALE {
+            self.rescale();
+        }
     }
 
-    /// Moves the magnitude of lanes whose entries exceed [`BIG`] into the scale.
+    /// `self = self · self`: with t = a + d, the square of [[a, −ib], [−ic, d]]
+    /// is [[a² − bc, −i·b·t], [−i·c·t, d² − bc]].
+    #[inline(always)]
+    fn square_assign<const RESCALE: bool>(&mut self) {
+        for i in 0..M {
+            let (a, b, c, d) = (self.a[i], self.b[i], self.c[i], self.d[i]);
+            let (t, bc) = (a + d, b * c);
+            self.a[i] = a * a - bc;
+            self.b[i] = b * t;
+            self.c[i] = c * t;
+            self.d[i] = d * d - bc;
+            self.log[i] += self.log[i];
+        }
+        if RESCALE {
+            self.rescale();
+        }
+    }
+
+    /// Moves the magnitude of lanes whose entries leave [1/[`BIG`], [`BIG`]]
+    /// into the scale.
     #[inline(always)]
     fn rescale(&mut self) {
         let big: [f64; M] = std::array::from_fn(|i| {
@@ -405,7 +426,7 @@ impl<const M: usize> RealLanes<M> {
                 larger(self.c[i].abs(), self.d[i].abs()),
             )
         });
-        for_each_big(&big, |i, m| {
+        for_each_out_of_range(&big, |i, m| {
             let inv = 1.0 / m;
             self.a[i] *= inv;
             self.b[i] *= inv;
@@ -415,111 +436,88 @@ impl<const M: usize> RealLanes<M> {
         });
     }
 
-    /// `self^n` in O(log n) steps. By Cayley–Hamilton, M² = t·M − D·I with
-    /// t = tr M and D = det M, so every power is M^n = p·M + q·I and only the
-    /// pair (p, q) is powered, by squaring. For unimodular M (lossless
-    /// periods), p and −q are the Chebyshev polynomials U_{n−1}(t/2) and
-    /// U_{n−2}(t/2) of Abelès' formula for periodic multilayers (Born & Wolf,
-    /// *Principles of Optics*, 7th ed. 1999, §1.6.5); D is kept as computed,
-    /// so rounding and the matrix's own scale stay consistent.
+    /// `self^n` by binary powering (square and multiply), every product
+    /// rescaled into the per-lane log scale. The matrix itself is powered,
+    /// not a scalar recurrence: in a stop band M^n is dominated by the
+    /// growing Bloch wave, and a normalised product keeps that direction to
+    /// rounding accuracy, where the Chebyshev pair of Abelès' formula
+    /// (Born & Wolf, *Principles of Optics*, 7th ed. 1999, §1.6.5) grows like
+    /// e^{nκ} in both terms and cancels. Used for groups shorter than
+    /// [`super::exact::EXACT_FROM`] periods; longer ones are powered in
+    /// double-double.
+    ///
+    /// Every lane is unimodular (det = ad + bc = 1 for lossless layers), so
+    /// while no scale has been taken out, the entries of M^k stay within
+    /// [1/√2, (2m)^k] for m the largest entry of M: for k < 64 and m ≤ 19
+    /// that is inside [1/[`BIG`], [`BIG`]], and the products skip the range
+    /// checks.
     pub fn pow(&self, n: u64) -> RealLanes<M> {
+        let m = (0..M).fold(0.0, |m, i| {
+            larger(
+                m,
+                larger(
+                    larger(self.a[i].abs(), self.b[i].abs()),
+                    larger(self.c[i].abs(), self.d[i].abs()),
+                ),
+            )
+        });
+        if n < 64 && m <= 19.0 && self.log.iter().all(|&l| l == 0.0) {
+            self.pow_with::<false>(n)
+        } else {
+            self.pow_with::<true>(n)
+        }
+    }
+
+    /// Square and multiply in place, the accumulator starting at the lowest
+    /// set bit; products rescaled when `RESCALE`.
+    #[inline(always)]
+    fn pow_with<const RESCALE: bool>(&self, n: u64) -> RealLanes<M> {
         if n == 0 {
             return RealLanes::identity();
         }
-        let t: [f64; M] = std::array::from_fn(|i| self.a[i] + self.d[i]);
-        let det: [f64; M] = std::array::from_fn(|i| self.a[i] * self.d[i] + self.b[i] * self.c[i]);
-        // Square and multiply, the accumulator starting at the lowest set bit.
-        let mut base = PowerPair {
-            p: [1.0; M],
-            q: [0.0; M],
-            log: [0.0; M],
-        };
+        let mut base = *self;
         let mut k = n;
         while k & 1 == 0 {
-            base.square(&t, &det);
+            base.square_assign::<RESCALE>();
             k >>= 1;
         }
         let mut acc = base;
         k >>= 1;
         while k > 0 {
-            base.square(&t, &det);
+            base.square_assign::<RESCALE>();
             if k & 1 == 1 {
-                acc.mul_assign(&base, &t, &det);
+                acc.mul_assign::<RESCALE>(&base);
             }
             k >>= 1;
         }
-        let PowerPair { p, q, log } = acc;
-        let mut out = RealLanes {
-            a: std::array::from_fn(|i| p[i] * self.a[i] + q[i]),
-            b: std::array::from_fn(|i| p[i] * self.b[i]),
-            c: std::array::from_fn(|i| p[i] * self.c[i]),
-            d: std::array::from_fn(|i| p[i] * self.d[i] + q[i]),
-            log: std::array::from_fn(|i| log[i] + n as f64 * self.log[i]),
-        };
-        out.rescale();
-        out
+        acc
     }
 }
 
-/// The coefficients of a matrix power M^k = (p·M + q·I)·e^{log}, per lane.
-#[derive(Debug, Clone, Copy)]
-struct PowerPair<const M: usize> {
-    p: [f64; M],
-    q: [f64; M],
-    log: [f64; M],
-}
-
-impl<const M: usize> PowerPair<M> {
-    /// The coefficients of M^{j+k} from those of M^j (`self`) and M^k (`r`),
-    /// with M² = t·M − D·I: p = t·p₁p₂ + p₁q₂ + q₁p₂, q = q₁q₂ − D·p₁p₂.
-    #[inline(always)]
-    fn mul_assign(&mut self, r: &PowerPair<M>, t: &[f64; M], det: &[f64; M]) {
-        for i in 0..M {
-            let (p, q) = (self.p[i], self.q[i]);
-            let pp = p * r.p[i];
-            self.p[i] = t[i] * pp + p * r.q[i] + q * r.p[i];
-            self.q[i] = q * r.q[i] - det[i] * pp;
-            self.log[i] += r.log[i];
-        }
-        self.rescale();
-    }
-
-    /// [`PowerPair::mul_assign`] by itself: p = p·(t·p + 2q), q = q² − D·p².
-    #[inline(always)]
-    fn square(&mut self, t: &[f64; M], det: &[f64; M]) {
-        for i in 0..M {
-            let (p, q) = (self.p[i], self.q[i]);
-            self.p[i] = p * (t[i] * p + 2.0 * q);
-            self.q[i] = q * q - det[i] * (p * p);
-            self.log[i] += self.log[i];
-        }
-        self.rescale();
-    }
-
-    /// Moves the magnitude of lanes beyond [`BIG`] into the scale.
-    #[inline(always)]
-    fn rescale(&mut self) {
-        let mut big = [0.0; M];
-        for (m, (p, q)) in big.iter_mut().zip(self.p.iter().zip(&self.q)) {
-            *m = larger(p.abs(), q.abs());
-        }
-        for_each_big(&big, |i, m| {
-            self.p[i] /= m;
-            self.q[i] /= m;
-            self.log[i] += m.ln();
-        });
-    }
-}
-
-/// Calls `rescale(lane, magnitude)` for each lane whose magnitude exceeds
-/// [`BIG`]; the common case, none, is one branch-free reduction.
+/// Calls `rescale(lane, magnitude)` for each lane whose magnitude lies
+/// outside [1/[`BIG`], [`BIG`]] (and is not zero). Small magnitudes matter as
+/// much as large ones: a normalised stop-band power is close to rank one,
+/// and squaring it multiplies its entries by its trace, which may be far
+/// below 1, so without rescaling they would underflow to 0 within a few
+/// squarings. The common case, every lane in range, is one branch-free
+/// reduction.
 #[inline(always)]
-fn for_each_big<const M: usize>(big: &[f64; M], mut rescale: impl FnMut(usize, f64)) {
-    if big.iter().fold(0.0, |hi, &m| larger(hi, m)) > BIG {
-        for (i, &m) in big.iter().enumerate().filter(|(_, m)| **m > BIG) {
-            rescale(i, m);
+fn for_each_out_of_range<const M: usize>(big: &[f64; M], mut rescale: impl FnMut(usize, f64)) {
+    let hi = big.iter().fold(0.0, |hi, &m| larger(hi, m));
+    let lo = big.iter().fold(f64::INFINITY, |lo, &m| smaller(lo, m));
+    if hi > BIG || lo < 1.0 / BIG {
+        for (i, &m) in big.iter().enumerate() {
+            if m > BIG || (m < 1.0 / BIG && m > 0.0) {
+                rescale(i, m);
+            }
         }
     }
+}
+
+/// The smaller of two magnitudes, by a plain comparison so that lanes vectorize.
+#[inline(always)]
+fn smaller(x: f64, y: f64) -> f64 {
+    if x < y { x } else { y }
 }
 
 /// The larger of two magnitudes, by a plain comparison (not `f64::max`) so
@@ -553,7 +551,7 @@ impl RealPair {
 
 /// `base^n` by binary powering (square and multiply) for any associative product.
 #[inline]
-fn power<T: Copy>(mut base: T, mut n: u64, identity: T, mul: fn(&T, &T) -> T) -> T {
+pub(super) fn power<T: Copy>(mut base: T, mut n: u64, identity: T, mul: fn(&T, &T) -> T) -> T {
     let mut acc = identity;
     while n > 0 {
         if n & 1 == 1 {
@@ -577,7 +575,7 @@ mod tests {
         [m.a[i] * s, m.b[i] * s, m.c[i] * s, m.d[i] * s]
     }
 
-    /// The Cayley–Hamilton power equals repeated multiplication, also for
+    /// The power by squaring equals repeated multiplication, also for
     /// matrices that are not unimodular and carry a scale of their own.
     #[test]
     fn power_equals_repeated_products() {
@@ -591,7 +589,7 @@ mod tests {
         for n in [0, 1, 2, 3, 7, 20, 37] {
             let mut slow = RealPair::identity();
             for _ in 0..n {
-                slow.mul_assign(&m);
+                slow.mul_assign::<true>(&m);
             }
             let fast = m.pow(n);
             for i in 0..2 {
@@ -604,6 +602,31 @@ mod tests {
                     );
                 }
             }
+        }
+    }
+
+    /// A stop-band matrix (trace 3, unimodular) powered 10⁸ times stays
+    /// finite: its magnitude grows as λ₁ⁿ with λ₁ = (3 + √5)/2 and its
+    /// columns align with the growing eigenvector (common practice for
+    /// matrix powers).
+    #[test]
+    fn stop_band_powers_stay_finite_and_grow_as_the_bloch_wave() {
+        let m = RealPair {
+            a: [2.0; 2],
+            b: [0.5; 2],
+            c: [-2.0; 2],
+            d: [1.0; 2],
+            log: [0.0; 2],
+        };
+        let lambda = (3.0 + 5f64.sqrt()) / 2.0;
+        for n in [1_000u64, 65_536, 100_000_000] {
+            let p = m.pow(n);
+            let [a, b, c, d] = [p.a[0], p.b[0], p.c[0], p.d[0]];
+            assert!([a, b, c, d, p.log[0]].iter().all(|v| v.is_finite()));
+            let log_size = p.log[0] + a.abs().max(d.abs()).ln();
+            assert!((log_size - n as f64 * lambda.ln()).abs() < 2.0, "n = {n}");
+            // Rank one (the decaying wave is lost below rounding).
+            assert!((a * d + b * c).abs() < 1e-12 * (a * d).abs().max((b * c).abs()));
         }
     }
 }

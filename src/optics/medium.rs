@@ -3,9 +3,87 @@
 
 use num_complex::Complex64;
 
+use super::double_double::Dd;
+
+/// The point at which a stack is evaluated: the vacuum wavenumber
+/// k₀ = 2π/λ and Snell's invariant β = n₀ sin θ₀, both held to
+/// double-double precision so that long repeat groups can be powered
+/// without amplifying the rounding of their inputs
+/// ([`crate::optics`] uses the doubles nearest to them everywhere else).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Probe {
+    k0: Dd,
+    sine: Dd,
+    incident_n: f64,
+}
+
+impl Probe {
+    /// The point at `wavelength_nm` for light arriving from a medium of
+    /// (real) index `incident_n` at `angle_deg` from the normal.
+    pub fn new(wavelength_nm: f64, incident_n: f64, angle_deg: f64) -> Probe {
+        Probe::of(
+            Probe::wavenumber(wavelength_nm),
+            incident_n,
+            Probe::sine(angle_deg),
+        )
+    }
+
+    /// [`Probe::new`] from parts computed once: the wavenumber of one
+    /// wavelength ([`Probe::wavenumber`]) and sin θ₀ of one angle
+    /// ([`Probe::sine`]), for callers that visit a grid.
+    #[inline]
+    pub fn of(k0: Wavenumber, incident_n: f64, sine: Sine) -> Probe {
+        Probe {
+            k0: k0.0,
+            sine: sine.0,
+            incident_n,
+        }
+    }
+
+    /// k₀ = 2π/λ of a wavelength in nm, to double-double precision.
+    pub fn wavenumber(wavelength_nm: f64) -> Wavenumber {
+        Wavenumber(Dd::wavenumber(wavelength_nm))
+    }
+
+    /// sin θ₀ of an angle in degrees, to double-double precision.
+    pub fn sine(angle_deg: f64) -> Sine {
+        Sine(Dd::sin_deg(angle_deg))
+    }
+
+    /// k₀ = 2π/λ in nm⁻¹.
+    #[inline(always)]
+    pub fn k0(&self) -> f64 {
+        self.k0.hi
+    }
+
+    /// β = n₀ sin θ₀.
+    #[inline(always)]
+    pub fn beta(&self) -> f64 {
+        self.sine.hi * self.incident_n
+    }
+
+    pub(super) fn k0_dd(&self) -> Dd {
+        self.k0
+    }
+
+    pub(super) fn beta_dd(&self) -> Dd {
+        self.sine.mul_f64(self.incident_n)
+    }
+}
+
+/// sin θ₀ to double-double precision (from [`Probe::sine`]).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Sine(Dd);
+
+/// k₀ = 2π/λ to double-double precision (from [`Probe::wavenumber`]).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Wavenumber(Dd);
+
 /// The terms every layer of one medium shares at a given (λ, angle).
 #[derive(Debug, Clone, Copy)]
 pub struct MediumTerms {
+    /// The medium's complex index n + ik.
+    pub n: Complex64,
     /// q = n·cos θ = √(n² − β²), on the branch with Im q ≥ 0 (decay away from
     /// the incident side) and Re q ≥ 0 when Im q = 0.
     pub q: Complex64,
@@ -38,6 +116,7 @@ impl MediumTerms {
             let inv = 1.0 / (q * n2);
             let re = |x: f64| Complex64::new(x, 0.0);
             return MediumTerms {
+                n,
                 q: re(q),
                 eta_s: re(q),
                 eta_p: re(n2 * n2 * inv),
@@ -62,6 +141,7 @@ impl MediumTerms {
         let real = n.im == 0.0 && q.im == 0.0;
         let eta_p = n2 / q;
         MediumTerms {
+            n,
             q,
             eta_s: q,
             eta_p,

@@ -5,12 +5,14 @@
 //! The method follows Macleod, *Thin-Film Optical Filters* (4th ed., 2010),
 //! ch. 2, and Born & Wolf, *Principles of Optics* (7th ed., 1999), §1.6.
 
+mod double_double;
+mod exact;
 mod matrix;
 mod medium;
 mod spectra;
 mod stack;
 mod trig;
 
-pub use medium::MediumTerms;
+pub use medium::{MediumTerms, Probe, Sine, Wavenumber};
 pub use spectra::{Rows, Spectra, compute};
 pub use stack::{Behind, Exit, Node, Rt, Stack};

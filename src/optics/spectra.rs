@@ -3,12 +3,11 @@
 //! (angle) at a time for callers that stream.
 
 use std::array::from_fn;
-use std::f64::consts::PI;
 
 use num_complex::Complex64;
 use rayon::prelude::*;
 
-use super::medium::MediumTerms;
+use super::medium::{MediumTerms, Probe, Sine, Wavenumber};
 use super::stack::{Behind, Exit, LANES, Rt, Stack};
 
 /// R and T per polarization on a wavelength × angle grid. Arrays are
@@ -63,9 +62,9 @@ pub struct Rows<'a> {
     wavelengths_nm: &'a [f64],
     angles_deg: &'a [f64],
     /// sin θ₀ per angle.
-    sines: Vec<f64>,
-    /// Vacuum wavenumber 2π/λ per wavelength, in nm⁻¹.
-    k0: Vec<f64>,
+    sines: Vec<Sine>,
+    /// Vacuum wavenumber 2π/λ per wavelength.
+    k0: Vec<Wavenumber>,
     /// Whether nothing absorbs at each wavelength.
     lossless: Vec<bool>,
 }
@@ -96,8 +95,11 @@ impl<'a> Rows<'a> {
             index,
             wavelengths_nm,
             angles_deg,
-            sines: angles_deg.iter().map(|a| a.to_radians().sin()).collect(),
-            k0: wavelengths_nm.iter().map(|w| 2.0 * PI / w).collect(),
+            sines: angles_deg.iter().map(|&a| Probe::sine(a)).collect(),
+            k0: wavelengths_nm
+                .iter()
+                .map(|&w| Probe::wavenumber(w))
+                .collect(),
             lossless,
         }
     }
@@ -160,18 +162,20 @@ impl<'a> Rows<'a> {
         let last = first_w + out.len() - 1;
         let ws: [usize; LANES] = from_fn(|l| (first_w + l).min(last));
         let incident = self.realisations[0].incident;
-        for (lane, &w) in terms.iter_mut().zip(&ws) {
-            let beta = self.index[incident][w].re * self.sines[a];
+        let at = ws.map(|w| {
+            let n0 = self.index[incident][w].re;
+            Probe::of(self.k0[w], n0, self.sines[a])
+        });
+        for (lane, (&w, p)) in terms.iter_mut().zip(ws.iter().zip(&at)) {
             for (t, n) in lane.iter_mut().zip(self.index) {
-                *t = MediumTerms::new(n[w], beta);
+                *t = MediumTerms::new(n[w], p.beta());
             }
         }
         let lanes: [&[MediumTerms]; LANES] = from_fn(|l| terms[l].as_slice());
-        let k0 = ws.map(|w| self.k0[w]);
         let weight = 1.0 / self.realisations.len() as f64;
         out.fill(Rt::default());
         for stack in self.realisations {
-            for (acc, x) in out.iter_mut().zip(stack.rt_lanes(lanes, k0)) {
+            for (acc, x) in out.iter_mut().zip(stack.rt_lanes(lanes, &at)) {
                 acc.rs += x.rs * weight;
                 acc.rp += x.rp * weight;
                 acc.ts += x.ts * weight;

@@ -5,8 +5,9 @@ use num_complex::Complex64;
 
 use std::array::from_fn;
 
+use super::exact::{self, EXACT_FROM};
 use super::matrix::{Field, FieldLanes, Mat, Phase, RealLanes, RealPair};
-use super::medium::MediumTerms;
+use super::medium::{MediumTerms, Probe};
 use super::trig::sin_cos_lanes;
 
 /// One element of a stack, listed from the incident side.
@@ -82,15 +83,17 @@ pub struct Rt {
 pub const LANES: usize = 4;
 
 impl Stack {
-    /// [`Stack::rt`] for `LANES` (four) wavelengths at once (`terms[l]` and `k0[l]`
+    /// [`Stack::rt`] for `LANES` (four) wavelengths at once (`terms[l]` and `at[l]`
     /// per lane, all at the same angle). Lossless layers that propagate on
-    /// every lane run in structure-of-arrays form; anything else (absorbing or
-    /// evanescent layers, repeat groups, an incoherent sheet) goes lane by lane
-    /// through the same code as [`Stack::rt`].
-    pub fn rt_lanes(&self, terms: [&[MediumTerms]; LANES], k0: [f64; LANES]) -> [Rt; LANES] {
+    /// every lane run in structure-of-arrays form, and so do lossless repeat
+    /// groups shorter than [`EXACT_FROM`] periods; anything else (absorbing or
+    /// evanescent layers, long repeat groups, an incoherent sheet) goes lane
+    /// by lane through the same code as [`Stack::rt`].
+    pub fn rt_lanes(&self, terms: [&[MediumTerms]; LANES], at: &[Probe; LANES]) -> [Rt; LANES] {
         let Exit::Medium(m) = self.exit else {
-            return from_fn(|l| self.rt(terms[l], k0[l]));
+            return from_fn(|l| self.rt(terms[l], &at[l]));
         };
+        let k0: [f64; LANES] = from_fn(|l| at[l].k0());
         let mut fs: [Field; LANES] = from_fn(|l| Field::exit(terms[l][m].eta_s));
         let mut fp: [Field; LANES] = from_fn(|l| Field::exit(terms[l][m].eta_p));
         let mut lanes = FieldLanes::load(&fs, &fp);
@@ -119,7 +122,9 @@ impl Stack {
                         lanes.renormalise();
                     }
                 }
-                Node::Repeat { count, nodes } if real_on_all_lanes(nodes, &terms) => {
+                Node::Repeat { count, nodes }
+                    if *count < EXACT_FROM && short(nodes) && real_on_all_lanes(nodes, &terms) =>
+                {
                     if !packed {
                         lanes = FieldLanes::load(&fs, &fp);
                         packed = true;
@@ -136,7 +141,7 @@ impl Stack {
                         apply(
                             std::slice::from_ref(node),
                             terms[l],
-                            k0[l],
+                            &at[l],
                             &mut fs[l],
                             &mut fp[l],
                         );
@@ -173,15 +178,15 @@ impl Stack {
         })
     }
 
-    /// R and T at one wavelength: `terms[m]` holds medium m's terms at this
-    /// (λ, angle) and `k0` = 2π/λ in nm⁻¹.
-    pub fn rt(&self, terms: &[MediumTerms], k0: f64) -> Rt {
+    /// R and T at one wavelength and angle: `terms[m]` holds medium m's
+    /// terms at the point `at`.
+    pub fn rt(&self, terms: &[MediumTerms], at: &Probe) -> Rt {
         let inc = &terms[self.incident];
         match self.exit {
             Exit::Medium(m) => {
                 let ex = &terms[m];
                 let (mut fs, mut fp) = (Field::exit(ex.eta_s), Field::exit(ex.eta_p));
-                apply(&self.nodes, terms, k0, &mut fs, &mut fp);
+                apply(&self.nodes, terms, at, &mut fs, &mut fp);
                 let (rs, ts) = coherent(inc.eta_s, ex.eta_s, &fs);
                 let (rp, tp) = coherent(inc.eta_p, ex.eta_p, &fp);
                 Rt { rs, rp, ts, tp }
@@ -192,9 +197,9 @@ impl Stack {
                 behind,
             } => {
                 let sheet = &terms[medium];
-                let (ms, mp) = product(&self.nodes, terms, k0);
+                let (ms, mp) = product(&self.nodes, terms, at);
                 // Single-pass intensity attenuation in the sheet, exp(−2 Im δ).
-                let alpha = (-2.0 * k0 * thickness_nm * sheet.q.im).exp();
+                let alpha = (-2.0 * at.k0() * thickness_nm * sheet.q.im).exp();
                 // One polarization: its admittance picked from each medium's terms.
                 let pol = |m: &Mat, eta: fn(&MediumTerms) -> Complex64| {
                     let back = match behind {
@@ -214,7 +219,7 @@ impl Stack {
 }
 
 /// Carries the exit fields through `nodes` toward the incident side.
-fn apply(nodes: &[Node], terms: &[MediumTerms], k0: f64, fs: &mut Field, fp: &mut Field) {
+fn apply(nodes: &[Node], terms: &[MediumTerms], at: &Probe, fs: &mut Field, fp: &mut Field) {
     for (i, node) in nodes.iter().rev().enumerate() {
         if i % 8 == 7 {
             fs.renormalise();
@@ -226,12 +231,12 @@ fn apply(nodes: &[Node], terms: &[MediumTerms], k0: f64, fs: &mut Field, fp: &mu
                 thickness_nm,
             } => {
                 let t = &terms[*medium];
-                let ph = Phase::new(k0 * thickness_nm, t.q);
+                let ph = Phase::new(at.k0() * thickness_nm, t.q);
                 fs.through_layer(&ph, t.eta_s, t.inv_eta_s, t.real);
                 fp.through_layer(&ph, t.eta_p, t.inv_eta_p, t.real);
             }
             Node::Repeat { count, nodes } => {
-                let (ms, mp) = repeat(nodes, *count, terms, k0);
+                let (ms, mp) = repeat(nodes, *count, terms, at);
                 fs.through(&ms);
                 fp.through(&mp);
             }
@@ -241,15 +246,28 @@ fn apply(nodes: &[Node], terms: &[MediumTerms], k0: f64, fs: &mut Field, fp: &mu
     fp.renormalise();
 }
 
-/// The matrices (s, p) of `count` periods of `nodes`, by the real-arithmetic
-/// path when every layer in them is lossless and propagating.
-fn repeat(nodes: &[Node], count: u64, terms: &[MediumTerms], k0: f64) -> (Mat, Mat) {
-    if all_real(nodes, terms) {
-        product_real(nodes, terms, k0).pow(count).complex()
+/// The matrices (s, p) of `count` periods of `nodes`: in double-double for
+/// long groups ([`EXACT_FROM`] periods or more), otherwise by the
+/// real-arithmetic path when every layer in them is lossless and
+/// propagating, or in complex arithmetic.
+fn repeat(nodes: &[Node], count: u64, terms: &[MediumTerms], at: &Probe) -> (Mat, Mat) {
+    if count >= EXACT_FROM {
+        exact::repeat(nodes, count, terms, at)
+    } else if short(nodes) && all_real(nodes, terms) {
+        product_real(nodes, terms, at.k0()).pow(count).complex()
     } else {
-        let (s, p) = product(nodes, terms, k0);
+        let (s, p) = product(nodes, terms, at);
         (s.pow(count), p.pow(count))
     }
+}
+
+/// True when no repeat group inside `nodes` is long enough for the
+/// double-double path.
+fn short(nodes: &[Node]) -> bool {
+    nodes.iter().all(|n| match n {
+        Node::Layer { .. } => true,
+        Node::Repeat { count, nodes } => *count < EXACT_FROM && short(nodes),
+    })
 }
 
 /// [`all_real`] on every lane at once.
@@ -337,7 +355,7 @@ fn product_real(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> RealPair {
 }
 
 /// The characteristic matrices (s, p) of `nodes`: M₁·M₂·…, incident side first.
-fn product(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> (Mat, Mat) {
+fn product(nodes: &[Node], terms: &[MediumTerms], at: &Probe) -> (Mat, Mat) {
     let (mut ms, mut mp) = (Mat::identity(), Mat::identity());
     for node in nodes {
         let (ns, np) = match node {
@@ -346,13 +364,13 @@ fn product(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> (Mat, Mat) {
                 thickness_nm,
             } => {
                 let t = &terms[*medium];
-                let ph = Phase::new(k0 * thickness_nm, t.q);
+                let ph = Phase::new(at.k0() * thickness_nm, t.q);
                 (
                     Mat::layer(&ph, t.eta_s, t.inv_eta_s),
                     Mat::layer(&ph, t.eta_p, t.inv_eta_p),
                 )
             }
-            Node::Repeat { count, nodes } => repeat(nodes, *count, terms, k0),
+            Node::Repeat { count, nodes } => repeat(nodes, *count, terms, at),
         };
         ms = ms.mul(&ns);
         mp = mp.mul(&np);

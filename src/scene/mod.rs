@@ -22,7 +22,8 @@ pub type Loader<'a> = dyn Fn(&str) -> std::result::Result<String, String> + 'a;
 /// Most layers a stack may hold once disorder or grading expand its repeats.
 pub const MAX_EXPANDED_LAYERS: u64 = 2_000_000;
 
-/// Most periods one repeat group may have.
+/// Most periods one repeat group may have, and most times nested groups may
+/// repeat any one layer (the product of their counts).
 pub const MAX_REPEAT: u64 = 100_000_000;
 
 /// Ensemble settings for thickness disorder.

@@ -106,6 +106,16 @@ fn parse_item(v: &Value, path: &str, pointer: &str, media: &mut Registry) -> Res
                 "a repeat group needs at least one layer",
             ));
         }
+        let total = periods(&items).saturating_mul(count);
+        if total > MAX_REPEAT {
+            return Err(Error::invalid(
+                o.key("repeat"),
+                count,
+                format!(
+                    "nested repeat groups multiply to {total} periods in all; at most {MAX_REPEAT} are accepted"
+                ),
+            ));
+        }
         let chirp_scale = o.f64("chirp_scale")?.unwrap_or(1.0);
         if chirp_scale <= 0.0 {
             return Err(Error::invalid(
@@ -161,6 +171,19 @@ fn parse_item(v: &Value, path: &str, pointer: &str, media: &mut Registry) -> Res
         sigma,
         pointer: pointer.to_string(),
     }))
+}
+
+/// The largest number of times any layer of `items` is repeated: the
+/// product of the counts of the repeat groups around it.
+fn periods(items: &[Item]) -> u64 {
+    items
+        .iter()
+        .map(|i| match i {
+            Item::Layer(_) => 1,
+            Item::Repeat(r) => periods(&r.items).saturating_mul(r.count),
+        })
+        .max()
+        .unwrap_or(1)
 }
 
 fn parse_sigma(o: &Obj) -> Result<Option<Sigma>> {

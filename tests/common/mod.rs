@@ -3,7 +3,7 @@
 
 use std::f64::consts::PI;
 
-use lamella::optics::{Exit, MediumTerms, Node, Rt, Stack};
+use lamella::optics::{Exit, MediumTerms, Node, Probe, Rt, Stack};
 use num_complex::Complex64;
 
 /// Complex index shorthand.
@@ -30,9 +30,82 @@ pub fn stack(incident: usize, nodes: Vec<Node>, exit: usize) -> Stack {
 
 /// R and T of `stack` with media indices `n` at one wavelength and angle.
 pub fn rt_at(stack: &Stack, n: &[Complex64], wl_nm: f64, angle_deg: f64) -> Rt {
+    let at = Probe::new(wl_nm, n[stack.incident].re, angle_deg);
+    let terms: Vec<MediumTerms> = n.iter().map(|&x| MediumTerms::new(x, at.beta())).collect();
+    stack.rt(&terms, &at)
+}
+
+/// The naive oracle for the engine's fast paths: R and T from the plain
+/// product of complex 2×2 characteristic matrices, [[cos δ, −i sin δ/η],
+/// [−i η sin δ, cos δ]] (Born & Wolf, *Principles of Optics*, 7th ed. 1999,
+/// §1.6.2, in the n + ik convention), with every repeat written out, δ =
+/// (2π/λ)·d·√(n² − β²) on the decaying branch, complex sin and cos from std
+/// (through num-complex), tilted admittances η_s = q, η_p = n²/q, and
+/// r = (η₀B − C)/(η₀B + C), T = 4η₀ Re η_m/|η₀B + C|² (Macleod, *Thin-Film
+/// Optical Filters*, 4th ed. 2010, eq. 2.99–2.100). No powering, no
+/// renormalisation, no real-arithmetic shortcut, no lanes: keep stacks
+/// where the product stays within double range. A semi-infinite exit only.
+pub fn naive_rt(stack: &Stack, n: &[Complex64], wl_nm: f64, angle_deg: f64) -> Rt {
+    fn flatten(nodes: &[Node], out: &mut Vec<(usize, f64)>) {
+        for node in nodes {
+            match node {
+                Node::Layer {
+                    medium,
+                    thickness_nm,
+                } => out.push((*medium, *thickness_nm)),
+                Node::Repeat { count, nodes } => {
+                    for _ in 0..*count {
+                        flatten(nodes, out);
+                    }
+                }
+            }
+        }
+    }
+    let Exit::Medium(exit) = stack.exit else {
+        panic!("the naive oracle takes a semi-infinite exit medium only");
+    };
+    let mut layers = Vec::new();
+    flatten(&stack.nodes, &mut layers);
     let beta = n[stack.incident].re * angle_deg.to_radians().sin();
-    let terms: Vec<MediumTerms> = n.iter().map(|&x| MediumTerms::new(x, beta)).collect();
-    stack.rt(&terms, 2.0 * PI / wl_nm)
+    let q = |m: Complex64| {
+        let z = (m * m - beta * beta).sqrt();
+        if z.im < 0.0 || (z.im == 0.0 && z.re < 0.0) {
+            -z
+        } else {
+            z
+        }
+    };
+    let i = Complex64::i();
+    let pol = |eta: &dyn Fn(Complex64) -> Complex64| {
+        let one = c(1.0, 0.0);
+        let mut m = [[one, c(0.0, 0.0)], [c(0.0, 0.0), one]];
+        for &(medium, d) in &layers {
+            let delta = 2.0 * PI / wl_nm * d * q(n[medium]);
+            let e = eta(n[medium]);
+            let layer = [
+                [delta.cos(), -i * delta.sin() / e],
+                [-i * e * delta.sin(), delta.cos()],
+            ];
+            m = [
+                [
+                    m[0][0] * layer[0][0] + m[0][1] * layer[1][0],
+                    m[0][0] * layer[0][1] + m[0][1] * layer[1][1],
+                ],
+                [
+                    m[1][0] * layer[0][0] + m[1][1] * layer[1][0],
+                    m[1][0] * layer[0][1] + m[1][1] * layer[1][1],
+                ],
+            ];
+        }
+        let (e0, em) = (eta(n[stack.incident]), eta(n[exit]));
+        let (b, cc) = (m[0][0] + m[0][1] * em, m[1][0] + m[1][1] * em);
+        let r = (e0 * b - cc) / (e0 * b + cc);
+        let t = 4.0 * e0.re * em.re / (e0 * b + cc).norm_sqr();
+        (r.norm_sqr(), t)
+    };
+    let (rs, ts) = pol(&|m| q(m));
+    let (rp, tp) = pol(&|m| m * m / q(m));
+    Rt { rs, rp, ts, tp }
 }
 
 /// Single film (index n1, thickness d) between media n0 and n2 by the Airy
