@@ -3,6 +3,7 @@
 //! design tools built on them. The library does no file or terminal I/O.
 
 // `!(x > 0.0)` is written on purpose throughout: it also rejects NaN.
+#![deny(missing_docs)]
 #![allow(clippy::neg_cmp_op_on_partial_ord)]
 
 pub mod angle_colour;
