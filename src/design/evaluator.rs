@@ -251,7 +251,9 @@ impl Evaluator {
 fn for_each_thickness(nodes: &mut [Node], f: &mut dyn FnMut(&mut f64)) {
     for n in nodes {
         match n {
-            Node::Layer { thickness_nm, .. } => f(thickness_nm),
+            Node::Layer { thickness_nm, .. } | Node::Incoherent { thickness_nm, .. } => {
+                f(thickness_nm)
+            }
             Node::Repeat { nodes, .. } => for_each_thickness(nodes, f),
         }
     }

@@ -133,6 +133,10 @@ fn product(nodes: &[Node], terms: &[MediumTerms], at: &Probe) -> [DdMat; 2] {
             Node::Layer {
                 medium,
                 thickness_nm,
+            }
+            | Node::Incoherent {
+                medium,
+                thickness_nm,
             } => layer(terms[*medium].n, *thickness_nm, at),
             Node::Repeat { count, nodes } => product(nodes, terms, at).map(|m| m.pow(*count)),
         };

@@ -27,6 +27,15 @@ pub enum Node {
         /// One period, from the incident side.
         nodes: Vec<Node>,
     },
+    /// A thick layer treated incoherently: the beams multiply reflected in
+    /// it add in intensity. Only meaningful at the top level of a stack;
+    /// inside a repeat group it is taken as a coherent layer.
+    Incoherent {
+        /// Index of the medium.
+        medium: usize,
+        /// Physical thickness in nm.
+        thickness_nm: f64,
+    },
 }
 
 /// What lies behind the coherent stack.
@@ -93,6 +102,9 @@ impl Stack {
         let Exit::Medium(m) = self.exit else {
             return from_fn(|l| self.rt(terms[l], &at[l]));
         };
+        if self.has_incoherent() {
+            return from_fn(|l| self.rt(terms[l], &at[l]));
+        }
         let k0: [f64; LANES] = from_fn(|l| at[l].k0());
         let mut fs: [Field; LANES] = from_fn(|l| Field::exit(terms[l][m].eta_s));
         let mut fp: [Field; LANES] = from_fn(|l| Field::exit(terms[l][m].eta_p));
@@ -183,7 +195,7 @@ impl Stack {
     pub fn rt(&self, terms: &[MediumTerms], at: &Probe) -> Rt {
         let inc = &terms[self.incident];
         match self.exit {
-            Exit::Medium(m) => {
+            Exit::Medium(m) if !self.has_incoherent() => {
                 let ex = &terms[m];
                 let (mut fs, mut fp) = (Field::exit(ex.eta_s), Field::exit(ex.eta_p));
                 apply(&self.nodes, terms, at, &mut fs, &mut fp);
@@ -191,30 +203,148 @@ impl Stack {
                 let (rp, tp) = coherent(inc.eta_p, ex.eta_p, &fp);
                 Rt { rs, rp, ts, tp }
             }
+            _ => self.rt_incoherent(terms, at),
+        }
+    }
+
+    /// True when a top-level node is an incoherent layer.
+    fn has_incoherent(&self) -> bool {
+        self.nodes
+            .iter()
+            .any(|n| matches!(n, Node::Incoherent { .. }))
+    }
+
+    /// R and T of a stack with incoherent layers (an [`Exit::Sheet`] counts
+    /// as one before what lies behind it): the coherent runs between them,
+    /// each seen from both sides, and the single-pass attenuations of the
+    /// thick layers, cascaded in intensity (Katsidis & Siapkas, "General
+    /// transfer-matrix method for optical multilayer systems with coherent,
+    /// partially coherent, and incoherent interference", Appl. Opt. 41, 3978,
+    /// 2002; Centurioni, "Generalized matrix method for calculation of
+    /// internal light energy flux in mixed coherent and incoherent
+    /// multilayers", Appl. Opt. 44, 7532, 2005), combined pairwise in the
+    /// bounded form of [`Flow::then`].
+    fn rt_incoherent(&self, terms: &[MediumTerms], at: &Probe) -> Rt {
+        let mut total = [Flow::CLEAR; 2];
+        let mut left = self.incident;
+        let mut start = 0;
+        let add = |total: &mut [Flow; 2], next: [Flow; 2]| {
+            *total = [total[0].then(next[0]), total[1].then(next[1])];
+        };
+        for (i, node) in self.nodes.iter().enumerate() {
+            if let Node::Incoherent {
+                medium,
+                thickness_nm,
+            } = *node
+            {
+                add(
+                    &mut total,
+                    segment(&self.nodes[start..i], left, medium, terms, at),
+                );
+                add(&mut total, [thick(&terms[medium], thickness_nm, at); 2]);
+                (left, start) = (medium, i + 1);
+            }
+        }
+        let rest = &self.nodes[start..];
+        match self.exit {
+            Exit::Medium(m) => add(&mut total, segment(rest, left, m, terms, at)),
             Exit::Sheet {
                 medium,
                 thickness_nm,
                 behind,
             } => {
-                let sheet = &terms[medium];
-                let (ms, mp) = product(&self.nodes, terms, at);
-                // Single-pass intensity attenuation in the sheet, exp(−2 Im δ).
-                let alpha = (-2.0 * at.k0() * thickness_nm * sheet.q.im).exp();
-                // One polarization: its admittance picked from each medium's terms.
-                let pol = |m: &Mat, eta: fn(&MediumTerms) -> Complex64| {
-                    let back = match behind {
-                        Behind::Medium(b) => {
-                            coherent(eta(sheet), eta(&terms[b]), &Field::exit(eta(&terms[b])))
-                        }
-                        Behind::Black => (0.0, 0.0),
-                    };
-                    incoherent(m, eta(inc), eta(sheet), back, alpha)
-                };
-                let (rs, ts) = pol(&ms, |t| t.eta_s);
-                let (rp, tp) = pol(&mp, |t| t.eta_p);
-                Rt { rs, rp, ts, tp }
+                add(&mut total, segment(rest, left, medium, terms, at));
+                add(&mut total, [thick(&terms[medium], thickness_nm, at); 2]);
+                match behind {
+                    Behind::Medium(b) => add(&mut total, segment(&[], medium, b, terms, at)),
+                    Behind::Black => add(&mut total, [Flow::ABSORBED; 2]),
+                }
             }
         }
+        let [s, p] = total;
+        Rt {
+            rs: s.rf,
+            rp: p.rf,
+            ts: s.tf,
+            tp: p.tf,
+        }
+    }
+}
+
+/// Power reflectance and transmittance of a part of a stack for light
+/// arriving from the front (f) and from the back (b).
+#[derive(Debug, Clone, Copy)]
+struct Flow {
+    rf: f64,
+    tf: f64,
+    rb: f64,
+    tb: f64,
+}
+
+impl Flow {
+    /// Nothing at all: everything passes.
+    const CLEAR: Flow = Flow {
+        rf: 0.0,
+        tf: 1.0,
+        rb: 0.0,
+        tb: 1.0,
+    };
+
+    /// An index-matched perfect absorber: nothing comes back or through.
+    const ABSORBED: Flow = Flow {
+        rf: 0.0,
+        tf: 0.0,
+        rb: 0.0,
+        tb: 0.0,
+    };
+
+    /// `self` followed by `next`, the beams between them adding in
+    /// intensity (a geometric series of round trips):
+    /// R_f = R_f1 + T_f1 T_b1 R_f2 / (1 − R_b1 R_f2),
+    /// T_f = T_f1 T_f2 / (1 − R_b1 R_f2), and likewise from the back
+    /// (Harbecke, "Coherent and incoherent reflection and transmission of
+    /// multilayer structures", Appl. Phys. B 39, 165, 1986). Every term stays
+    /// within [0, 1], so no scale is needed however thick or absorbing the
+    /// layers; two perfect mirrors facing each other trap nothing that
+    /// entered (T = 0 on one side), so the denominator is kept from zero.
+    fn then(self, next: Flow) -> Flow {
+        let inv = 1.0 / (1.0 - self.rb * next.rf).max(f64::MIN_POSITIVE);
+        Flow {
+            rf: self.rf + self.tf * self.tb * next.rf * inv,
+            tf: self.tf * next.tf * inv,
+            rb: next.rb + next.tb * next.tf * self.rb * inv,
+            tb: next.tb * self.tb * inv,
+        }
+    }
+}
+
+/// The coherent run `nodes` between media `a` (front) and `b` (back), seen
+/// from both sides, for s and p. The reversed run's matrix is the
+/// transposed product with its diagonal swapped ([`Mat::reversed`]).
+fn segment(nodes: &[Node], a: usize, b: usize, terms: &[MediumTerms], at: &Probe) -> [Flow; 2] {
+    let (ms, mp) = product(nodes, terms, at);
+    let (ta, tb) = (&terms[a], &terms[b]);
+    let flow = |m: Mat, ea: Complex64, eb: Complex64| {
+        let through = |mat: &Mat, exit: Complex64| {
+            let mut f = Field::exit(exit);
+            f.through(mat);
+            f
+        };
+        let (rf, tf) = coherent(ea, eb, &through(&m, eb));
+        let (rb, tb) = coherent(eb, ea, &through(&m.reversed(), ea));
+        Flow { rf, tf, rb, tb }
+    };
+    [flow(ms, ta.eta_s, tb.eta_s), flow(mp, ta.eta_p, tb.eta_p)]
+}
+
+/// A thick layer's single-pass power attenuation e^{−2 Im δ} both ways.
+fn thick(t: &MediumTerms, thickness_nm: f64, at: &Probe) -> Flow {
+    let alpha = (-2.0 * at.k0() * thickness_nm * t.q.im).exp();
+    Flow {
+        rf: 0.0,
+        tf: alpha,
+        rb: 0.0,
+        tb: alpha,
     }
 }
 
@@ -227,6 +357,10 @@ fn apply(nodes: &[Node], terms: &[MediumTerms], at: &Probe, fs: &mut Field, fp: 
         }
         match node {
             Node::Layer {
+                medium,
+                thickness_nm,
+            }
+            | Node::Incoherent {
                 medium,
                 thickness_nm,
             } => {
@@ -265,7 +399,7 @@ fn repeat(nodes: &[Node], count: u64, terms: &[MediumTerms], at: &Probe) -> (Mat
 /// double-double path.
 fn short(nodes: &[Node]) -> bool {
     nodes.iter().all(|n| match n {
-        Node::Layer { .. } => true,
+        Node::Layer { .. } | Node::Incoherent { .. } => true,
         Node::Repeat { count, nodes } => *count < EXACT_FROM && short(nodes),
     })
 }
@@ -274,7 +408,7 @@ fn short(nodes: &[Node]) -> bool {
 fn real_on_all_lanes(nodes: &[Node], terms: &[&[MediumTerms]; LANES]) -> bool {
     for node in nodes {
         match node {
-            Node::Layer { medium, .. } => {
+            Node::Layer { medium, .. } | Node::Incoherent { medium, .. } => {
                 for t in terms {
                     if !t[*medium].real {
                         return false;
@@ -293,7 +427,7 @@ fn real_on_all_lanes(nodes: &[Node], terms: &[&[MediumTerms]; LANES]) -> bool {
 
 fn all_real(nodes: &[Node], terms: &[MediumTerms]) -> bool {
     nodes.iter().all(|n| match n {
-        Node::Layer { medium, .. } => terms[*medium].real,
+        Node::Layer { medium, .. } | Node::Incoherent { medium, .. } => terms[*medium].real,
         Node::Repeat { nodes, .. } => all_real(nodes, terms),
     })
 }
@@ -309,6 +443,10 @@ fn product_real_lanes(
     for node in nodes {
         let next = match node {
             Node::Layer {
+                medium,
+                thickness_nm,
+            }
+            | Node::Incoherent {
                 medium,
                 thickness_nm,
             } => {
@@ -338,6 +476,10 @@ fn product_real(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> RealPair {
             Node::Layer {
                 medium,
                 thickness_nm,
+            }
+            | Node::Incoherent {
+                medium,
+                thickness_nm,
             } => {
                 let t = &terms[*medium];
                 let ph = Phase::new(k0 * thickness_nm, t.q);
@@ -360,6 +502,10 @@ fn product(nodes: &[Node], terms: &[MediumTerms], at: &Probe) -> (Mat, Mat) {
     for node in nodes {
         let (ns, np) = match node {
             Node::Layer {
+                medium,
+                thickness_nm,
+            }
+            | Node::Incoherent {
                 medium,
                 thickness_nm,
             } => {
@@ -396,30 +542,4 @@ fn coherent(eta0: Complex64, eta_m: Complex64, f: &Field) -> (f64, f64) {
     };
     let t = 4.0 * eta0.norm_sqr() * eta_m.re / eta0.re * inv_den2 * scale;
     ((eta0 * b - c).norm_sqr() * inv_den2, t)
-}
-
-/// A coherent stack (matrix `m`) on a thick sheet whose back face reflects
-/// `r_back` and transmits `t_back`: intensities of the multiply reflected
-/// beams in the sheet add (Harbecke, "Coherent and incoherent reflection and
-/// transmission of multilayer structures", Appl. Phys. B 39, 165, 1986;
-/// Katsidis & Siapkas, Applied Optics 41, 3978, 2002):
-/// R = R_f + T_f T_f' R_b α² / (1 − R_f' R_b α²), T = T_f T_b α / (1 − R_f' R_b α²),
-/// with primes for light travelling from the sheet back through the stack.
-fn incoherent(
-    m: &Mat,
-    eta0: Complex64,
-    eta_sheet: Complex64,
-    (r_back, t_back): (f64, f64),
-    alpha: f64,
-) -> (f64, f64) {
-    let field = |mat: &Mat, eta_exit: Complex64| {
-        let mut f = Field::exit(eta_exit);
-        f.through(mat);
-        f
-    };
-    let (rf, tf) = coherent(eta0, eta_sheet, &field(m, eta_sheet));
-    let (rb_stack, tb_stack) = coherent(eta_sheet, eta0, &field(&m.reversed(), eta0));
-    let round = r_back * alpha * alpha;
-    let den = 1.0 - rb_stack * round;
-    (rf + tf * tb_stack * round / den, tf * t_back * alpha / den)
 }

@@ -176,7 +176,7 @@ fn reversed(nodes: &[Node]) -> Vec<Node> {
         .iter()
         .rev()
         .map(|n| match n {
-            Node::Layer { .. } => n.clone(),
+            Node::Layer { .. } | Node::Incoherent { .. } => n.clone(),
             Node::Repeat { count, nodes } => Node::Repeat {
                 count: *count,
                 nodes: reversed(nodes),

@@ -58,6 +58,7 @@ pub fn naive_rt(stack: &Stack, n: &[Complex64], wl_nm: f64, angle_deg: f64) -> R
                         flatten(nodes, out);
                     }
                 }
+                Node::Incoherent { .. } => panic!("the naive oracle is coherent only"),
             }
         }
     }

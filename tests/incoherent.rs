@@ -1,0 +1,186 @@
+//! Thick incoherent layers anywhere in a stack: against the closed-form sum
+//! of multiple incoherent reflections, the substrate-sheet form, symmetry
+//! and energy balance.
+
+mod common;
+
+use common::{c, layer, rt_at, stack};
+use lamella::optics::{Behind, Exit, Node, Rt, Stack};
+use num_complex::Complex64;
+use proptest::prelude::*;
+
+fn thick(medium: usize, thickness_nm: f64) -> Node {
+    Node::Incoherent {
+        medium,
+        thickness_nm,
+    }
+}
+
+/// A slab of index n and thickness d in air: with one face's Fresnel
+/// reflectance R₁ (T₁ = 1 − R₁) and single-pass attenuation α, the
+/// incoherent sum gives R = R₁ + T₁²R₁α²/(1 − R₁²α²) and
+/// T = T₁²α/(1 − R₁²α²) (Harbecke, Appl. Phys. B 39, 165, 1986; at normal
+/// incidence, Fresnel R₁ = |(1 − n)/(1 + n)|²).
+#[test]
+fn a_slab_in_air_sums_its_reflections_in_intensity() {
+    let wl = 550.0;
+    for n in [c(1.5, 0.0), c(1.5, 1e-5), c(2.4, 3e-4)] {
+        let media = [c(1.0, 0.0), n];
+        let d = 1e6;
+        let s = stack(0, vec![thick(1, d)], 0);
+        let x = rt_at(&s, &media, wl, 0.0);
+        let r1 = ((1.0 - n) / (1.0 + n)).norm_sqr();
+        // Normal-incidence power transmittance into an absorbing medium and
+        // out of it again: the face's T₁ is 1 − R₁ both ways (Re of n·n̄/n̄…);
+        // at these k the difference is below 1e-9.
+        let t1 = 1.0 - r1;
+        let alpha = (-4.0 * std::f64::consts::PI * n.im * d / wl).exp();
+        let den = 1.0 - r1 * r1 * alpha * alpha;
+        let (r, t) = (
+            r1 + t1 * t1 * r1 * alpha * alpha / den,
+            t1 * t1 * alpha / den,
+        );
+        for (got, want) in [(x.rs, r), (x.rp, r), (x.ts, t), (x.tp, t)] {
+            assert!((got - want).abs() < 1e-9, "n = {n}: {x:?} vs R {r}, T {t}");
+        }
+    }
+}
+
+/// An incoherent layer at the end of the stack, before a medium, gives the
+/// same numbers as the substrate-sheet form of the same structure.
+#[test]
+fn a_final_incoherent_layer_equals_the_substrate_sheet() {
+    let media = [
+        c(1.0, 0.0),
+        c(2.3, 0.0),
+        c(1.46, 0.0),
+        c(1.58, 2e-5),
+        c(1.33, 0.0),
+    ];
+    let film = vec![layer(1, 60.0), layer(2, 95.0), layer(1, 60.0)];
+    let mut nodes = film.clone();
+    nodes.push(thick(3, 23e3));
+    let in_stack = stack(0, nodes, 4);
+    let sheet = Stack {
+        incident: 0,
+        nodes: film,
+        exit: Exit::Sheet {
+            medium: 3,
+            thickness_nm: 23e3,
+            behind: Behind::Medium(4),
+        },
+    };
+    for deg in [0.0, 35.0, 70.0] {
+        for wl in [420.0, 555.0, 700.0] {
+            assert_eq!(
+                rt_at(&in_stack, &media, wl, deg),
+                rt_at(&sheet, &media, wl, deg)
+            );
+        }
+    }
+}
+
+/// The stack read backwards.
+fn reversed(s: &Stack) -> Stack {
+    let Exit::Medium(exit) = s.exit else {
+        unreachable!()
+    };
+    fn rev(nodes: &[Node]) -> Vec<Node> {
+        nodes
+            .iter()
+            .rev()
+            .map(|n| match n {
+                Node::Repeat { count, nodes } => Node::Repeat {
+                    count: *count,
+                    nodes: rev(nodes),
+                },
+                other => other.clone(),
+            })
+            .collect()
+    }
+    Stack {
+        incident: exit,
+        nodes: rev(&s.nodes),
+        exit: Exit::Medium(s.incident),
+    }
+}
+
+fn medium() -> impl Strategy<Value = Complex64> + Clone {
+    (1.2f64..2.6, prop_oneof![Just(0.0), 0.0f64..0.2]).prop_map(|(n, k)| c(n, k))
+}
+
+/// Random structures: coherent runs with repeats around one or two thick
+/// layers, between lossless outer media.
+fn structure() -> impl Strategy<Value = (Vec<Complex64>, Stack)> {
+    (
+        1.0f64..1.6,
+        prop::collection::vec((medium(), 5.0f64..300.0), 0..5),
+        (
+            1.3f64..1.7,
+            prop_oneof![Just(0.0), 0.0f64..1e-4],
+            1e3f64..1e6,
+        ),
+        prop::collection::vec((medium(), 5.0f64..300.0), 0..5),
+        prop::option::of((1.3f64..1.7, 1e4f64..5e5)),
+        1.0f64..1.8,
+        1u64..4,
+    )
+        .prop_map(|(n0, front, (sn, sk, sd), back, second, nx, count)| {
+            let mut media = vec![c(n0, 0.0)];
+            let mut run = |layers: &[(Complex64, f64)], media: &mut Vec<Complex64>| -> Vec<Node> {
+                layers
+                    .iter()
+                    .map(|&(n, d)| {
+                        media.push(n);
+                        layer(media.len() - 1, d)
+                    })
+                    .collect()
+            };
+            let mut nodes = run(&front, &mut media);
+            if nodes.len() > 1 {
+                let tail = nodes.split_off(1);
+                nodes.push(Node::Repeat { count, nodes: tail });
+            }
+            media.push(c(sn, sk));
+            nodes.push(thick(media.len() - 1, sd));
+            nodes.extend(run(&back, &mut media));
+            if let Some((n2, d2)) = second {
+                media.push(c(n2, 0.0));
+                nodes.push(thick(media.len() - 1, d2));
+            }
+            media.push(c(nx, 0.0));
+            let exit = media.len() - 1;
+            (media, stack(0, nodes, exit))
+        })
+}
+
+fn finite_unit(x: &Rt) -> bool {
+    [x.rs, x.rp, x.ts, x.tp]
+        .iter()
+        .all(|v| v.is_finite() && (-1e-12..=1.0 + 1e-12).contains(v))
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(300))]
+
+    /// Energy balance: R + T ≤ 1, with equality when nothing absorbs; and
+    /// the same T from either side (reciprocity, Born & Wolf, *Principles of
+    /// Optics*, 7th ed. 1999, §1.6; it carries over to intensity sums).
+    #[test]
+    fn energy_balance_and_reciprocity((media, s) in structure(), wl in 380.0f64..780.0, deg in 0.0f64..60.0) {
+        let x = rt_at(&s, &media, wl, deg);
+        prop_assert!(finite_unit(&x), "{x:?}");
+        let lossy = media.iter().any(|n| n.im > 0.0);
+        for (r, t) in [(x.rs, x.ts), (x.rp, x.tp)] {
+            let a = 1.0 - r - t;
+            if lossy { prop_assert!(a >= -1e-12, "A = {a}"); } else { prop_assert!(a.abs() < 1e-12, "A = {a}"); }
+        }
+        // Same angle inside the exit medium for the reversed stack.
+        let n0 = media[s.incident].re;
+        let Exit::Medium(exit) = s.exit else { unreachable!() };
+        let sin_exit = n0 * deg.to_radians().sin() / media[exit].re;
+        prop_assume!(sin_exit < 0.99);
+        let y = rt_at(&reversed(&s), &media, wl, sin_exit.asin().to_degrees());
+        prop_assert!((x.ts - y.ts).abs() < 1e-9 && (x.tp - y.tp).abs() < 1e-9, "{x:?} vs reversed {y:?}");
+    }
+}
