@@ -7,12 +7,16 @@
 
 mod double_double;
 mod exact;
+mod field;
+mod flux;
 mod matrix;
 mod medium;
 mod spectra;
 mod stack;
 mod trig;
 
+pub use field::FieldPoint;
+pub use flux::Absorption;
 pub use medium::{MediumTerms, Probe, Sine, Wavenumber};
 pub use spectra::{Rows, Spectra, compute};
 pub use stack::{Behind, Exit, Node, Rt, Stack};

@@ -274,16 +274,16 @@ impl Stack {
 /// Power reflectance and transmittance of a part of a stack for light
 /// arriving from the front (f) and from the back (b).
 #[derive(Debug, Clone, Copy)]
-struct Flow {
-    rf: f64,
-    tf: f64,
-    rb: f64,
-    tb: f64,
+pub(super) struct Flow {
+    pub rf: f64,
+    pub tf: f64,
+    pub rb: f64,
+    pub tb: f64,
 }
 
 impl Flow {
     /// Nothing at all: everything passes.
-    const CLEAR: Flow = Flow {
+    pub const CLEAR: Flow = Flow {
         rf: 0.0,
         tf: 1.0,
         rb: 0.0,
@@ -291,7 +291,7 @@ impl Flow {
     };
 
     /// An index-matched perfect absorber: nothing comes back or through.
-    const ABSORBED: Flow = Flow {
+    pub const ABSORBED: Flow = Flow {
         rf: 0.0,
         tf: 0.0,
         rb: 0.0,
@@ -307,7 +307,7 @@ impl Flow {
     /// within [0, 1], so no scale is needed however thick or absorbing the
     /// layers; two perfect mirrors facing each other trap nothing that
     /// entered (T = 0 on one side), so the denominator is kept from zero.
-    fn then(self, next: Flow) -> Flow {
+    pub fn then(self, next: Flow) -> Flow {
         let inv = 1.0 / (1.0 - self.rb * next.rf).max(f64::MIN_POSITIVE);
         Flow {
             rf: self.rf + self.tf * self.tb * next.rf * inv,
@@ -338,7 +338,7 @@ fn segment(nodes: &[Node], a: usize, b: usize, terms: &[MediumTerms], at: &Probe
 }
 
 /// A thick layer's single-pass power attenuation e^{−2 Im δ} both ways.
-fn thick(t: &MediumTerms, thickness_nm: f64, at: &Probe) -> Flow {
+pub(super) fn thick(t: &MediumTerms, thickness_nm: f64, at: &Probe) -> Flow {
     let alpha = (-2.0 * at.k0() * thickness_nm * t.q.im).exp();
     Flow {
         rf: 0.0,
@@ -532,7 +532,7 @@ fn product(nodes: &[Node], terms: &[MediumTerms], at: &Probe) -> (Mat, Mat) {
 /// T = 4η₀ Re(η_m)/|η₀B + C|²; from inside an absorbing sheet it is the
 /// convention of Byrnes, "Multilayer optical calculations", arXiv:1603.02720
 /// (2016), eq. 14–15, written with tilted admittances.
-fn coherent(eta0: Complex64, eta_m: Complex64, f: &Field) -> (f64, f64) {
+pub(super) fn coherent(eta0: Complex64, eta_m: Complex64, f: &Field) -> (f64, f64) {
     let [b, c] = f.v;
     let inv_den2 = 1.0 / (eta0 * b + c).norm_sqr();
     let scale = if f.log == 0.0 {
