@@ -37,7 +37,7 @@ fn structure() -> impl Strategy<Value = (Vec<Complex64>, Stack)> {
     )
         .prop_map(|(front, count, thick, back, exit_kind, nx)| {
             let mut media = vec![c(1.0, 0.0)];
-            let mut run = |ls: &[(Complex64, f64)], media: &mut Vec<Complex64>| -> Vec<Node> {
+            let run = |ls: &[(Complex64, f64)], media: &mut Vec<Complex64>| -> Vec<Node> {
                 ls.iter()
                     .map(|&(n, d)| {
                         media.push(n);

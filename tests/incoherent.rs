@@ -127,7 +127,7 @@ fn structure() -> impl Strategy<Value = (Vec<Complex64>, Stack)> {
     )
         .prop_map(|(n0, front, (sn, sk, sd), back, second, nx, count)| {
             let mut media = vec![c(n0, 0.0)];
-            let mut run = |layers: &[(Complex64, f64)], media: &mut Vec<Complex64>| -> Vec<Node> {
+            let run = |layers: &[(Complex64, f64)], media: &mut Vec<Complex64>| -> Vec<Node> {
                 layers
                     .iter()
                     .map(|&(n, d)| {
