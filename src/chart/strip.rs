@@ -438,8 +438,7 @@ impl AngleStrip {
             // Out of gamut: "≈" before the hex code where it fits the cell.
             let approx = format!("≈ {}", c.hex);
             let hex = if c.in_gamut
-                || super::font::width(&approx, s.size(15.0), FontStyle::Normal)
-                    > 0.95 * cell as f64
+                || super::font::width(&approx, s.size(15.0), FontStyle::Normal) > 0.95 * cell as f64
             {
                 c.hex.clone()
             } else {
