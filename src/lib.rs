@@ -16,6 +16,7 @@ pub mod materials;
 pub mod optics;
 pub mod pigment;
 pub mod render;
+pub mod report;
 pub mod scene;
 pub mod tabulated;
 

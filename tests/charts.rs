@@ -47,7 +47,9 @@ fn pixel(rgb: &[u8], size: (u32, u32), (x, y): (i32, i32)) -> [u8; 3] {
     [rgb[i], rgb[i + 1], rgb[i + 2]]
 }
 
-/// The strip shows, at each angle, the sRGB that `lamella color` reports there.
+/// The strip shows, at each angle, the sRGB that `lamella color` reports
+/// there, except near the gamut edge, where it shows the softened colour it
+/// computed (relative chroma 0.95–1.1, see `chart::gamut`).
 #[test]
 fn strip_pixels_equal_the_color_command() {
     let d = dir("strip");
@@ -63,6 +65,7 @@ fn strip_pixels_equal_the_color_command() {
     let strip = AngleStrip::compute(&s, &Viewing::of_scene(&s).unwrap(), None).unwrap();
     let size = (640, 400);
     let rgb = chart::rgb(&strip, size).unwrap();
+    let mut exact = 0;
     for r in records.as_array().unwrap() {
         let angle = r["angle_deg"].as_f64().unwrap();
         let want: Vec<i32> = r["srgb"]
@@ -71,12 +74,172 @@ fn strip_pixels_equal_the_color_command() {
             .iter()
             .map(|v| (v.as_f64().unwrap() * 255.0).round() as i32)
             .collect();
-        let at = strip.pixel_of(size, angle);
-        let got = pixel(&rgb, size, at);
-        for (g, w) in got.iter().zip(&want) {
-            assert!((*g as i32 - w).abs() <= 1, "{angle}°: {got:?} vs {want:?}");
+        let sample = strip.samples.iter().find(|x| x.angle_deg == angle).unwrap();
+        let shown = sample.shown.colour();
+        let shown = [shown.0 as i32, shown.1 as i32, shown.2 as i32];
+        let got = pixel(&rgb, size, strip.pixel_of(size, angle));
+        for k in 0..3 {
+            assert!(
+                (got[k] as i32 - shown[k]).abs() <= 1,
+                "{angle}°: {got:?} vs {shown:?}"
+            );
+        }
+        if sample.shown.rgb == sample.colour.rgb {
+            exact += 1;
+            assert_eq!(shown.to_vec(), want, "{angle}°");
         }
     }
+    assert!(exact >= 6, "only {exact} angles away from the gamut edge");
+}
+
+/// A scene with strong out-of-gamut colours (the demo label foil).
+fn teal() -> Scene {
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/teal_label_foil.json"),
+    )
+    .unwrap();
+    scene(&text)
+}
+
+/// A pale single-layer antireflection coating: every colour inside sRGB.
+const PALE: &str = r#"{"title":"Test: pale coating","incident":"air",
+ "stack":[{"material":"sio2_film","thickness_nm":100}],
+ "substrate":"glass","wavelengths_nm":{"from":380,"to":780,"step":10},"angles_deg":{"from":0,"to":60,"step":10}}"#;
+
+/// The hatch tint of out-of-gamut marks in SVG.
+const HATCH_TINT: &str = "fill=\"#1b2330\" fill-opacity=\"0.100\"";
+
+fn dark(p: [u8; 3]) -> bool {
+    p.iter().map(|&v| v as u32).sum::<u32>() < 250
+}
+
+/// Out-of-gamut angles are hatched in the marker row under the band (and
+/// only those), swatches outside the gamut get a hatched tag, and a legend
+/// line appears; an in-gamut scene shows none of these.
+#[test]
+fn strip_marks_out_of_gamut_angles_and_only_those() {
+    let s = teal();
+    let v = Viewing::of_scene(&s).unwrap();
+    let strip = AngleStrip::compute(&s, &v, None).unwrap();
+    assert_eq!(strip.outside.len(), 1, "{:?}", strip.outside);
+    let (a, b) = strip.outside[0];
+    assert_eq!(a, 0.0);
+    assert!(b > 35.0 && b < 42.0, "{b}");
+    for x in &strip.samples {
+        assert_eq!(
+            !x.colour.in_gamut,
+            x.angle_deg <= b,
+            "{}° in_gamut {}",
+            x.angle_deg,
+            x.colour.in_gamut
+        );
+    }
+    let size = (1200, 800);
+    let rgb = chart::rgb(&strip, size).unwrap();
+    let marked = |angle: f64| {
+        let (x, _, (m0, m1)) = strip.rows_of(size, angle);
+        (m0..=m1).any(|y| (x - 4..=x + 4).any(|xx| dark(pixel(&rgb, size, (xx, y)))))
+    };
+    for angle in [2.0, 10.0, 25.0, b - 2.0] {
+        assert!(marked(angle), "{angle}° is outside sRGB but not marked");
+    }
+    for angle in [b + 3.0, 50.0, 70.0] {
+        assert!(!marked(angle), "{angle}° is inside sRGB but marked");
+    }
+    let svg = chart::svg(&strip, size).unwrap();
+    assert!(svg.contains(HATCH_TINT));
+
+    let pale = scene(PALE);
+    let v = Viewing::of_scene(&pale).unwrap();
+    let strip = AngleStrip::compute(&pale, &v, None).unwrap();
+    assert!(strip.samples.iter().all(|x| x.colour.in_gamut));
+    assert!(strip.outside.is_empty());
+    let rgb = chart::rgb(&strip, size).unwrap();
+    let (x0, _, (m0, m1)) = strip.rows_of(size, 0.0);
+    let (x1, _, _) = strip.rows_of(size, 60.0);
+    for y in m0..=m1 {
+        for x in x0..=x1 {
+            assert_eq!(pixel(&rgb, size, (x, y)), [255; 3], "mark at ({x}, {y})");
+        }
+    }
+    // No legend line at the bottom left either.
+    for y in 760..800 {
+        for x in 0..400 {
+            assert_eq!(pixel(&rgb, size, (x, y)), [255; 3], "legend at ({x}, {y})");
+        }
+    }
+    assert!(!chart::svg(&strip, size).unwrap().contains(HATCH_TINT));
+}
+
+/// Largest second difference of colours at evenly spaced angles (the
+/// strip's samples are), in CIELAB units.
+fn bend(labs: &[[f64; 3]]) -> f64 {
+    labs.windows(3)
+        .map(|w| {
+            (0..3)
+                .map(|k| (w[0][k] - 2.0 * w[1][k] + w[2][k]).abs())
+                .fold(0.0, f64::max)
+        })
+        .fold(0.0, f64::max)
+}
+
+/// No seam where the colours return into the gamut: across the edge the
+/// band's colour (as displayed, in CIELAB) bends far less than the reported
+/// clipped colours, which kink there, and not much more than over the
+/// in-gamut angles beyond; adjacent columns of the drawn band differ there
+/// by no more than anywhere else along it.
+#[test]
+fn strip_has_no_seam_at_the_gamut_edge() {
+    use lamella::colorimetry::{RgbSpace, rgb_to_xyz_under, xyz_to_lab};
+    let s = teal();
+    let v = Viewing::of_scene(&s).unwrap();
+    let strip = AngleStrip::compute(&s, &v, None).unwrap();
+    let white = v.weights(&s.wavelengths_nm).unwrap().white();
+    let edge = strip.outside[0].1;
+    let lab = |rgb: [f64; 3]| xyz_to_lab(rgb_to_xyz_under(rgb, white, RgbSpace::Srgb), white);
+    let window = |lo: f64, hi: f64, shown: bool| -> Vec<[f64; 3]> {
+        strip
+            .samples
+            .iter()
+            .filter(|x| x.angle_deg >= lo && x.angle_deg <= hi)
+            .map(|x| lab(if shown { x.shown.rgb } else { x.colour.rgb }))
+            .collect()
+    };
+    let at_edge = bend(&window(edge - 3.0, edge + 3.0, true));
+    let beyond = bend(&window(edge + 3.0, 75.0, true));
+    let clipped = bend(&window(edge - 3.0, edge + 3.0, false));
+    assert!(
+        at_edge < clipped / 5.0,
+        "bend {at_edge} at the edge, {clipped} when clipped"
+    );
+    assert!(
+        at_edge < 5.0 * beyond,
+        "bend {at_edge} at the edge, {beyond} beyond"
+    );
+
+    let size = (1200, 800);
+    let rgb = chart::rgb(&strip, size).unwrap();
+    let (xe, (y0, y1), _) = strip.rows_of(size, edge);
+    let (xa, _, _) = strip.rows_of(size, 0.0);
+    let (xb, _, _) = strip.rows_of(size, 75.0);
+    let y = (y0 + y1) / 2;
+    let step = |x: i32| -> i32 {
+        let (p, q) = (pixel(&rgb, size, (x, y)), pixel(&rgb, size, (x + 1, y)));
+        (0..3)
+            .map(|k| (p[k] as i32 - q[k] as i32).abs())
+            .max()
+            .unwrap()
+    };
+    let near = (xe - 40..xe + 40).map(step).max().unwrap();
+    let elsewhere = (xa + 1..xb - 1)
+        .filter(|x| (x - xe).abs() >= 40)
+        .map(step)
+        .max()
+        .unwrap();
+    assert!(
+        near <= elsewhere,
+        "steps {near} at the edge, {elsewhere} elsewhere"
+    );
 }
 
 /// Chromaticities x, y of the CIE 1931 colour-matching functions as
@@ -210,25 +373,39 @@ fn every_kind_renders_valid_svg_and_png() {
     }
 }
 
-/// The thickness-angle row at the design thickness equals the scene's own colours.
+/// The thickness-angle field holds the design: at the design value its
+/// samples at the scene's grid angles are the scene's own colours.
 #[test]
-fn thickness_grid_contains_the_design() {
+fn thickness_field_contains_the_design() {
     let s = scene(MIRROR);
     let v = Viewing::of_scene(&s).unwrap();
     let own = lamella::angle_colour::angle_colours(&s.spectra().unwrap(), &v).unwrap();
-    for variation in [
-        Variation::Scale { from: 0.9, to: 1.1 },
-        Variation::Layer {
-            layer: 1,
-            range_nm: Some((47.0, 67.0)),
-        },
+    for (variation, steps) in [
+        (Variation::Scale { from: 0.9, to: 1.1 }, 3),
+        (
+            Variation::Layer {
+                layer: 1,
+                range_nm: Some((47.0, 67.0)),
+            },
+            3,
+        ),
+        (
+            Variation::Layer {
+                layer: 1,
+                range_nm: Some((40.0, 70.0)),
+            },
+            4,
+        ),
     ] {
-        let g = ThicknessAngle::compute(&s, &v, &variation, 3, &|| {}).unwrap();
-        assert_eq!(g.rows[1], g.nominal, "{variation:?}");
-        for (a, b) in g.cells[1].iter().zip(&own) {
-            assert_eq!(a.hex, b.hex, "{variation:?}");
+        let g = ThicknessAngle::compute(&s, &v, &variation, steps, &|| {}).unwrap();
+        let i = g.values.iter().position(|&x| x == g.nominal).unwrap();
+        assert!(g.values.windows(2).all(|w| w[0] < w[1]), "{:?}", g.values);
+        for (a, c) in s.angles_deg.iter().zip(&own) {
+            let j = g.angles.iter().position(|x| x == a).unwrap();
+            assert_eq!(g.cells[i][j].hex, c.hex, "{variation:?} {a}°");
         }
-        assert_ne!(g.cells[0][0].hex, g.cells[2][0].hex);
+        assert!(g.angles.len() > s.angles_deg.len() && g.angles.len() <= 31);
+        assert_ne!(g.cells[0][0].hex, g.cells[g.values.len() - 1][0].hex);
     }
     let err = ThicknessAngle::compute(
         &s,
@@ -242,6 +419,74 @@ fn thickness_grid_contains_the_design() {
     )
     .unwrap_err();
     assert!(err.to_string().contains("layers 1–2"), "{err}");
+}
+
+/// The field is hatched where the colours lie outside sRGB and only there,
+/// in PNG and SVG alike; an in-gamut scene has no hatching.
+#[test]
+fn thickness_field_hatches_out_of_gamut_regions() {
+    let s = teal();
+    let v = Viewing::of_scene(&s).unwrap();
+    let g = ThicknessAngle::compute(&s, &v, &Variation::Scale { from: 0.8, to: 1.2 }, 41, &|| {})
+        .unwrap();
+    assert!(g.any_outside());
+    let size = (1200, 800);
+    let rgb = chart::rgb(&g, size).unwrap();
+    // Near every sample (well inside its neighbours' cell) the pixels are
+    // hatched exactly when the sample and its neighbours agree on being
+    // outside: the hatch lines are dark and light, so the pixels spread.
+    let mut checked = (0, 0);
+    for i in 1..g.values.len() - 1 {
+        for j in 1..g.angles.len() - 1 {
+            let around = (i - 1..=i + 1).flat_map(|a| (j - 1..=j + 1).map(move |b| (a, b)));
+            let outs: Vec<bool> = around.map(|(a, b)| !g.cells[a][b].in_gamut).collect();
+            if outs.iter().any(|&o| o != outs[0]) {
+                continue;
+            }
+            let (x, y) = g.pixel_of(size, (g.values[i], g.angles[j]));
+            let (design, _) = g.pixel_of(size, (g.nominal, g.angles[j]));
+            if (x - design).abs() < 10 {
+                continue;
+            }
+            let block: Vec<[u8; 3]> = (-5..=5)
+                .flat_map(|dx| (-5..=5).map(move |dy| (x + dx, y + dy)))
+                .map(|p| pixel(&rgb, size, p))
+                .collect();
+            let luma =
+                |p: &[u8; 3]| 0.2126 * p[0] as f64 + 0.7152 * p[1] as f64 + 0.0722 * p[2] as f64;
+            let (lo, hi) = block
+                .iter()
+                .map(luma)
+                .fold((f64::MAX, f64::MIN), |(l, h), v| (l.min(v), h.max(v)));
+            if outs[0] {
+                assert!(hi - lo > 40.0, "sample ({i}, {j}) outside but not hatched");
+                checked.0 += 1;
+            } else {
+                assert!(
+                    hi - lo < 25.0,
+                    "sample ({i}, {j}) inside but hatched: {lo}–{hi}"
+                );
+                checked.1 += 1;
+            }
+        }
+    }
+    assert!(checked.0 > 50 && checked.1 > 50, "{checked:?}");
+    let svg = chart::svg(&g, size).unwrap();
+    assert!(svg.contains("<image ") && svg.contains("data:image/png;base64,"));
+    assert!(svg.contains(HATCH_TINT), "legend key");
+
+    let pale = scene(PALE);
+    let v = Viewing::of_scene(&pale).unwrap();
+    let g = ThicknessAngle::compute(
+        &pale,
+        &v,
+        &Variation::Scale { from: 0.9, to: 1.1 },
+        5,
+        &|| {},
+    )
+    .unwrap();
+    assert!(!g.any_outside());
+    assert!(!chart::svg(&g, size).unwrap().contains(HATCH_TINT));
 }
 
 #[test]
@@ -387,6 +632,26 @@ fn report_writes_every_chart_and_one_html_page() {
         }
     }
     let html = std::fs::read_to_string(out_dir.join("index.html")).unwrap();
+    // Every caution of the README, the version, the date and the command.
+    let cautions = readme_cautions();
+    assert_eq!(cautions.len(), 4);
+    for c in &cautions {
+        assert!(
+            html.contains(&lamella::chart::canvas::escape(c)),
+            "report lacks the caution {c:?}"
+        );
+    }
+    assert!(html.contains(&format!("lamella {}", env!("CARGO_PKG_VERSION"))));
+    assert!(has_utc_timestamp(&html), "no ISO 8601 UTC date");
+    let command = format!(
+        "lamella report {} --size 480x320 -o {}",
+        a.to_str().unwrap(),
+        out_dir.to_str().unwrap()
+    );
+    assert!(
+        html.contains(&lamella::chart::canvas::escape(&command)),
+        "report lacks the command {command}"
+    );
     for needle in [
         "Test: green mirror",
         "<svg",
@@ -399,4 +664,39 @@ fn report_writes_every_chart_and_one_html_page() {
     ] {
         assert!(html.contains(needle), "report lacks {needle}");
     }
+}
+
+/// The bullets of the README's "Cautions" section.
+fn readme_cautions() -> Vec<String> {
+    let readme =
+        std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("README.md")).unwrap();
+    readme
+        .lines()
+        .skip_while(|l| l.trim() != "## Cautions")
+        .skip(1)
+        .take_while(|l| !l.starts_with("## "))
+        .filter_map(|l| l.strip_prefix("- "))
+        .map(|l| l.trim().to_string())
+        .collect()
+}
+
+/// Whether `text` holds a UTC time `YYYY-MM-DDThh:mm:ssZ`.
+fn has_utc_timestamp(text: &str) -> bool {
+    let pattern = "dddd-dd-ddTdd:dd:ddZ";
+    let b = text.as_bytes();
+    b.windows(pattern.len()).any(|w| {
+        w.iter().zip(pattern.bytes()).all(|(&c, p)| {
+            if p == b'd' {
+                c.is_ascii_digit()
+            } else {
+                c == p
+            }
+        })
+    })
+}
+
+/// The README's cautions are the library's: one text in two places.
+#[test]
+fn readme_cautions_are_the_library_cautions() {
+    assert_eq!(readme_cautions(), lamella::report::CAUTIONS.to_vec());
 }

@@ -58,7 +58,13 @@ fn restricted_model_agrees_with_the_full_model() {
         let coating = coating.unwrap();
         let vars = varying_in(&s, &coating.platelet);
         let mut geometries = coating.geometries.clone();
-        geometries.extend(parse_geometries(&serde_json::json!("15"), "g").unwrap());
+        geometries.extend(
+            parse_geometries(
+                &serde_json::json!(["15as-30", "15as10", "15as40", "25as60"]),
+                "g",
+            )
+            .unwrap(),
+        );
         geometries.push(Geometry::directions(45.0, 30.0, 60.0).unwrap());
         let eval = CoatingEvaluator::new(&s, &coating, vars, &geometries).unwrap();
         let w = weights(&s);

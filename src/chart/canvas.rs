@@ -5,10 +5,12 @@
 use std::convert::Infallible;
 use std::fmt::Write;
 
+use base64::Engine;
+use plotters::element::{Drawable, PointCollection};
 use plotters_backend::{
     BackendColor, BackendCoord, BackendStyle, BackendTextStyle, DrawingBackend, DrawingErrorKind,
 };
-use tiny_skia::{FillRule, Paint, PathBuilder, Pixmap, Stroke, Transform};
+use tiny_skia::{FillRule, Paint, PathBuilder, Pixmap, PixmapPaint, Stroke, Transform};
 
 use super::font;
 
@@ -62,12 +64,51 @@ impl Path {
     }
 }
 
-/// Where outlines are painted.
+/// Where outlines and images are painted.
 pub trait Surface {
     /// Fills with the non-zero rule.
     fn fill(&mut self, path: &Path, colour: BackendColor);
     /// Strokes with round joins and caps.
     fn stroke(&mut self, path: &Path, colour: BackendColor, width: f32);
+    /// Paints packed 8-bit RGB pixels, `size.0 × size.1` row by row, with the
+    /// top-left corner at pixel `pos`.
+    fn image(&mut self, pos: (i32, i32), size: (u32, u32), rgb: &[u8]);
+}
+
+/// A block of packed 8-bit RGB pixels drawn at a pixel position: a raster
+/// image in PNG output, an embedded PNG image in SVG.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Pixels {
+    /// Top-left corner, in the coordinates of the area it is drawn on.
+    pub pos: (i32, i32),
+    /// Width and height in pixels.
+    pub size: (u32, u32),
+    /// RGB bytes, row by row (`3 × width × height`).
+    pub rgb: Vec<u8>,
+}
+
+impl<'a> PointCollection<'a, (i32, i32)> for &'a Pixels {
+    type Point = &'a (i32, i32);
+    type IntoIter = std::iter::Once<&'a (i32, i32)>;
+    fn point_iter(self) -> Self::IntoIter {
+        std::iter::once(&self.pos)
+    }
+}
+
+impl<DB: DrawingBackend> Drawable<DB> for Pixels {
+    fn draw<I: Iterator<Item = BackendCoord>>(
+        &self,
+        mut points: I,
+        backend: &mut DB,
+        _: (u32, u32),
+    ) -> Result<(), DrawingErrorKind<DB::ErrorType>> {
+        match points.next() {
+            Some(p) if self.rgb.len() == 3 * self.size.0 as usize * self.size.1 as usize => {
+                backend.blit_bitmap(p, self.size, &self.rgb)
+            }
+            _ => Ok(()),
+        }
+    }
 }
 
 /// A plotters backend painting on a [`Surface`]. Pixel `(x, y)` of plotters
@@ -200,6 +241,16 @@ impl<S: Surface> DrawingBackend for Canvas<'_, S> {
         Ok(())
     }
 
+    fn blit_bitmap(
+        &mut self,
+        pos: BackendCoord,
+        size: (u32, u32),
+        src: &[u8],
+    ) -> Result<(), DrawingErrorKind<Infallible>> {
+        self.surface.image(pos, size, src);
+        Ok(())
+    }
+
     fn estimate_text_size<T: BackendTextStyle>(
         &self,
         text: &str,
@@ -287,6 +338,31 @@ impl Surface for Svg {
             );
         }
     }
+
+    fn image(&mut self, (x, y): (i32, i32), (w, h): (u32, u32), rgb: &[u8]) {
+        if let Some(png) = png_bytes((w, h), rgb) {
+            let _ = writeln!(
+                self.body,
+                "<image x=\"{x}\" y=\"{y}\" width=\"{w}\" height=\"{h}\" preserveAspectRatio=\"none\" xlink:href=\"data:image/png;base64,{}\"/>",
+                base64::engine::general_purpose::STANDARD.encode(png)
+            );
+        }
+    }
+}
+
+/// PNG bytes of packed RGB pixels (`None` if the sizes disagree), with
+/// zlib's default compression and adaptive row filters.
+pub fn png_bytes((w, h): (u32, u32), rgb: &[u8]) -> Option<Vec<u8>> {
+    use image::ImageEncoder;
+    use image::codecs::png::{CompressionType, FilterType, PngEncoder};
+    if rgb.len() != 3 * w as usize * h as usize {
+        return None;
+    }
+    let mut out = Vec::new();
+    PngEncoder::new_with_quality(&mut out, CompressionType::Default, FilterType::Adaptive)
+        .write_image(rgb, w, h, image::ExtendedColorType::Rgb8)
+        .ok()?;
+    Some(out)
 }
 
 impl Svg {
@@ -294,7 +370,7 @@ impl Svg {
     pub fn document(&self, size: (u32, u32), label: &str) -> String {
         let (w, h) = size;
         format!(
-            "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{w}\" height=\"{h}\" viewBox=\"0 0 {w} {h}\" role=\"img\" aria-label=\"{}\">\n<title>{}</title>\n{}</svg>\n",
+            "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<svg xmlns=\"http://www.w3.org/2000/svg\" xmlns:xlink=\"http://www.w3.org/1999/xlink\" width=\"{w}\" height=\"{h}\" viewBox=\"0 0 {w} {h}\" role=\"img\" aria-label=\"{}\">\n<title>{}</title>\n{}</svg>\n",
             escape(label),
             escape(label),
             self.body
@@ -368,6 +444,26 @@ impl Surface for Raster {
                 &p,
                 &Raster::paint(colour),
                 FillRule::Winding,
+                Transform::identity(),
+                None,
+            );
+        }
+    }
+
+    fn image(&mut self, (x, y): (i32, i32), (w, h): (u32, u32), rgb: &[u8]) {
+        let rgba: Vec<u8> = rgb
+            .chunks_exact(3)
+            .flat_map(|p| [p[0], p[1], p[2], 255])
+            .collect();
+        let Some(size) = tiny_skia::IntSize::from_wh(w, h) else {
+            return;
+        };
+        if let Some(src) = Pixmap::from_vec(rgba, size) {
+            self.pixmap.draw_pixmap(
+                x,
+                y,
+                src.as_ref(),
+                &PixmapPaint::default(),
                 Transform::identity(),
                 None,
             );

@@ -9,6 +9,7 @@ mod ab;
 pub mod canvas;
 mod chromaticity;
 mod font;
+pub mod gamut;
 mod map;
 mod spectra;
 mod strip;
@@ -116,13 +117,7 @@ pub fn rgb(chart: &impl Chart, size: (u32, u32)) -> Result<Vec<u8>> {
 
 /// The chart as PNG bytes.
 pub fn png(chart: &impl Chart, size: (u32, u32)) -> Result<Vec<u8>> {
-    let pixels = rgb(chart, size)?;
-    let mut out = std::io::Cursor::new(Vec::new());
-    image::RgbImage::from_raw(size.0, size.1, pixels)
-        .ok_or_else(|| failed("raster size"))?
-        .write_to(&mut out, image::ImageFormat::Png)
-        .map_err(failed)?;
-    Ok(out.into_inner())
+    canvas::png_bytes(size, &rgb(chart, size)?).ok_or_else(|| failed("PNG encoding"))
 }
 
 /// The chart in `format`, as bytes to write.

@@ -1,5 +1,8 @@
 //! `angle-strip`: the colour at every angle as one continuous band over a
 //! labelled angle axis, with swatches and their values at chosen angles.
+//! Angles whose colour lies outside the RGB gamut are hatched in a marker
+//! row under the band and named in a legend line; the band is drawn with
+//! [`SoftEdge`] so that no false edge appears where colours leave the gamut.
 
 use plotters::coord::Shift;
 use plotters::coord::types::RangedCoordf64;
@@ -7,6 +10,7 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::canvas::{Canvas, Svg};
+use super::gamut::{self, Shown, SoftEdge, hatch};
 use super::style::{self, Caption, FRAME, INK, MUTED, SERIES, Style, frame, num, swatch};
 use super::{Chart, DrawResult};
 use crate::angle_colour::{Viewing, angle_colours};
@@ -21,16 +25,36 @@ pub const MAX_TICKS: usize = 12;
 /// Samples over the angle range, at least.
 const SAMPLES: usize = 720;
 
+/// The colour at one angle of the strip.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Sample {
+    /// Angle of incidence in degrees.
+    pub angle_deg: f64,
+    /// The colour, as `lamella color` reports it.
+    pub colour: Colour,
+    /// Whether the angle is one of the scene's grid angles or ticks (drawn
+    /// exactly at its column).
+    pub exact: bool,
+    /// What the band shows.
+    pub shown: Shown,
+}
+
 /// The colour along the angle range of a scene.
 #[derive(Debug, Clone, PartialEq)]
 pub struct AngleStrip {
     /// Header text.
     pub caption: Caption,
-    /// Angles in increasing order, each with its colour and whether it is
-    /// one of the scene's grid angles or ticks (drawn exactly at its column).
-    pub samples: Vec<(f64, Colour, bool)>,
+    /// Angles in increasing order with their colours.
+    pub samples: Vec<Sample>,
     /// Angles with a swatch and their colours.
     pub ticks: Vec<(f64, Colour)>,
+    /// Angle ranges (from, to) whose colours lie outside the RGB gamut, with
+    /// the edges interpolated between samples.
+    pub outside: Vec<(f64, f64)>,
+    /// The label of out-of-gamut swatches ("outside sRGB").
+    pub outside_label: String,
+    /// The legend line of the out-of-gamut marks ("outside sRGB: shown clipped").
+    pub legend: String,
 }
 
 impl AngleStrip {
@@ -93,16 +117,22 @@ impl AngleStrip {
             &list,
         );
         let colours = angle_colours(&spectra, viewing)?;
-        let samples: Vec<(f64, Colour, bool)> = angles
+        let soft = SoftEdge::new(viewing, &scene.wavelengths_nm)?;
+        let samples: Vec<Sample> = angles
             .iter()
             .zip(colours)
-            .map(|(&(a, exact), c)| (a, c, exact))
+            .map(|(&(angle_deg, exact), colour)| Sample {
+                angle_deg,
+                shown: soft.show(&colour),
+                colour,
+                exact,
+            })
             .collect();
         let ticks = ticks
             .iter()
             .map(|&t| {
                 let i = list.partition_point(|&a| a < t);
-                (t, samples[i].1.clone())
+                (t, samples[i].colour.clone())
             })
             .collect();
         Ok(AngleStrip {
@@ -111,25 +141,39 @@ impl AngleStrip {
                 "Colour against angle of incidence",
                 viewing,
             ),
+            outside: outside_spans(&samples),
             samples,
             ticks,
+            outside_label: gamut::outside_label(viewing),
+            legend: gamut::legend(viewing),
         })
     }
 
-    /// The pixel at the middle of the strip where angle `a` is drawn, for an
+    /// The pixel at the middle of the band where angle `a` is drawn, for an
     /// image of `size`.
     pub fn pixel_of(&self, size: (u32, u32), a: f64) -> (i32, i32) {
+        let (x, band, _) = self.rows_of(size, a);
+        (x, (band.0 + band.1) / 2)
+    }
+
+    /// For an image of `size`: the column where angle `a` is drawn, the
+    /// band's first and last pixel rows, and the marker row's.
+    pub fn rows_of(&self, size: (u32, u32), a: f64) -> (i32, (i32, i32), (i32, i32)) {
         let mut svg = Svg::default();
         let root = Canvas::new(&mut svg, size).into_drawing_area();
         let s = Style::new(size);
         let (chart, _) = self.layout(&root, &s).expect("SVG drawing cannot fail");
         let (x, _) = chart.backend_coord(&(a, 0.5));
         let (_, ys) = chart.plotting_area().get_pixel_range();
-        (x, (ys.start + ys.end) / 2)
+        let (band, marks) = rows(ys.start, ys.end, &s);
+        (x, band, marks)
     }
 
     fn range(&self) -> (f64, f64) {
-        (self.samples[0].0, self.samples[self.samples.len() - 1].0)
+        (
+            self.samples[0].angle_deg,
+            self.samples[self.samples.len() - 1].angle_deg,
+        )
     }
 
     #[allow(clippy::type_complexity)]
@@ -171,6 +215,71 @@ impl AngleStrip {
     }
 }
 
+/// The band's and the marker row's first and last pixel rows within the
+/// plotting rows `top..bottom`.
+fn rows(top: i32, bottom: i32, s: &Style) -> ((i32, i32), (i32, i32)) {
+    let mark = s.px(14.0).max(6);
+    let gap = s.px(5.0).max(2);
+    ((top, bottom - mark - gap - 1), (bottom - mark, bottom - 1))
+}
+
+/// Runs of samples outside the gamut, each edge placed where the relative
+/// chroma crosses 1 between the neighbouring samples.
+fn outside_spans(samples: &[Sample]) -> Vec<(f64, f64)> {
+    let edge = |p: &Sample, q: &Sample| {
+        let (e0, e1) = (p.shown.excess, q.shown.excess);
+        let t = if (e0 - e1).abs() > 0.0 && e0.is_finite() && e1.is_finite() {
+            (e0 / (e0 - e1)).clamp(0.0, 1.0)
+        } else {
+            0.5
+        };
+        p.angle_deg + t * (q.angle_deg - p.angle_deg)
+    };
+    let mut spans = Vec::new();
+    let mut start: Option<f64> = None;
+    for (i, x) in samples.iter().enumerate() {
+        let out = !x.colour.in_gamut;
+        match (out, start) {
+            (true, None) => {
+                start = Some(if i == 0 {
+                    x.angle_deg
+                } else {
+                    edge(&samples[i - 1], x)
+                })
+            }
+            (false, Some(a)) => {
+                spans.push((a, edge(&samples[i - 1], x)));
+                start = None;
+            }
+            _ => {}
+        }
+    }
+    if let (Some(a), Some(last)) = (start, samples.last()) {
+        spans.push((a, last.angle_deg));
+    }
+    spans
+}
+
+/// "0°–38.6°, 70°–75°" (at most three ranges, then "…").
+fn span_list(spans: &[(f64, f64)]) -> String {
+    let one = |&(a, b): &(f64, f64)| {
+        if (b - a).abs() < 0.05 {
+            format!("{}°", num(a, 1).trim_end_matches(".0"))
+        } else {
+            format!(
+                "{}°–{}°",
+                num(a, 1).trim_end_matches(".0"),
+                num(b, 1).trim_end_matches(".0")
+            )
+        }
+    };
+    let mut parts: Vec<String> = spans.iter().take(3).map(one).collect();
+    if spans.len() > 3 {
+        parts.push("…".into());
+    }
+    parts.join(", ")
+}
+
 /// A round step (1, 2, 5, 10, 15, 20, 30 or 45°) giving at most nine swatches.
 fn default_ticks(lo: f64, hi: f64) -> Vec<f64> {
     let step = [1.0, 2.0, 5.0, 10.0, 15.0, 20.0, 30.0, 45.0]
@@ -201,11 +310,11 @@ impl Chart for AngleStrip {
         // first), or the nearest sample by angle when none falls inside.
         let w = (xs.end - xs.start) as usize;
         let mut column: Vec<Option<(usize, bool)>> = vec![None; w];
-        for (i, (a, _, exact)) in self.samples.iter().enumerate() {
-            let (px, _) = chart.backend_coord(&(*a, 0.5));
+        for (i, x) in self.samples.iter().enumerate() {
+            let (px, _) = chart.backend_coord(&(x.angle_deg, 0.5));
             let c = ((px - x0).max(0) as usize).min(w - 1);
-            if column[c].is_none_or(|(_, e)| *exact && !e) {
-                column[c] = Some((i, *exact));
+            if column[c].is_none_or(|(_, e)| x.exact && !e) {
+                column[c] = Some((i, x.exact));
             }
         }
         let (lo, hi) = self.range();
@@ -214,25 +323,26 @@ impl Chart for AngleStrip {
             let i = slot.map_or_else(
                 || {
                     let a = lo + (hi - lo) * (c as f64 + 0.5) / w as f64;
-                    let k = self.samples.partition_point(|x| x.0 < a);
+                    let k = self.samples.partition_point(|x| x.angle_deg < a);
                     [k.saturating_sub(1), k.min(self.samples.len() - 1)]
                         .into_iter()
                         .min_by(|&p, &q| {
-                            (self.samples[p].0 - a)
+                            (self.samples[p].angle_deg - a)
                                 .abs()
-                                .total_cmp(&(self.samples[q].0 - a).abs())
+                                .total_cmp(&(self.samples[q].angle_deg - a).abs())
                         })
                         .unwrap_or(0)
                 },
                 |(i, _)| i,
             );
-            let colour = swatch(&self.samples[i].1);
+            let colour = self.samples[i].shown.colour();
             match runs.last_mut() {
                 Some((_, end, last)) if *last == colour => *end = c,
                 _ => runs.push((c, c, colour)),
             }
         }
-        let h = ys.end - ys.start;
+        let (band, marks) = rows(ys.start, ys.end, &s);
+        let h = band.1 - band.0 + 1;
         for (a, b, colour) in runs {
             area.draw(&Rectangle::new(
                 [(a as i32, 0), (b as i32, h - 1)],
@@ -246,6 +356,21 @@ impl Chart for AngleStrip {
             [(ax, ay), (ax + w as i32 + 1, ay + h + 1)],
             FRAME.stroke_width(1),
         ))?;
+        // The marker row: out-of-gamut angle ranges hatched.
+        for &(a, b) in &self.outside {
+            let (xa, _) = chart.backend_coord(&(a, 0.5));
+            let (xb, _) = chart.backend_coord(&(b, 0.5));
+            hatch(
+                root,
+                &s,
+                (xa - rx, (xb - rx).max(xa - rx + 2)),
+                (marks.0 - ry, marks.1 - ry),
+            )?;
+        }
+        if !self.outside.is_empty() {
+            let text = format!("{} ({})", self.legend, span_list(&self.outside));
+            gamut::legend_line(root, &s, &text)?;
+        }
         // Markers above the strip at the swatch angles.
         let m = s.px(7.0);
         let base = root.get_base_pixel();
@@ -295,18 +420,44 @@ impl AngleStrip {
                 [(cx - side / 2, sy), (cx + side / 2, sy + side)],
                 FRAME.stroke_width(1),
             ))?;
-            let mut y = sy + side + s.px(10.0);
+            // Out of gamut: a hatched tag under the swatch, as in the marker row.
+            if !c.in_gamut {
+                hatch(
+                    area,
+                    s,
+                    (cx - side / 2, cx + side / 2),
+                    (sy + side + s.px(3.0), sy + side + s.px(13.0)),
+                )?;
+            }
+            let mut y = sy + side + s.px(20.0);
             let mut put = |t: String, st: TextStyle<'static>| -> DrawResult<DB> {
                 area.draw(&Text::new(t, (cx, y), st.pos(centre)))?;
                 y += line;
                 Ok(())
             };
-            put(c.hex.clone(), s.text(15.0, INK))?;
+            // Out of gamut: "≈" before the hex code where it fits the cell.
+            let approx = format!("≈ {}", c.hex);
+            let hex = if c.in_gamut
+                || super::font::width(&approx, s.size(15.0), FontStyle::Normal) > 0.95 * cell as f64
+            {
+                c.hex.clone()
+            } else {
+                approx
+            };
+            put(hex, s.text(15.0, INK))?;
             put(format!("L* {}", num(c.lab[0], 1)), s.text(14.0, MUTED))?;
             put(format!("a* {}", num(c.lab[1], 1)), s.text(14.0, MUTED))?;
             put(format!("b* {}", num(c.lab[2], 1)), s.text(14.0, MUTED))?;
-            if !c.in_gamut {
-                put("outside sRGB".into(), s.text(14.0, SERIES[1]))?;
+            // The label in full where it fits the cell, else shortened.
+            let fits = |t: &str| {
+                super::font::width(t, s.size(14.0), FontStyle::Bold) <= 0.95 * cell as f64
+            };
+            if let Some(label) = [self.outside_label.as_str(), "outside"]
+                .into_iter()
+                .find(|t| fits(t))
+                .filter(|_| !c.in_gamut)
+            {
+                put(label.to_string(), s.bold(14.0, SERIES[1]))?;
             }
         }
         Ok(())
@@ -315,7 +466,7 @@ impl AngleStrip {
 
 #[cfg(test)]
 mod tests {
-    use super::default_ticks;
+    use super::{default_ticks, span_list};
 
     #[test]
     fn default_ticks_use_a_round_step_and_at_most_nine() {
@@ -329,5 +480,12 @@ mod tests {
         );
         assert_eq!(default_ticks(12.0, 14.0), vec![12.0, 13.0, 14.0]);
         assert!(default_ticks(0.0, 89.0).len() <= 9);
+    }
+
+    #[test]
+    fn span_lists_are_short() {
+        assert_eq!(span_list(&[(0.0, 38.64)]), "0°–38.6°");
+        assert_eq!(span_list(&[(10.0, 10.0), (20.0, 30.5)]), "10°, 20°–30.5°");
+        assert!(span_list(&[(1.0, 2.0); 5]).ends_with("…"));
     }
 }

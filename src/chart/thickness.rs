@@ -1,12 +1,18 @@
-//! `thickness-angle`: colour swatches over angle (across) and one layer's
-//! thickness or a scale on every thickness (down).
+//! `thickness-angle`: the colour over one layer's thickness or a scale on
+//! every thickness (across) and the angle of incidence (up), as a
+//! continuous field interpolated between computed samples. The design's
+//! value is a dashed line with a notch above the field; colours outside the
+//! RGB gamut are hatched and edged by the contour where they leave it.
 
 use plotters::coord::Shift;
+use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 use rayon::prelude::*;
 
-use super::style::{self, Caption, FRAME, INK, Style, frame, swatch};
+use super::canvas::{Canvas, Pixels, Svg};
+use super::gamut::{self, Shown, SoftEdge};
+use super::style::{self, Caption, FRAME, INK, Style, frame};
 use super::{Chart, DrawResult};
 use crate::angle_colour::{Viewing, angle_colours};
 use crate::colorimetry::Colour;
@@ -14,7 +20,7 @@ use crate::error::{Error, Result};
 use crate::optics;
 use crate::scene::{Item, Layer, Repeat, Scene};
 
-/// Most rows of thickness.
+/// Most thickness samples.
 pub const MAX_STEPS: usize = 200;
 
 /// What changes from row to row.
@@ -37,21 +43,32 @@ pub enum Variation {
     },
 }
 
-/// Colours on a (thickness, angle) grid.
+/// Angle samples across the scene's range, at most (every grid angle kept).
+const ANGLE_SAMPLES: usize = 31;
+
+/// Colours over (thickness, angle): computed at `values` × `angles` and
+/// drawn as a continuous field interpolated between them.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ThicknessAngle {
     /// Header text.
     pub caption: Caption,
-    /// Title of the vertical axis.
+    /// Title of the thickness axis.
     pub axis: String,
-    /// The varied value of each row.
-    pub rows: Vec<f64>,
+    /// The varied value of each sample, increasing (evenly spaced, with the
+    /// design value added when it lies inside the range).
+    pub values: Vec<f64>,
     /// The design's own value.
     pub nominal: f64,
-    /// Angles of the columns (the scene's grid).
+    /// The design marker's label ("design 157 nm").
+    pub nominal_label: String,
+    /// Angles of incidence of the samples: the scene's grid, subdivided.
     pub angles: Vec<f64>,
-    /// Colour per row, then per angle.
+    /// Colour per value, then per angle.
     pub cells: Vec<Vec<Colour>>,
+    /// What the field shows at each sample.
+    pub shown: Vec<Vec<Shown>>,
+    /// The legend line of the out-of-gamut marks.
+    pub legend: String,
 }
 
 /// Copies `items` with each layer's thickness replaced by `f(number, layer)`,
@@ -86,7 +103,12 @@ fn layers(items: &[Item], out: &mut Vec<Layer>) {
 }
 
 impl ThicknessAngle {
-    /// Computes `steps` rows over the variation; `progress` is called after each row.
+    /// Thickness samples when none are asked for.
+    pub const DEFAULT_STEPS: usize = 61;
+
+    /// Computes `steps` thickness samples over the variation (plus the design
+    /// value), each at the scene's angles subdivided to about 31; `progress`
+    /// is called after each thickness.
     pub fn compute(
         scene: &Scene,
         viewing: &Viewing,
@@ -103,7 +125,7 @@ impl ThicknessAngle {
         }
         let mut all = Vec::new();
         layers(&scene.stack, &mut all);
-        let (from, to, nominal, axis) = match *variation {
+        let (from, to, nominal, axis, nominal_label) = match *variation {
             Variation::Layer { layer, range_nm } => {
                 let l = all.get(layer.wrapping_sub(1)).ok_or_else(|| {
                     Error::invalid(
@@ -126,6 +148,7 @@ impl ThicknessAngle {
                     b,
                     l.thickness_nm,
                     format!("Thickness of layer {layer}, {name} (nm)"),
+                    format!("design {} nm", style::tick(&l.thickness_nm)),
                 )
             }
             Variation::Scale { from, to } => {
@@ -141,14 +164,25 @@ impl ThicknessAngle {
                     to,
                     1.0,
                     "Scale on every thickness (× design)".to_string(),
+                    "design ×1".to_string(),
                 )
             }
         };
-        let rows: Vec<f64> = (0..steps)
+        let mut values: Vec<f64> = (0..steps)
             .map(|i| from + (to - from) * i as f64 / (steps - 1) as f64)
             .collect();
+        if nominal > from
+            && nominal < to
+            && values
+                .iter()
+                .all(|v| (v - nominal).abs() > 1e-9 * (to - from))
+        {
+            values.push(nominal);
+            values.sort_by(f64::total_cmp);
+        }
+        let angles = subdivide(&scene.angles_deg);
         let index = scene.indices(&scene.wavelengths_nm)?;
-        let cells = rows
+        let cells = values
             .par_iter()
             .map(|&v| {
                 let items = map_layers(&scene.stack, &mut 0, &|n, l| match *variation {
@@ -160,35 +194,199 @@ impl ThicknessAngle {
                     &scene.realisations(&items),
                     &index,
                     &scene.wavelengths_nm,
-                    &scene.angles_deg,
+                    &angles,
                 );
                 let colours = angle_colours(&spectra, viewing);
                 progress();
                 colours
             })
             .collect::<Result<Vec<_>>>()?;
+        let soft = SoftEdge::new(viewing, &scene.wavelengths_nm)?;
+        let shown = cells
+            .iter()
+            .map(|row| row.iter().map(|c| soft.show(c)).collect())
+            .collect();
         Ok(ThicknessAngle {
             caption: Caption::new(
                 &[&scene.title],
-                "Colour against angle of incidence and layer thickness",
+                "Colour over layer thickness and angle of incidence",
                 viewing,
             ),
             axis,
-            rows,
+            values,
             nominal,
-            angles: scene.angles_deg.clone(),
+            nominal_label,
+            angles,
             cells,
+            shown,
+            legend: gamut::legend(viewing),
         })
+    }
+
+    /// Whether any sample lies outside the gamut.
+    pub fn any_outside(&self) -> bool {
+        self.cells.iter().flatten().any(|c| !c.in_gamut)
+    }
+
+    /// The pixel where (value, angle) is drawn in an image of `size`.
+    pub fn pixel_of(&self, size: (u32, u32), at: (f64, f64)) -> (i32, i32) {
+        let mut svg = Svg::default();
+        let root = Canvas::new(&mut svg, size).into_drawing_area();
+        let s = Style::new(size);
+        let (chart, _) = self.layout(&root, &s).expect("SVG drawing cannot fail");
+        chart.backend_coord(&at)
+    }
+
+    /// The angle range drawn (half a degree either side of a single angle).
+    fn angle_range(&self) -> (f64, f64) {
+        let (a0, a1) = (self.angles[0], self.angles[self.angles.len() - 1]);
+        if a1 > a0 {
+            (a0, a1)
+        } else {
+            (a0 - 0.5, a1 + 0.5)
+        }
+    }
+
+    #[allow(clippy::type_complexity)]
+    fn layout<'a, DB: DrawingBackend>(
+        &self,
+        root: &'a DrawingArea<DB, Shift>,
+        s: &Style,
+    ) -> std::result::Result<
+        (
+            ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>,
+            DrawingArea<DB, Shift>,
+        ),
+        DrawingAreaErrorKind<DB::ErrorType>,
+    > {
+        let body = frame(root, &self.caption, s)?;
+        let (_, h) = body.dim_in_pixel();
+        let (main, foot) = body.split_vertically(h as i32 - s.px(26.0));
+        let (a0, a1) = self.angle_range();
+        let (v0, v1) = (self.values[0], self.values[self.values.len() - 1]);
+        let mut chart = ChartBuilder::on(&main)
+            .margin_top(s.px(34.0))
+            .margin_right(s.px(30.0))
+            .x_label_area_size(s.px(62.0))
+            .y_label_area_size(s.px(84.0))
+            .build_cartesian_2d(v0..v1, a0..a1)?;
+        let digits = if v1 < 10.0 { 2 } else { 0 };
+        chart
+            .configure_mesh()
+            .disable_x_mesh()
+            .disable_y_mesh()
+            .x_desc(self.axis.as_str())
+            .y_desc("Angle of incidence (degrees)")
+            .axis_desc_style(s.axis())
+            .label_style(s.tick())
+            .x_label_formatter(&|v| style::num(*v, digits))
+            .y_label_formatter(&|v| format!("{}°", style::tick(v)))
+            .axis_style(FRAME.stroke_width(1))
+            .set_all_tick_mark_size(s.px(5.0))
+            .x_labels(10)
+            .y_labels(10)
+            .draw()?;
+        Ok((chart, foot))
+    }
+
+    /// The field as packed RGB, `w × h` pixels: bilinear between the samples
+    /// (value across, angle up), hatched where the interpolated relative
+    /// chroma exceeds the gamut edge.
+    fn field(&self, (w, h): (usize, usize), s: &Style) -> Vec<u8> {
+        let (a0, a1) = self.angle_range();
+        let (v0, v1) = (self.values[0], self.values[self.values.len() - 1]);
+        let cols: Vec<(usize, f64)> = (0..w)
+            .map(|x| locate(&self.values, v0 + (v1 - v0) * (x as f64 + 0.5) / w as f64))
+            .collect();
+        let period = 2.0 * gamut::hatch_period(s);
+        let mut out = Vec::with_capacity(3 * w * h);
+        for y in 0..h {
+            let (j, u) = locate(&self.angles, a1 - (a1 - a0) * (y as f64 + 0.5) / h as f64);
+            let j1 = (j + 1).min(self.angles.len() - 1);
+            for (x, &(i, t)) in cols.iter().enumerate() {
+                let i1 = (i + 1).min(self.values.len() - 1);
+                let at = |f: &dyn Fn(&Shown) -> f64| {
+                    let g = |r: usize, c: usize| f(&self.shown[r][c]);
+                    (1.0 - t) * ((1.0 - u) * g(i, j) + u * g(i, j1))
+                        + t * ((1.0 - u) * g(i1, j) + u * g(i1, j1))
+                };
+                let mut rgb: [f64; 3] = std::array::from_fn(|k| at(&|p| p.rgb[k]));
+                if at(&|p| p.excess.min(1.0)) > 0.0 {
+                    // Dark and light lines in turn, legible on any colour.
+                    let (x, y) = (x as f64, y as f64);
+                    let dark = gamut::hatch_coverage(x, y, period);
+                    let light = gamut::hatch_coverage(x + period / 2.0, y, period);
+                    let ink = [INK.0, INK.1, INK.2].map(|c| c as f64 / 255.0);
+                    for k in 0..3 {
+                        rgb[k] += 0.6 * dark * (ink[k] - rgb[k]);
+                        rgb[k] += 0.6 * light * (1.0 - rgb[k]);
+                    }
+                }
+                out.extend(rgb.map(|v| (v.clamp(0.0, 1.0) * 255.0).round() as u8));
+            }
+        }
+        out
+    }
+
+    /// Segments of the gamut-edge contour (relative chroma 1) in data
+    /// coordinates, by marching squares on the sample grid.
+    fn edge_segments(&self) -> Vec<[(f64, f64); 2]> {
+        let e = |i: usize, j: usize| self.shown[i][j].excess.min(1.0);
+        let mut out = Vec::new();
+        let (nv, na) = (self.values.len(), self.angles.len());
+        if na < 2 {
+            return out;
+        }
+        for i in 0..nv - 1 {
+            for j in 0..na - 1 {
+                let corners = [(i, j), (i + 1, j), (i + 1, j + 1), (i, j + 1)];
+                let mut cuts = Vec::new();
+                for k in 0..4 {
+                    let (p, q) = (corners[k], corners[(k + 1) % 4]);
+                    let (ep, eq) = (e(p.0, p.1), e(q.0, q.1));
+                    if (ep > 0.0) != (eq > 0.0) {
+                        let f = ep / (ep - eq);
+                        let lerp = |a: f64, b: f64| a + f * (b - a);
+                        cuts.push((
+                            lerp(self.values[p.0], self.values[q.0]),
+                            lerp(self.angles[p.1], self.angles[q.1]),
+                        ));
+                    }
+                }
+                for pair in cuts.chunks_exact(2) {
+                    out.push([pair[0], pair[1]]);
+                }
+            }
+        }
+        out
     }
 }
 
-/// Half the spacing of neighbouring values (or a nominal half-width for one value).
-fn half_step(v: &[f64]) -> f64 {
-    if v.len() < 2 {
-        0.5
-    } else {
-        (v[v.len() - 1] - v[0]).abs() / (v.len() - 1) as f64 / 2.0
+/// The scene's angles (sorted, unique), each interval cut into equal parts
+/// so that there are at most `ANGLE_SAMPLES`.
+fn subdivide(grid: &[f64]) -> Vec<f64> {
+    let mut sorted = grid.to_vec();
+    sorted.sort_by(f64::total_cmp);
+    sorted.dedup();
+    if sorted.len() < 2 {
+        return sorted;
     }
+    let sub = ((ANGLE_SAMPLES - 1) / (sorted.len() - 1)).max(1);
+    sorted
+        .windows(2)
+        .flat_map(|w| (0..sub).map(move |k| w[0] + (w[1] - w[0]) * k as f64 / sub as f64))
+        .chain(sorted.last().copied())
+        .collect()
+}
+
+/// The interval of increasing `xs` holding `v` and the fraction across it.
+fn locate(xs: &[f64], v: f64) -> (usize, f64) {
+    if xs.len() < 2 {
+        return (0, 0.0);
+    }
+    let i = xs.partition_point(|&x| x <= v).clamp(1, xs.len() - 1) - 1;
+    let t = ((v - xs[i]) / (xs[i + 1] - xs[i])).clamp(0.0, 1.0);
+    (i, t)
 }
 
 impl Chart for ThicknessAngle {
@@ -198,62 +396,67 @@ impl Chart for ThicknessAngle {
 
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> DrawResult<DB> {
         let s = Style::new(root.dim_in_pixel());
-        let body = frame(root, &self.caption, &s)?;
-        let (da, dv) = (half_step(&self.angles), half_step(&self.rows));
-        let (a0, a1) = (self.angles[0] - da, self.angles[self.angles.len() - 1] + da);
-        let (v0, v1) = (self.rows[0] - dv, self.rows[self.rows.len() - 1] + dv);
-        let mut chart = ChartBuilder::on(&body)
-            .margin_right(s.px(90.0))
-            .margin_top(s.px(8.0))
-            .x_label_area_size(s.px(62.0))
-            .y_label_area_size(s.px(84.0))
-            .build_cartesian_2d(a0.min(a1)..a0.max(a1), v0..v1)?;
-        let digits = if self.rows[self.rows.len() - 1] < 10.0 {
-            2
-        } else {
-            0
-        };
-        chart
-            .configure_mesh()
-            .disable_x_mesh()
-            .disable_y_mesh()
-            .x_desc("Angle of incidence (degrees)")
-            .y_desc(self.axis.as_str())
-            .axis_desc_style(s.axis())
-            .label_style(s.tick())
-            .x_label_formatter(&|v| format!("{}°", style::tick(v)))
-            .y_label_formatter(&|v| style::num(*v, digits))
-            .axis_style(FRAME.stroke_width(1))
-            .set_all_tick_mark_size(s.px(5.0))
-            .x_labels(10)
-            .y_labels(10)
-            .draw()?;
-        for (row, v) in self.cells.iter().zip(&self.rows) {
-            for (c, a) in row.iter().zip(&self.angles) {
-                chart.draw_series(std::iter::once(Rectangle::new(
-                    [(a - da, v - dv), (a + da, v + dv)],
-                    swatch(c).filled(),
-                )))?;
+        let (mut chart, _) = self.layout(root, &s)?;
+        let (xs, ys) = chart.plotting_area().get_pixel_range();
+        let base = root.get_base_pixel();
+        let (w, h) = ((xs.end - xs.start) as usize, (ys.end - ys.start) as usize);
+        root.draw(&Pixels {
+            pos: (xs.start - base.0, ys.start - base.1),
+            size: (w as u32, h as u32),
+            rgb: self.field((w, h), &s),
+        })?;
+        // The gamut edge: ink over a white halo, legible on any colour.
+        let segments = self.edge_segments();
+        for (colour, width) in [(WHITE, 3.0), (INK, 1.4)] {
+            chart.draw_series(
+                segments
+                    .iter()
+                    .map(|seg| PathElement::new(seg.to_vec(), colour.stroke_width(s.line(width)))),
+            )?;
+        }
+        // The design: a dashed line across the field and a notch above it.
+        let (a0, a1) = self.angle_range();
+        let (x, top) = chart.backend_coord(&(self.nominal, a1));
+        let (_, bottom) = chart.backend_coord(&(self.nominal, a0));
+        let (x, top, bottom) = (x - base.0, top - base.1, bottom - base.1);
+        let (dash, gap) = (s.px(9.0), s.px(6.0));
+        for (colour, width) in [(WHITE, 3.0), (INK, 1.4)] {
+            let mut y = top;
+            while y < bottom {
+                root.draw(&PathElement::new(
+                    vec![(x, y), (x, (y + dash).min(bottom))],
+                    colour.stroke_width(s.line(width)),
+                ))?;
+                y += dash + gap;
             }
         }
-        // The design row: an outline and a marker with its name at the right.
-        chart.draw_series(std::iter::once(Rectangle::new(
-            [(a0, self.nominal - dv), (a1, self.nominal + dv)],
-            INK.stroke_width(s.line(2.0)),
-        )))?;
-        let (x, y) = chart.backend_coord(&(a1, self.nominal));
         let m = s.px(7.0);
-        let base = root.get_base_pixel();
-        let (x, y) = (x - base.0 + s.px(6.0), y - base.1);
         root.draw(&Polygon::new(
-            vec![(x, y), (x + m, y - m), (x + m, y + m)],
+            vec![
+                (x - m, top - 2 * m - s.px(3.0)),
+                (x + m, top - 2 * m - s.px(3.0)),
+                (x, top - s.px(3.0)),
+            ],
             INK.filled(),
         ))?;
+        let (rw, _) = root.dim_in_pixel();
+        let label_w = super::font::width(&self.nominal_label, s.size(14.0), FontStyle::Normal);
+        let right = (x + m + s.px(6.0)) as f64 + label_w < rw as f64 - s.px(10.0) as f64;
         root.draw(&Text::new(
-            "design",
-            (x + m + s.px(5.0), y),
-            s.text(14.0, INK).pos(Pos::new(HPos::Left, VPos::Center)),
+            self.nominal_label.clone(),
+            if right {
+                (x + m + s.px(6.0), top - m - s.px(3.0))
+            } else {
+                (x - m - s.px(6.0), top - m - s.px(3.0))
+            },
+            s.text(14.0, INK).pos(Pos::new(
+                if right { HPos::Left } else { HPos::Right },
+                VPos::Center,
+            )),
         ))?;
+        if self.any_outside() {
+            gamut::legend_line(root, &s, &self.legend)?;
+        }
         Ok(())
     }
 }

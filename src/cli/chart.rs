@@ -20,9 +20,10 @@ pub enum Kind {
     /// The colour at every angle as a continuous strip, with swatches and
     /// their values at chosen angles (--ticks).
     AngleStrip,
-    /// Swatches of colour against angle (across) and one layer's thickness
+    /// The colour as a continuous field over one layer's thickness
     /// (--layer, --thickness-range) or a scale on all thicknesses
-    /// (--scale-range) (down).
+    /// (--scale-range) (across) and angle (up), with the design marked and
+    /// out-of-gamut regions hatched.
     ThicknessAngle,
     /// R (and with --transmittance T) against wavelength at --angles, for
     /// the polarizations in --curves.
@@ -91,8 +92,9 @@ pub struct Args {
     /// (the default when --layer is not given: 0.8,1.2).
     #[arg(long, value_name = "FROM,TO", value_parser = parse_pair)]
     pub scale_range: Option<(f64, f64)>,
-    /// thickness-angle: number of thickness rows.
-    #[arg(long, default_value_t = 21)]
+    /// thickness-angle: number of thickness samples (2–200); the field is
+    /// interpolated between them, and the design value is always one.
+    #[arg(long, default_value_t = ThicknessAngle::DEFAULT_STEPS)]
     pub steps: usize,
 }
 
@@ -185,7 +187,7 @@ pub fn run(args: &Args) -> CliResult {
         }
         Kind::ThicknessAngle => {
             let variation = variation(args);
-            let bar = Progress::new(args.steps as u64, "thickness rows");
+            let bar = Progress::new(args.steps as u64, "thickness samples");
             let done = AtomicU64::new(0);
             let c = ThicknessAngle::compute(scene, viewing, &variation, args.steps, &|| {
                 bar.set(done.fetch_add(1, Ordering::Relaxed) + 1, String::new())

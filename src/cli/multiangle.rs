@@ -24,16 +24,20 @@ Scene `coating` keys:
   platelet_coverage  platelet area per unit coating area, 0–20; default 1
   background         \"black\" (default), \"white\", {\"reflectance\": 0–1} or
                      {\"reflectance\": [[nm, R], …]} (Lambertian)
-  geometries         \"45\" (default: 45as-15, 45as15, 45as25, 45as45, 45as75, 45as110),
-                     \"15\" (15as-45, 15as-15, 15as15, 15as25, 15as45, 15as80), a name
-                     ILLUMINATIONasASPECULAR, or a list of names, sets and objects
-                     {illumination_deg, aspecular_deg, name?} (in-plane) or
-                     {illumination_deg, detection_deg, detection_azimuth_deg, name?}
-                     (any pair; azimuth 0 = specular side, 180 = illumination side)
+  geometries         \"45\" (default: 45as-15, 45as15, 45as25, 45as45, 45as75, 45as110, the
+                     in-plane set of ASTM E2194 and DIN 6175-2), a name
+                     ILLUMINATIONasASPECULAR such as 45as15 or 25as40, or your own list of
+                     names and objects, in order: {illumination_deg, aspecular_deg, name?}
+                     (in-plane) or {illumination_deg, detection_deg,
+                     detection_azimuth_deg, name?} (any pair; azimuth 0 = specular side,
+                     180 = illumination side), e.g.
+                     [\"45as15\", \"25as40\", {\"illumination_deg\": 45,
+                      \"detection_deg\": 30, \"detection_azimuth_deg\": 90, \"name\": \"side\"}]
   notes              free text
 Geometry names: 45as15 = illumination 45° from the normal, detection 15° from the
 specular direction toward the normal (30° on the specular side); 45as-15 detects at
-60°; 45as110 at 65° on the illumination side.
+60°; 45as110 at 65° on the illumination side; 25as40 lights at 25° and detects at
+15° on the illumination side. \"45\" is the only named set: list any other geometries.
 Output per geometry: name, illumination_deg, aspecular_deg, in_plane, X, Y, Z, L, a, b,
 C, h, srgb, hex, in_gamut, reflectance_factor (with --spectra). Also flop_index =
 2.69 (L*15 − L*110)^1.11 / (L*45)^0.86 from 45as15, 45as45, 45as110 (null with
@@ -50,9 +54,9 @@ pub struct Args {
     #[arg(long)]
     pub spectra: bool,
     /// Geometries to use instead of the scene's `coating.geometries`:
-    /// comma-separated set names (45 = 45as-15,15,25,45,75,110;
-    /// 15 = 15as-45,-15,15,25,45,80) and names ILLUMINATIONasASPECULAR,
-    /// e.g. `45as15,45as110` (aspecular angle positive toward the normal).
+    /// comma-separated names ILLUMINATIONasASPECULAR, e.g. `45as15,45as110`
+    /// or `25as40` (aspecular angle positive toward the normal), and the
+    /// set `45` (45as-15,15,25,45,75,110: ASTM E2194 / DIN 6175-2).
     #[arg(long, allow_hyphen_values = true)]
     pub geometries: Option<String>,
     /// Illuminant name (D65, D50, A, E, F2, F7, F11, LED-B1…LED-V2) or a

@@ -1,5 +1,6 @@
 //! `lamella report`: every chart of a scene (PNG and SVG) and one
-//! self-contained HTML page with the design, the colours and the cautions.
+//! self-contained HTML page with the design, the colours, the cautions and
+//! where the page came from (version, date, command).
 
 use std::fmt::Write;
 use std::path::PathBuf;
@@ -11,6 +12,7 @@ use lamella::chart::{
     ThicknessAngle, Variation,
 };
 use lamella::colorimetry::travel;
+use lamella::report::{CAUTIONS, VERSION, utc_timestamp};
 use lamella::scene::{Item, Scene};
 
 use super::color::ViewArgs;
@@ -30,6 +32,40 @@ pub struct Args {
     pub size: (u32, u32),
     #[command(flatten)]
     pub view: ViewArgs,
+}
+
+/// Where a report came from.
+struct Provenance {
+    /// UTC time of writing, ISO 8601.
+    date: String,
+    /// The command line, shell-quoted.
+    command: String,
+}
+
+impl Provenance {
+    /// Now, and this process's command line (the program by its file name).
+    fn of_this_run() -> Provenance {
+        let secs = match std::time::SystemTime::now().duration_since(std::time::UNIX_EPOCH) {
+            Ok(d) => d.as_secs() as i64,
+            Err(e) => -(e.duration().as_secs() as i64),
+        };
+        let args: Vec<String> = std::env::args_os()
+            .enumerate()
+            .map(|(i, a)| {
+                let p = std::path::PathBuf::from(&a);
+                match (i, p.file_name()) {
+                    (0, Some(name)) => name.to_string_lossy().into_owned(),
+                    _ => a.to_string_lossy().into_owned(),
+                }
+            })
+            .collect();
+        let command =
+            shlex::try_join(args.iter().map(String::as_str)).unwrap_or_else(|_| args.join(" "));
+        Provenance {
+            date: utc_timestamp(secs),
+            command,
+        }
+    }
 }
 
 /// A drawn chart: file stem, heading and SVG text.
@@ -79,7 +115,7 @@ pub fn run(args: &Args) -> CliResult {
         &scene,
         &viewing,
         &Variation::Scale { from: 0.9, to: 1.1 },
-        21,
+        ThicknessAngle::DEFAULT_STEPS,
         &|| {},
     )
     .map_err(at)?;
@@ -110,7 +146,13 @@ pub fn run(args: &Args) -> CliResult {
     })?;
     bar.finish();
     let series = Series::of_scene(&scene, &viewing).map_err(at)?;
-    let html = page(&scene, &viewing, &series, &drawn);
+    let html = page(
+        &scene,
+        &viewing,
+        &series,
+        &drawn,
+        &Provenance::of_this_run(),
+    );
     write_out(Some(&args.output.join("index.html")), &[html.into_bytes()])
 }
 
@@ -153,7 +195,13 @@ fn stack_rows(scene: &Scene, items: &[Item], depth: usize, next: &mut usize, out
     }
 }
 
-fn page(scene: &Scene, viewing: &Viewing, series: &Series, drawn: &[Drawn]) -> String {
+fn page(
+    scene: &Scene,
+    viewing: &Viewing,
+    series: &Series,
+    drawn: &[Drawn],
+    made: &Provenance,
+) -> String {
     let title = if scene.title.trim().is_empty() {
         "Untitled scene"
     } else {
@@ -164,14 +212,17 @@ fn page(scene: &Scene, viewing: &Viewing, series: &Series, drawn: &[Drawn]) -> S
         h,
         "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">\
 <title>{t} — colour report</title>\n<style>{CSS}</style></head><body>\n\
-<header><h1>{t}</h1><p class=meta>{v}</p></header>\n",
+<header><h1>{t}</h1><p class=meta>{v}</p>\
+<p class=meta>lamella {VERSION} · {d}</p></header>\n",
         t = escape(title),
         v = escape(&lamella::chart::describe(viewing)),
+        d = made.date,
     );
-    h.push_str("<section class=caution><h2>Before you decide</h2><ul>\
-<li>Colours on screen are an approximation: the swatches are sRGB renderings of computed spectra, and no display shows every colour exactly.</li>\
-<li>Sign-off needs a measured sample viewed under the same light as stated here; manufacturing tolerances, roughness and the viewing geometry change the colour.</li>\
-</ul></section>\n");
+    h.push_str("<section class=caution><h2>Cautions</h2><ul>\n");
+    for c in CAUTIONS {
+        let _ = writeln!(h, "<li>{}</li>", escape(c));
+    }
+    h.push_str("</ul></section>\n");
     // Design.
     h.push_str("<section><h2>Design</h2><table><thead><tr><th>Layer</th><th>Material</th><th>Thickness (nm)</th></tr></thead><tbody>\n");
     let _ = writeln!(
@@ -247,8 +298,9 @@ fn page(scene: &Scene, viewing: &Viewing, series: &Series, drawn: &[Drawn]) -> S
     } else {
         let _ = writeln!(
             h,
-            "<p class=warn><b>Gamut warning:</b> at {} the colour lies outside sRGB; its swatch is clipped to the nearest displayable colour and differs from the real one.</p>",
-            outside.join(", ")
+            "<p class=warn><b>Gamut warning:</b> at {} the colour is {}; the real colour differs from its swatch and hex, and the charts hatch these colours.</p>",
+            outside.join(", "),
+            escape(&lamella::chart::gamut::legend(viewing)),
         );
     }
     h.push_str("</section>\n");
@@ -264,7 +316,12 @@ fn page(scene: &Scene, viewing: &Viewing, series: &Series, drawn: &[Drawn]) -> S
             s = d.stem
         );
     }
-    h.push_str("<footer>Made with lamella.</footer></body></html>\n");
+    let _ = writeln!(
+        h,
+        "<footer><p>Made by lamella {VERSION} on {} (UTC) with:</p><pre><code>{}</code></pre></footer></body></html>",
+        made.date,
+        escape(&made.command)
+    );
     h
 }
 
@@ -274,4 +331,5 @@ h2{border-bottom:1px solid #e4e7ec;padding-bottom:.2em;margin-top:2em}table{bord
 td,th{padding:.25em .8em;border-bottom:1px solid #e4e7ec;text-align:left}td.n{text-align:right;font-variant-numeric:tabular-nums}\
 tr.group td{color:#5a6473;font-style:italic}.sw{display:inline-block;width:3em;height:1.2em;border:1px solid #9aa3ae;vertical-align:middle}\
 .warn{color:#b34700}.caution{background:#fff6e5;border:1px solid #e6c07a;padding:.2em 1em;margin-top:1.5em}\
-.chart svg{width:100%;height:auto;border:1px solid #e4e7ec}.files{color:#5a6473;font-size:.9em}footer{margin:3em 0 1em;color:#9aa3ae;font-size:.85em}";
+.chart svg{width:100%;height:auto;border:1px solid #e4e7ec}.files{color:#5a6473;font-size:.9em}footer{margin:3em 0 1em;color:#5a6473;font-size:.85em;border-top:1px solid #e4e7ec}\
+footer pre{white-space:pre-wrap;word-break:break-all;background:#f5f6f8;padding:.5em .8em}";

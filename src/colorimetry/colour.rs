@@ -253,20 +253,38 @@ impl RgbDisplay {
         multiply_3x3_and_vec3(self.to_rgb, xyz.map(|v| v / 100.0))
     }
 
-    /// Linear RGB of the colour with the largest chroma ≤ C that fits, at the
-    /// same L* and h_ab (bisection to 1e-9 of the chroma range).
-    fn reduce_chroma(&self, [l, c, h]: [f64; 3], white: [f64; 3]) -> [f64; 3] {
-        let rgb_at = |chroma| self.linear(lab_to_xyz(lch_to_lab([l, chroma, h]), white));
-        let (mut lo, mut hi) = (0.0, c);
-        while hi - lo > 1e-9 * c.max(1.0) {
+    /// Linear RGB (unclipped) of L*, C*ab, h_ab relative to `white`.
+    pub fn linear_lch(&self, lch: [f64; 3], white: [f64; 3]) -> [f64; 3] {
+        self.linear(lab_to_xyz(lch_to_lab(lch), white))
+    }
+
+    /// The largest chroma C*ab, up to `limit`, at which lightness `l` and hue
+    /// `h` (degrees) fit the gamut (bisection to 1e-9 of the range); 0 when
+    /// even the neutral of that lightness does not fit.
+    pub fn max_chroma(&self, l: f64, h: f64, white: [f64; 3], limit: f64) -> f64 {
+        let fits = |chroma| inside(self.linear_lch([l, chroma, h], white));
+        if !fits(0.0) {
+            return 0.0;
+        }
+        if fits(limit) {
+            return limit;
+        }
+        let (mut lo, mut hi) = (0.0, limit);
+        while hi - lo > 1e-9 * limit.max(1.0) {
             let mid = 0.5 * (lo + hi);
-            if inside(rgb_at(mid)) {
+            if fits(mid) {
                 lo = mid;
             } else {
                 hi = mid;
             }
         }
-        rgb_at(lo)
+        lo
+    }
+
+    /// Linear RGB of the colour with the largest chroma ≤ C that fits, at the
+    /// same L* and h_ab.
+    fn reduce_chroma(&self, [l, c, h]: [f64; 3], white: [f64; 3]) -> [f64; 3] {
+        self.linear_lch([l, self.max_chroma(l, h, white, c), h], white)
     }
 }
 

@@ -12,12 +12,20 @@ use serde_json::Value;
 
 use crate::error::{Error, Result};
 
-/// Aspecular angles of the built-in 45° set: −15, 15, 25, 45, 75, 110.
+/// Aspecular angles of the built-in set `"45"`, all with illumination at 45°
+/// in the plane of incidence: −15, 15, 25, 45, 75, 110, the in-plane
+/// geometries of ASTM E2194 (multiangle colour of metal-flake pigmented
+/// materials) and DIN 6175-2, with 45as-15 on the far side of the specular
+/// direction as used for interference pigments (ASTM E2539). The angles are
+/// from memory of these standards. Other geometries are listed by the user
+/// (names such as `45as15` or objects), see [`parse`].
 pub const SET_45: [f64; 6] = [-15.0, 15.0, 25.0, 45.0, 75.0, 110.0];
 
-/// Aspecular angles of the built-in 15° set: −45, −15, 15, 25, 45, 80
-/// (common practice of multi-angle instruments; the list is from memory).
-pub const SET_15: [f64; 6] = [-45.0, -15.0, 15.0, 25.0, 45.0, 80.0];
+/// What a `geometries` value may be, for error messages.
+pub const ACCEPTED: &str = "expected the set \"45\" (45as-15, 45as15, 45as25, 45as45, 45as75, 45as110: \
+ASTM E2194 / DIN 6175-2), a name ILLUMINATIONasASPECULAR such as 45as15 or 45as-15, or (in a scene) a list of \
+names and objects {illumination_deg, aspecular_deg} or {illumination_deg, detection_deg, \
+detection_azimuth_deg}";
 
 /// Detection directions must stay this far above the surface (degrees from
 /// the normal, exclusive).
@@ -138,32 +146,17 @@ impl Geometry {
     }
 }
 
-/// Parses one geometry name (`45as15`, `45as-15`, `15as80`) or a built-in set
-/// name (`45`, `15`) into geometries.
+/// Parses one geometry name (`45as15`, `45as-15`, `25as40`) or the built-in
+/// set name `45` ([`SET_45`]) into geometries.
 pub fn parse_name(text: &str, key: &str) -> Result<Vec<Geometry>> {
     let t = text.trim();
-    match t {
-        "45" => {
-            return SET_45
-                .iter()
-                .map(|&a| Geometry::aspecular(45.0, a))
-                .collect();
-        }
-        "15" => {
-            return SET_15
-                .iter()
-                .map(|&a| Geometry::aspecular(15.0, a))
-                .collect();
-        }
-        _ => {}
+    if t == "45" {
+        return SET_45
+            .iter()
+            .map(|&a| Geometry::aspecular(45.0, a))
+            .collect();
     }
-    let bad = || {
-        Error::invalid(
-            key,
-            format!("\"{t}\""),
-            "expected a set (45, 15) or a name ILLUMINATIONasASPECULAR such as 45as15 or 45as-15",
-        )
-    };
+    let bad = || Error::invalid(key, format!("\"{t}\""), ACCEPTED);
     let (ill, asp) = t.split_once("as").ok_or_else(bad)?;
     let ill: f64 = ill.trim().parse().map_err(|_| bad())?;
     let asp: f64 = asp.trim().parse().map_err(|_| bad())?;
@@ -184,13 +177,7 @@ pub fn parse(v: &Value, key: &str) -> Result<Vec<Geometry>> {
         Value::String(s) => return parse_name(s, key),
         Value::Number(n) => return parse_name(&n.to_string(), key),
         Value::Array(xs) => xs,
-        other => {
-            return Err(Error::invalid(
-                key,
-                other,
-                "expected a set name, a geometry name or a list",
-            ));
-        }
+        other => return Err(Error::invalid(key, other, ACCEPTED)),
     };
     if list.is_empty() {
         return Err(Error::invalid(key, "[]", "list at least one geometry"));
@@ -290,8 +277,10 @@ mod tests {
         assert!(far.detection[0] < 0.0);
         assert!((far.detection[2] - 65f64.to_radians().cos()).abs() < 1e-12);
         assert_eq!(parse_name("45", "g").unwrap().len(), 6);
-        assert_eq!(parse_name("15", "g").unwrap()[0].name, "15as-45");
-        for bad in ["45as", "as15", "45x15", "45as200", "90as10", "45as-50"] {
+        assert_eq!(parse_name("25as40", "g").unwrap()[0].name, "25as40");
+        for bad in [
+            "15", "45as", "as15", "45x15", "45as200", "90as10", "45as-50",
+        ] {
             assert!(parse_name(bad, "g").is_err(), "{bad}");
         }
     }
@@ -313,7 +302,7 @@ mod tests {
     fn lists_mix_names_sets_and_objects() {
         let v: Value = serde_json::from_str(
             r#"["45as15", {"illumination_deg": 45, "aspecular_deg": 110, "name": "far"},
-                {"illumination_deg": 45, "detection_deg": 30, "detection_azimuth_deg": 90}, "15"]"#,
+                {"illumination_deg": 45, "detection_deg": 30, "detection_azimuth_deg": 90}, "45"]"#,
         )
         .unwrap();
         let g = parse(&v, "coating.geometries").unwrap();
@@ -322,5 +311,23 @@ mod tests {
         assert_eq!(g[2].name, "45:30/90");
         let bad: Value = serde_json::from_str(r#"[{"illumination_deg": 45}]"#).unwrap();
         assert!(parse(&bad, "g").is_err());
+    }
+
+    /// Only "45" names a set; other bare numbers are refused with the
+    /// accepted forms listed.
+    #[test]
+    fn the_only_set_is_45() {
+        for v in [r#""15""#, "15", r#"["45as15", "15"]"#, "true"] {
+            let v: Value = serde_json::from_str(v).unwrap();
+            let e = parse(&v, "coating.geometries").unwrap_err().to_string();
+            assert!(
+                e.contains("45as-15, 45as15, 45as25, 45as45, 45as75, 45as110"),
+                "{e}"
+            );
+            assert!(
+                e.contains("ASTM E2194") && e.contains("aspecular_deg"),
+                "{e}"
+            );
+        }
     }
 }

@@ -12,7 +12,7 @@ mod geometry;
 mod model;
 
 pub use coating::{Background, Coating, KEYS as COATING_KEYS, Orientation};
-pub use geometry::{Geometry, SET_15, SET_45, parse as parse_geometries, parse_name};
+pub use geometry::{Geometry, SET_45, parse as parse_geometries, parse_name};
 pub use model::{Model, TABLE_STEP_DEG, Template};
 
 use crate::colorimetry::{Colour, ColourOptions, Weights};
