@@ -5,6 +5,7 @@
 //! The method follows Macleod, *Thin-Film Optical Filters* (4th ed., 2010),
 //! ch. 2, and Born & Wolf, *Principles of Optics* (7th ed., 1999), §1.6.
 
+mod bands;
 mod double_double;
 mod exact;
 mod field;
@@ -15,6 +16,7 @@ mod spectra;
 mod stack;
 mod trig;
 
+pub use bands::half_trace;
 pub use field::FieldPoint;
 pub use flux::Absorption;
 pub use medium::{MediumTerms, Probe, Sine, Wavenumber};

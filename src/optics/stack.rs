@@ -497,7 +497,7 @@ fn product_real(nodes: &[Node], terms: &[MediumTerms], k0: f64) -> RealPair {
 }
 
 /// The characteristic matrices (s, p) of `nodes`: M₁·M₂·…, incident side first.
-fn product(nodes: &[Node], terms: &[MediumTerms], at: &Probe) -> (Mat, Mat) {
+pub(super) fn product(nodes: &[Node], terms: &[MediumTerms], at: &Probe) -> (Mat, Mat) {
     let (mut ms, mut mp) = (Mat::identity(), Mat::identity());
     for node in nodes {
         let (ns, np) = match node {
