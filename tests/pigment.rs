@@ -123,7 +123,8 @@ fn lightness_flops_and_the_index_grows_as_the_spread_narrows() {
             &coating.geometries,
             &weights(&s),
             &ColourOptions::default(),
-        );
+        )
+        .unwrap();
         let l: Vec<f64> = ["45as15", "45as25", "45as45", "45as75", "45as110"]
             .iter()
             .map(|n| l_star(&m, n))
@@ -204,7 +205,8 @@ fn tio2_on_mica_runs_through_the_trade_sequence() {
             &coating.geometries,
             &weights(&s),
             &ColourOptions::default(),
-        );
+        )
+        .unwrap();
         let [_, c, h] = m.geometries[0].colour.lch;
         let name = if c < 8.0 {
             "silver"
