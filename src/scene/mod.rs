@@ -21,7 +21,7 @@ pub use coating::KEYS as COATING_KEYS;
 use json::Obj;
 pub use media::Medium;
 pub use stack::{Item, Layer, Repeat, Sigma, realise};
-pub use warnings::{Warning, WarningKind};
+pub use warnings::{COARSEST_COLOUR_STEP_NM, THICKEST_COHERENT_NM, Warning, WarningKind};
 
 /// Reads a file named in a scene (a CSV table), relative to the scene file.
 /// Returns the text or a one-line reason.
