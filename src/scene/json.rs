@@ -154,6 +154,11 @@ impl<'a> Obj<'a> {
         let path = path.into();
         match v {
             Value::Object(map) => Ok(Obj { map, path }),
+            other if path.is_empty() => Err(Error::invalid(
+                "(the scene)",
+                show(other),
+                "expected a JSON object",
+            )),
             other => Err(Error::invalid(path, show(other), "expected a JSON object")),
         }
     }
