@@ -6,7 +6,7 @@ use std::str::FromStr;
 use crate::colorimetry::{Colour, ColourOptions, Illuminant, Observer, Weights};
 use crate::error::{Error, Result};
 use crate::optics::{Rt, Spectra};
-use crate::scene::Scene;
+use crate::scene::{Scene, check_spectra};
 
 /// Which light reaches the observer.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -106,15 +106,12 @@ pub struct Viewing {
 }
 
 impl Viewing {
-    /// The scene's own illuminant and observer, reflected unpolarized light, sRGB.
+    /// The scene's own illuminant and observer, reflected unpolarized light,
+    /// sRGB. (Kept fallible for callers; a validated scene always has both.)
     pub fn of_scene(scene: &Scene) -> Result<Viewing> {
-        let illuminant = match &scene.illuminant_csv {
-            Some(text) => Illuminant::from_csv("illuminant.csv", text)?,
-            None => Illuminant::builtin(&scene.illuminant)?,
-        };
         Ok(Viewing {
-            illuminant,
-            observer: scene.observer.parse()?,
+            illuminant: scene.illuminant.clone(),
+            observer: scene.observer,
             side: Side::Reflect,
             polarization: Polarization::Unpolarized,
             options: ColourOptions::default(),
@@ -134,11 +131,33 @@ impl Viewing {
     }
 }
 
-/// The colour at every angle of `spectra`.
+/// The colour at every angle of `spectra`; a spectrum value that is not a
+/// finite number is an error naming its wavelength and angle.
 pub fn angle_colours(spectra: &Spectra, viewing: &Viewing) -> Result<Vec<Colour>> {
     let weights = viewing.weights(&spectra.wavelengths_nm)?;
+    check_spectra(spectra)?;
     let mut scratch = Vec::with_capacity(spectra.wavelengths_nm.len());
-    Ok((0..spectra.angles_deg.len())
-        .map(|a| viewing.colour(&weights, spectra.at_angle(a), &mut scratch))
-        .collect())
+    (0..spectra.angles_deg.len())
+        .map(|a| {
+            let colour = viewing.colour(&weights, spectra.at_angle(a), &mut scratch);
+            check_colour(&colour, &format!("{}°", spectra.angles_deg[a]))?;
+            Ok(colour)
+        })
+        .collect()
+}
+
+/// Refuses a colour with any value that is not a finite number (`at` names
+/// the angle or geometry).
+pub fn check_colour(c: &Colour, at: &str) -> Result<()> {
+    let values = c
+        .xyz
+        .iter()
+        .chain(&c.xy)
+        .chain(&c.lab)
+        .chain(&c.lch)
+        .chain(&c.rgb);
+    match values.copied().find(|v| !v.is_finite()) {
+        Some(v) => Err(Error::not_computable("colour", at, v)),
+        None => Ok(()),
+    }
 }

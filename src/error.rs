@@ -1,5 +1,6 @@
 //! Typed errors of the engine. The command line adds the file name and maps
-//! every variant to exit code 2 (bad input).
+//! [`Error::NotComputable`] to exit code 1 and every other variant to exit
+//! code 2 (bad input).
 
 use std::fmt::Display;
 
@@ -53,6 +54,17 @@ pub enum Error {
         /// Last tabulated wavelength.
         max_nm: f64,
     },
+    /// A result that is not a finite number at one point (a wavelength,
+    /// angle or geometry): it is refused rather than printed.
+    #[error("{what} cannot be computed at {at}: {why}")]
+    NotComputable {
+        /// The quantity, e.g. `R_s` or `colour`.
+        what: String,
+        /// The point, e.g. `512 nm, 30°`.
+        at: String,
+        /// What came out instead (NaN, infinity).
+        why: String,
+    },
 }
 
 impl Error {
@@ -69,6 +81,15 @@ impl Error {
             key: key.into(),
             value,
             why: why.into(),
+        }
+    }
+
+    /// [`Error::NotComputable`] for `value` of `what` at `at`.
+    pub fn not_computable(what: impl Into<String>, at: impl Into<String>, value: f64) -> Self {
+        Error::NotComputable {
+            what: what.into(),
+            at: at.into(),
+            why: format!("the result is {value}, not a finite number"),
         }
     }
 
@@ -102,7 +123,7 @@ impl Error {
                 min_nm,
                 max_nm,
             },
-            other @ Error::Syntax { .. } => other,
+            other @ (Error::Syntax { .. } | Error::NotComputable { .. }) => other,
         }
     }
 }

@@ -49,13 +49,13 @@ fn shape_mismatch(a: &[f64], b: &[f64]) -> f64 {
 #[test]
 fn narrow_spread_follows_the_engine_at_the_mirror_angle() {
     for n in [1.0, 1.5] {
-        let mut s = scene(&coating_scene(
+        let s = scene(&coating_scene(
             n,
             r#"{"binder": "clear", "platelet": [{"material": "tio2", "thickness_nm": 120}],
                 "tilt_sigma_deg": 0.5, "platelet_coverage": 0.002, "background": "black"}"#,
             5.0,
         ));
-        let coating = Coating::from_scene(&mut s).unwrap();
+        let coating = Coating::from_scene(&s).unwrap();
         let model = Model::new(&s, &coating).unwrap();
         let (ti, to) = (45f64.to_radians(), 44.4f64.to_radians());
         let g = Geometry::aspecular(45.0, 0.6).unwrap();
@@ -107,7 +107,7 @@ fn weights(s: &Scene) -> Weights {
 fn lightness_flops_and_the_index_grows_as_the_spread_narrows() {
     let mut flops = Vec::new();
     for sigma in [20.0, 12.0, 6.0] {
-        let mut s = scene(&coating_scene(
+        let s = scene(&coating_scene(
             1.5,
             &format!(
                 r#"{{"binder": "clear", "platelet": [{{"material": "tio2", "thickness_nm": 60}},
@@ -116,14 +116,15 @@ fn lightness_flops_and_the_index_grows_as_the_spread_narrows() {
             ),
             10.0,
         ));
-        let coating = Coating::from_scene(&mut s).unwrap();
+        let coating = Coating::from_scene(&s).unwrap();
         let model = Model::new(&s, &coating).unwrap();
         let m = measure(
             &model,
             &coating.geometries,
             &weights(&s),
             &ColourOptions::default(),
-        );
+        )
+        .unwrap();
         let l: Vec<f64> = ["45as15", "45as25", "45as45", "45as75", "45as110"]
             .iter()
             .map(|n| l_star(&m, n))
@@ -143,13 +144,13 @@ fn lightness_flops_and_the_index_grows_as_the_spread_narrows() {
 /// background.
 #[test]
 fn reciprocity_holds() {
-    let mut s = scene(
+    let s = scene(
         r#"{"coating": {"binder": "pmma",
               "platelet": [{"material": "tio2", "thickness_nm": 90}, {"material": "silver", "thickness_nm": 20}],
               "tilt_sigma_deg": 15, "platelet_coverage": 0.8, "background": "white"},
             "wavelengths_nm": {"from": 400, "to": 700, "step": 20}}"#,
     );
-    let coating = Coating::from_scene(&mut s).unwrap();
+    let coating = Coating::from_scene(&s).unwrap();
     let model = Model::new(&s, &coating).unwrap();
     let nw = s.wavelengths_nm.len();
     let pairs = [
@@ -186,7 +187,7 @@ fn reciprocity_holds() {
 fn tio2_on_mica_runs_through_the_trade_sequence() {
     let mut names: Vec<&str> = Vec::new();
     for t in (40..=170).step_by(10) {
-        let mut s = scene(&coating_scene(
+        let s = scene(&coating_scene(
             1.5,
             &format!(
                 r#"{{"binder": "clear", "platelet": [{{"material": "tio2", "thickness_nm": {t}}},
@@ -197,14 +198,15 @@ fn tio2_on_mica_runs_through_the_trade_sequence() {
             ),
             10.0,
         ));
-        let coating = Coating::from_scene(&mut s).unwrap();
+        let coating = Coating::from_scene(&s).unwrap();
         let model = Model::new(&s, &coating).unwrap();
         let m = measure(
             &model,
             &coating.geometries,
             &weights(&s),
             &ColourOptions::default(),
-        );
+        )
+        .unwrap();
         let [_, c, h] = m.geometries[0].colour.lch;
         let name = if c < 8.0 {
             "silver"
@@ -387,7 +389,7 @@ fn bad_coating_sections_are_refused_with_the_key() {
     ] {
         let text = coating_scene(1.5, coating, 10.0);
         let err = Scene::from_json(&text, &|_| Err("no files".into()))
-            .and_then(|mut s| Coating::from_scene(&mut s).map(|_| ()))
+            .and_then(|s| Coating::from_scene(&s).map(|_| ()))
             .unwrap_err()
             .to_string();
         assert!(err.contains(key), "{err} should name {key}");
@@ -403,13 +405,13 @@ fn bad_coating_sections_are_refused_with_the_key() {
 #[test]
 fn a_white_background_alone_conserves_energy() {
     for n in [1.0, 1.5] {
-        let mut s = scene(&coating_scene(
+        let s = scene(&coating_scene(
             n,
             r#"{"binder": "clear", "platelet": [{"material": "tio2", "thickness_nm": 50}],
                 "platelet_coverage": 0, "background": "white"}"#,
             50.0,
         ));
-        let coating = Coating::from_scene(&mut s).unwrap();
+        let coating = Coating::from_scene(&s).unwrap();
         let model = Model::new(&s, &coating).unwrap();
         let nw = s.wavelengths_nm.len();
         let theta_i = 30f64.to_radians();

@@ -116,8 +116,8 @@ fn with_design(s: &Scene, x: &[f64]) -> Scene {
 
 /// Lab at `geometries` by the full model of the scene's own coating.
 fn labs(s: &Scene, geometries: &[Geometry]) -> Vec<[f64; 3]> {
-    let mut s = s.clone();
-    let coating = lamella::pigment::Coating::from_scene(&mut s).unwrap();
+    let s = s.clone();
+    let coating = lamella::pigment::Coating::from_scene(&s).unwrap();
     let model = Model::new(&s, &coating).unwrap();
     colours(&model, geometries, &weights(&s), &ColourOptions::default())
         .into_iter()
@@ -225,8 +225,8 @@ fn fit_recovers_platelet_thicknesses_from_multi_geometry_data() {
     let s = two_free_layers();
     let truth = [135.0, 320.0];
     let known = with_design(&s, &truth);
-    let mut k = known.clone();
-    let coating = lamella::pigment::Coating::from_scene(&mut k).unwrap();
+    let k = known.clone();
+    let coating = lamella::pigment::Coating::from_scene(&k).unwrap();
     let model = Model::new(&k, &coating).unwrap();
     let noise = Normal::new(0.0, 0.002).unwrap();
     let mut rng = rand::rngs::StdRng::seed_from_u64(4);
@@ -350,8 +350,8 @@ fn cli_takes_geometry_targets_and_measurements() {
     assert_eq!(report["geometries"][2]["geometry"], "45as110");
     assert!(report["geometries"][0]["delta_e00_p95"].as_f64().unwrap() > 0.0);
     // Fit: a geometry column of reflectance factors.
-    let mut k = s.clone();
-    let coating = lamella::pigment::Coating::from_scene(&mut k).unwrap();
+    let k = s.clone();
+    let coating = lamella::pigment::Coating::from_scene(&k).unwrap();
     let model = Model::new(&k, &coating).unwrap();
     let mut csv = String::from("geometry,wavelength_nm,R\n");
     for g in &coating.geometries {

@@ -54,8 +54,8 @@ fn hit_sphere(eye: Vec3, dir: Vec3) -> Option<Vec3> {
 fn directional_light_pixels_follow_the_platelet_model_and_multiangle() {
     let size = 128u32;
     let scene = coating_scene("{\"reflectance\": 0.2}");
-    let mut s = scene.clone();
-    let coating = Coating::from_scene(&mut s).unwrap();
+    let s = scene.clone();
+    let coating = Coating::from_scene(&s).unwrap();
     let model = Model::new(&s, &coating).unwrap();
     let weights = lamella::angle_colour::Viewing::of_scene(&s)
         .unwrap()
@@ -212,8 +212,8 @@ fn flat_platelets_in_a_white_sky_mirror_it_with_their_reflectance() {
         "wavelengths_nm": {"from": 380, "to": 780, "step": 10},
         "illuminant": "D65", "observer": "CIE1964_10"}"#;
     let scene = Scene::from_json(text, &|p: &str| Err(format!("no file {p}"))).unwrap();
-    let mut s = scene.clone();
-    let coating = Coating::from_scene(&mut s).unwrap();
+    let s = scene.clone();
+    let coating = Coating::from_scene(&s).unwrap();
     let size = 96u32;
     let settings = Settings {
         width: size,

@@ -9,7 +9,6 @@ use super::style::{self, Caption, INK, SERIES, Style, frame, mesh, short};
 use super::{Chart, DrawResult};
 use crate::angle_colour::{Polarization, Side, Viewing};
 use crate::error::{Error, Result};
-use crate::optics;
 use crate::scene::Scene;
 
 /// One (scene, angle, polarization) curve.
@@ -93,12 +92,7 @@ impl SpectraChart {
         let mut legend = Vec::new();
         let mut curves = Vec::new();
         for (scene, _) in scenes {
-            let spectra = optics::compute(
-                &scene.realisations(&scene.stack),
-                &scene.indices(&scene.wavelengths_nm)?,
-                &scene.wavelengths_nm,
-                angles,
-            );
+            let spectra = scene.spectra_at(angles)?;
             for (a, angle) in angles.iter().enumerate() {
                 let series = legend.len();
                 legend.push(if scenes.len() == 1 {

@@ -12,7 +12,7 @@ use lamella::scene::Scene;
 
 use super::color::ViewArgs;
 use super::design_args::Progress;
-use super::{CliResult, Failure, load_scene, write_out};
+use super::{CliResult, Failure, film_scene, load_scene, write_out};
 
 /// The kind of chart.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
@@ -136,6 +136,7 @@ pub fn load_all(paths: &[PathBuf], view: &ViewArgs) -> Result<Vec<(Scene, Viewin
     let mut out: Vec<(Scene, Viewing)> = Vec::new();
     for p in paths {
         let scene = load_scene(p)?;
+        film_scene(p, &scene, "chart")?;
         let viewing = view.viewing(&scene, p)?;
         if let Some((_, first)) = out.first()
             && (first.illuminant.name() != viewing.illuminant.name()
@@ -178,7 +179,7 @@ pub fn run(args: &Args) -> CliResult {
     }
     let scenes = load_all(&paths, &args.view)?;
     let pairs: Vec<(&Scene, &Viewing)> = scenes.iter().map(|(s, v)| (s, v)).collect();
-    let at = |e: lamella::Error| Failure::input(format!("{}: {e}", paths[0].display()));
+    let at = |e| Failure::scene(&paths[0], e);
     let (scene, viewing) = pairs[0];
     let bytes = match args.kind {
         Kind::AngleStrip => {

@@ -9,7 +9,7 @@ use lamella::colorimetry::{
 };
 use serde_json::{Value, json};
 
-use super::{CliResult, Failure, RecordFormat, load_scene, write_out};
+use super::{CliResult, Failure, RecordFormat, film_scene, load_scene, write_out};
 
 /// Flags shared by every command that turns spectra into colour.
 #[derive(Debug, Clone, clap::Args)]
@@ -77,8 +77,9 @@ pub fn run(
     out: Option<&PathBuf>,
 ) -> CliResult {
     let scene = load_scene(scene_path)?;
+    film_scene(scene_path, &scene, "color")?;
     let viewing = view.viewing(&scene, scene_path)?;
-    let bad = |e: lamella::Error| Failure::input(format!("{}: {e}", scene_path.display()));
+    let bad = |e| Failure::scene(scene_path, e);
     let spectra = scene.spectra().map_err(bad)?;
     let colours = angle_colours(&spectra, &viewing).map_err(bad)?;
     let mut records = records(&spectra.angles_deg, &colours);

@@ -80,7 +80,7 @@ pub fn run(args: &MatchArgs) -> CliResult {
         .ok_or_else(|| Failure::input("give --target-lab L,a,b or --target-hex #RRGGBB"))?;
     let main = match (&args.geometry, args.angle) {
         (Some(g), _) => geometry(g, "--geometry")?,
-        (None, _) if scene.document.get("coating").is_some() => {
+        (None, _) if scene.coating.is_some() => {
             return Err(Failure::input(
                 "this scene has a coating: give the target's geometry with --geometry (e.g. 45as15)",
             ));

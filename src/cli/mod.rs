@@ -16,7 +16,7 @@ pub mod tolerance;
 
 use std::path::{Path, PathBuf};
 
-use lamella::scene::Scene;
+use lamella::scene::{GRID_BYTES_PER_POINT, Scene, WarningKind};
 
 /// Output format of commands that print one record per angle or geometry.
 #[derive(Debug, Clone, Copy, clap::ValueEnum)]
@@ -53,6 +53,18 @@ impl Failure {
         }
     }
 
+    /// An engine error about the scene at `path`: exit code 1 for a value
+    /// that cannot be computed, 2 (bad input) for anything else.
+    pub fn scene(path: &Path, e: lamella::Error) -> Self {
+        Failure {
+            code: match e {
+                lamella::Error::NotComputable { .. } => 1,
+                _ => 2,
+            },
+            message: format!("{}: {e}", path.display()),
+        }
+    }
+
     /// An I/O failure writing output (exit code 1).
     pub fn io(path: &Path, e: std::io::Error) -> Self {
         Failure {
@@ -65,8 +77,19 @@ impl Failure {
 /// Result of a command.
 pub type CliResult = Result<(), Failure>;
 
-/// Reads and validates a scene file; table paths are relative to it.
+/// Reads and validates a scene file for a command that computes colour;
+/// table paths are relative to it. Its warnings go to stderr.
 pub fn load_scene(path: &Path) -> Result<Scene, Failure> {
+    load(path, true)
+}
+
+/// Reads and validates a scene file for a command that computes spectra
+/// only: warnings that concern colour alone are not shown.
+pub fn load_spectral_scene(path: &Path) -> Result<Scene, Failure> {
+    load(path, false)
+}
+
+fn load(path: &Path, colour: bool) -> Result<Scene, Failure> {
     let text = std::fs::read_to_string(path)
         .map_err(|e| Failure::input(format!("{}: cannot read scene: {e}", path.display())))?;
     let base: PathBuf = path.parent().map(Path::to_path_buf).unwrap_or_default();
@@ -74,7 +97,22 @@ pub fn load_scene(path: &Path) -> Result<Scene, Failure> {
         std::fs::read_to_string(base.join(rel))
             .map_err(|e| format!("cannot read {}: {e}", base.join(rel).display()))
     };
-    Scene::from_json(&text, &load).map_err(|e| Failure::input(format!("{}: {e}", path.display())))
+    let scene = Scene::from_json(&text, &load)
+        .map_err(|e| Failure::input(format!("{}: {e}", path.display())))?;
+    for w in &scene.warnings {
+        if colour || w.kind != WarningKind::CoarseStep {
+            eprintln!("lamella: warning: {}: {w}", path.display());
+        }
+    }
+    Ok(scene)
+}
+
+/// Refuses a coating-only scene and a grid too large to hold, before any work.
+pub fn film_scene(path: &Path, scene: &Scene, what: &str) -> Result<(), Failure> {
+    scene
+        .require_film()
+        .and_then(|()| scene.check_grid_size(scene.angles_deg.len(), GRID_BYTES_PER_POINT, what))
+        .map_err(|e| Failure::scene(path, e))
 }
 
 /// Writes output, mapping failures to exit code 1.

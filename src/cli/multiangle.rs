@@ -4,7 +4,8 @@
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 
-use lamella::pigment::{Coating, Measurement, Model, measure, parse_name};
+use lamella::pigment::{Coating, Measurement, Model, TABLE_STEP_DEG, measure, parse_name};
+use lamella::scene::GRID_BYTES_PER_POINT;
 use serde_json::{Value, json};
 
 use super::color::ViewArgs;
@@ -40,8 +41,9 @@ specular direction toward the normal (30° on the specular side); 45as-15 detect
 15° on the illumination side. \"45\" is the only named set: list any other geometries.
 Output per geometry: name, illumination_deg, aspecular_deg, in_plane, X, Y, Z, L, a, b,
 C, h, srgb, hex, in_gamut, reflectance_factor (with --spectra). Also flop_index =
-2.69 (L*15 − L*110)^1.11 / (L*45)^0.86 from 45as15, 45as45, 45as110 (null with
-flop_note otherwise), hue_travel_deg (net hue change along the listed geometries) and
+2.69 (L*15 − L*110)^1.11 / (L*45)^0.86 from 45as15, 45as45, 45as110 (left out,
+with flop_note saying why, otherwise), hue_travel_deg (net hue change along the
+listed geometries; left out for a single geometry) and
 surface_gloss_Y (the binder surface's mirror reflection, excluded from every geometry).
 Reflectance factor: radiance relative to a perfect white diffuser under the same
 geometry (Y = 100 for the perfect diffuser).";
@@ -79,9 +81,17 @@ pub fn run(
     args: &Args,
     out: Option<&PathBuf>,
 ) -> CliResult {
-    let bad = |e: lamella::Error| Failure::input(format!("{}: {e}", scene_path.display()));
-    let mut scene = load_scene(scene_path)?;
-    let mut coating = Coating::from_scene(&mut scene).map_err(bad)?;
+    let bad = |e| Failure::scene(scene_path, e);
+    let scene = load_scene(scene_path)?;
+    let mut coating = Coating::from_scene(&scene).map_err(bad)?;
+    // The platelet model tabulates every wavelength at each internal angle.
+    scene
+        .check_grid_size(
+            (90.0 / TABLE_STEP_DEG) as usize + 1,
+            GRID_BYTES_PER_POINT,
+            "multiangle",
+        )
+        .map_err(bad)?;
     if let Some(list) = &args.geometries {
         coating.geometries = list
             .split(',')
@@ -100,7 +110,7 @@ pub fn run(
     let viewing = view.viewing(&scene, scene_path)?;
     let weights = viewing.weights(&scene.wavelengths_nm).map_err(bad)?;
     let model = Model::new(&scene, &coating).map_err(bad)?;
-    let m = measure(&model, &coating.geometries, &weights, &viewing.options);
+    let m = measure(&model, &coating.geometries, &weights, &viewing.options).map_err(bad)?;
     let text = match format {
         RecordFormat::Json => {
             let mut doc = json!({
@@ -108,13 +118,22 @@ pub fn run(
                 "illuminant": viewing.illuminant.name(),
                 "observer": viewing.observer.name(),
                 "geometries": records(&m, args.spectra),
-                "flop_index": m.flop_index,
-                "flop_note": m.flop_note,
-                "hue_travel_deg": m.hue_travel_deg,
-                "surface_gloss_Y": m.surface_gloss_y.iter()
-                    .map(|(a, y)| json!({"illumination_deg": a, "Y": y}))
-                    .collect::<Vec<_>>(),
             });
+            // A summary that is undefined is left out (its note says why),
+            // never written as null.
+            match (m.flop_index, &m.flop_note) {
+                (Some(f), _) => doc["flop_index"] = json!(f),
+                (None, Some(note)) => doc["flop_note"] = json!(note),
+                (None, None) => {}
+            }
+            if let Some(h) = m.hue_travel_deg {
+                doc["hue_travel_deg"] = json!(h);
+            }
+            doc["surface_gloss_Y"] = m
+                .surface_gloss_y
+                .iter()
+                .map(|(a, y)| json!({"illumination_deg": a, "Y": y}))
+                .collect();
             if args.spectra {
                 doc["wavelength_nm"] = json!(scene.wavelengths_nm);
             }

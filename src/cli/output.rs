@@ -1,9 +1,43 @@
 //! Writing results: to stdout, or atomically to a file (temporary file in the
-//! same folder, then rename), so a reader never sees half a file.
+//! same folder, then rename), so a reader never sees half a file. A run
+//! stopped by SIGINT, SIGTERM or SIGHUP removes its temporary files and exits
+//! with 128 + the signal number (130, 143, 129).
 
 use std::fs;
 use std::io::{self, Write};
-use std::path::Path;
+use std::path::{Path, PathBuf};
+use std::sync::{Mutex, MutexGuard, Once, PoisonError};
+
+use signal_hook::consts::{SIGHUP, SIGINT, SIGTERM};
+use signal_hook::iterator::Signals;
+
+/// Temporary files being written; a signal removes them before exiting.
+static TEMPORARY: Mutex<Vec<PathBuf>> = Mutex::new(Vec::new());
+
+fn temporary() -> MutexGuard<'static, Vec<PathBuf>> {
+    TEMPORARY.lock().unwrap_or_else(PoisonError::into_inner)
+}
+
+/// Starts, once, the thread that waits for a stopping signal, removes the
+/// temporary files and exits. Files are created, renamed and removed under
+/// the same lock, so none is left behind whenever the signal comes.
+fn clean_up_on_signal() {
+    static START: Once = Once::new();
+    START.call_once(|| {
+        let Ok(mut signals) = Signals::new([SIGINT, SIGTERM, SIGHUP]) else {
+            return;
+        };
+        std::thread::spawn(move || {
+            if let Some(signal) = signals.forever().next() {
+                let files = temporary();
+                for f in files.iter() {
+                    let _ = fs::remove_file(f);
+                }
+                std::process::exit(128 + signal);
+            }
+        });
+    });
+}
 
 /// Writes the concatenated `chunks` to `path` atomically, or to stdout when
 /// `path` is `None`. Special files such as `/dev/null` are written in place.
@@ -42,9 +76,20 @@ pub fn emit_with(
         name.to_string_lossy(),
         std::process::id()
     ));
-    let result = fs::File::create(&tmp)
+    clean_up_on_signal();
+    let created = {
+        let mut files = temporary();
+        let file = fs::File::create(&tmp);
+        if file.is_ok() {
+            files.push(tmp.clone());
+        }
+        file
+    };
+    let result = created
         .and_then(|mut f| write_all(&mut f))
-        .and_then(|_| fs::rename(&tmp, path));
+        .and_then(|()| fs::rename(&tmp, path));
+    let mut files = temporary();
+    files.retain(|f| f != &tmp);
     if result.is_err() {
         let _ = fs::remove_file(&tmp);
     }

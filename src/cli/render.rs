@@ -7,6 +7,7 @@ use indicatif::{ProgressBar, ProgressStyle};
 use lamella::render::{
     Base, Light, Mesh, Preview, Settings, Shape, builtin_mesh, parse_size, parse_tone,
 };
+use lamella::scene::Scene;
 
 use super::{CliResult, Failure, load_scene, write_out};
 
@@ -83,19 +84,12 @@ pub struct RenderArgs {
 }
 
 impl RenderArgs {
-    /// The scene's preview settings with these flags applied; also returns
-    /// the folder a mesh path is relative to.
-    fn settings(&self, document: &serde_json::Value) -> Result<(Settings, PathBuf), String> {
-        let mut s = Settings::from_document(document).map_err(|e| e.to_string())?;
-        let mut mesh_dir = self
-            .scene
-            .parent()
-            .map(Path::to_path_buf)
-            .unwrap_or_default();
+    /// The scene's preview settings with these flags applied.
+    fn settings(&self, scene: &Scene) -> Result<Settings, String> {
+        let mut s = scene.preview.clone().unwrap_or_default();
         let flag = |name: &str, e: lamella::Error| format!("--{name}: {e}");
         if let Some(t) = &self.shape {
             s.shape = t.parse().map_err(|e| flag("shape", e))?;
-            mesh_dir = PathBuf::new();
         }
         if let Some(t) = &self.size {
             (s.width, s.height) = parse_size(t).map_err(|e| flag("size", e))?;
@@ -122,7 +116,7 @@ impl RenderArgs {
         s.view.distance = self.distance.or(s.view.distance);
         s.turntable = self.turntable.unwrap_or(s.turntable);
         s.check().map_err(|e| e.to_string())?;
-        Ok((s, mesh_dir))
+        Ok(s)
     }
 }
 
@@ -130,20 +124,22 @@ impl RenderArgs {
 pub fn run(args: &RenderArgs) -> CliResult {
     let scene = load_scene(&args.scene)?;
     let at_scene = |e: String| Failure::input(format!("{}: {e}", args.scene.display()));
-    let (settings, mesh_dir) = args.settings(&scene.document).map_err(at_scene)?;
+    let settings = args.settings(&scene).map_err(at_scene)?;
     let mesh = match (builtin_mesh(&settings.shape), &settings.shape) {
         (Some(m), _) => m,
+        // The scene's own mesh was read with the scene.
+        (None, Shape::Mesh(_)) if args.shape.is_none() => {
+            scene.preview_mesh.clone().expect("read with the preview")
+        }
         (None, Shape::Mesh(path)) => {
-            let file = mesh_dir.join(path);
-            let bytes = std::fs::read(&file).map_err(|e| {
-                Failure::input(format!("{}: cannot read mesh: {e}", file.display()))
-            })?;
-            Mesh::from_obj(path, &bytes)
-                .map_err(|e| Failure::input(format!("{}: {e}", file.display())))?
+            let bytes = std::fs::read(path)
+                .map_err(|e| Failure::input(format!("{path}: cannot read mesh: {e}")))?;
+            Mesh::from_obj(path, &bytes).map_err(|e| Failure::input(format!("{path}: {e}")))?
         }
         (None, _) => unreachable!("every other shape is built in"),
     };
-    let preview = Preview::new(&scene, &mesh, &settings).map_err(|e| at_scene(e.to_string()))?;
+    let preview =
+        Preview::new(&scene, &mesh, &settings).map_err(|e| Failure::scene(&args.scene, e))?;
     let frames = preview.frames();
     let bar = if std::io::stderr().is_terminal() && settings.width * settings.height >= 250_000 {
         ProgressBar::new(settings.height as u64 * frames as u64)

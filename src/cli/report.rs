@@ -78,8 +78,9 @@ struct Drawn {
 /// Runs the command.
 pub fn run(args: &Args) -> CliResult {
     let scene = load_scene(&args.scene)?;
+    super::film_scene(&args.scene, &scene, "report")?;
     let viewing = args.view.viewing(&scene, &args.scene)?;
-    let at = |e: lamella::Error| Failure::input(format!("{}: {e}", args.scene.display()));
+    let at = |e| Failure::scene(&args.scene, e);
     std::fs::create_dir_all(&args.output).map_err(|e| Failure::io(&args.output, e))?;
     let pair = [(&scene, &viewing)];
     let bar = Progress::new(6, "charts");

@@ -2,12 +2,14 @@
 
 use std::path::Path;
 
+use std::io::{self, Write};
+use std::sync::Mutex;
+
 use lamella::optics::{Rows, Rt};
+use lamella::scene::{check_point, check_spectra};
 use rayon::prelude::*;
 
-use std::io::{self, Write};
-
-use super::{CliResult, Failure, load_scene, output};
+use super::{CliResult, Failure, load_spectral_scene, output};
 
 /// Output format of the spectrum.
 #[derive(Debug, Clone, Copy, clap::ValueEnum)]
@@ -33,14 +35,49 @@ pub const COLUMNS: [&str; 9] = [
 
 /// Runs the command.
 pub fn run(scene_path: &Path, format: Format, out: Option<&Path>) -> CliResult {
-    let scene = load_scene(scene_path)?;
-    let written = scene
-        .with_rows(|rows| match format {
-            Format::Csv => output::emit_with(out, |w| write_csv(rows, w)),
-            Format::Json => output::emit(out, &[json(&scene.title, rows).into_bytes()]),
-        })
-        .map_err(|e| Failure::input(format!("{}: {e}", scene_path.display())))?;
-    written.map_err(|e| Failure::io(out.unwrap_or(Path::new("<stdout>")), e))
+    let scene = load_spectral_scene(scene_path)?;
+    let at_scene = |e| Failure::scene(scene_path, e);
+    scene.require_film().map_err(at_scene)?;
+    let written = match format {
+        Format::Csv => scene
+            .with_rows(|rows| output::emit_with(out, |w| write_csv(rows, w)))
+            .map_err(at_scene)?,
+        Format::Json => {
+            scene
+                .check_grid_size(
+                    scene.angles_deg.len(),
+                    JSON_BYTES_PER_POINT,
+                    "spectrum --format json",
+                )
+                .map_err(at_scene)?;
+            let text = scene
+                .with_rows(|rows| json(&scene.title, rows))
+                .and_then(|t| t)
+                .map_err(at_scene)?;
+            output::emit(out, &[text.into_bytes()])
+        }
+    };
+    written.map_err(|e| match engine_error(e) {
+        Ok(why) => Failure::scene(scene_path, why),
+        Err(e) => Failure::io(out.unwrap_or(Path::new("<stdout>")), e),
+    })
+}
+
+/// Bytes a grid point takes in the JSON form: R and T, seven numbers as
+/// JSON values and as text.
+const JSON_BYTES_PER_POINT: u64 = 400;
+
+/// The engine error inside an I/O error from [`write_csv`], or the I/O
+/// error itself.
+fn engine_error(e: io::Error) -> Result<lamella::Error, io::Error> {
+    if !e
+        .get_ref()
+        .is_some_and(|inner| inner.is::<lamella::Error>())
+    {
+        return Err(e);
+    }
+    let inner = e.into_inner().expect("checked above");
+    Ok(*inner.downcast().expect("checked above"))
 }
 
 /// The seven result columns after wavelength and angle.
@@ -55,7 +92,9 @@ const PIECE: usize = 512;
 /// Writes the CSV. Pieces of the grid are computed and formatted in parallel
 /// into reused buffers, a batch at a time, then written in order, so memory
 /// stays bounded however large the grid. Numbers print in the shortest form
-/// that reads back to the same f64.
+/// that reads back to the same f64. A value that is not finite stops the
+/// output before its batch is written, with the engine error (naming the
+/// point) inside the I/O error.
 fn write_csv(rows: &Rows, out: &mut dyn Write) -> io::Result<()> {
     out.write_all(COLUMNS.join(",").as_bytes())?;
     out.write_all(b"\n")?;
@@ -69,6 +108,7 @@ fn write_csv(rows: &Rows, out: &mut dyn Write) -> io::Result<()> {
     let per_angle = nw.div_ceil(PIECE);
     let pieces = na * per_angle;
     let mut buffers = vec![Vec::new(); 4 * rayon::current_num_threads()];
+    let failed = Mutex::new(None);
     for first in (0..pieces).step_by(buffers.len()) {
         let count = buffers.len().min(pieces - first);
         buffers[..count].par_iter_mut().enumerate().for_each_init(
@@ -83,6 +123,12 @@ fn write_csv(rows: &Rows, out: &mut dyn Write) -> io::Result<()> {
                 let piece = &mut values_buf[..PIECE.min(nw - w0)];
                 rows.fill(a, w0, piece);
                 buf.clear();
+                if let Some(e) = (w0..).zip(piece.iter()).find_map(|(w, x)| {
+                    check_point(x, rows.wavelengths_nm()[w], rows.angles_deg()[a]).err()
+                }) {
+                    *failed.lock().expect("no panics while held") = Some(e);
+                    return;
+                }
                 for (w, x) in (w0..).zip(piece.iter()) {
                     buf.extend_from_slice(wavelengths[w].as_bytes());
                     buf.push(b',');
@@ -105,13 +151,19 @@ fn write_csv(rows: &Rows, out: &mut dyn Write) -> io::Result<()> {
                 }
             },
         );
+        if let Some(e) = failed.lock().expect("no panics while held").take() {
+            return Err(io::Error::other(e));
+        }
         buffers[..count].iter().try_for_each(|b| out.write_all(b))?;
     }
     Ok(())
 }
 
-fn json(title: &str, rows: &Rows) -> String {
+/// The whole grid as one JSON object; a value that is not finite is an
+/// error naming its point.
+fn json(title: &str, rows: &Rows) -> lamella::Result<String> {
     let s = rows.all();
+    check_spectra(&s)?;
     let per_angle = |col: usize| -> serde_json::Value {
         (0..s.angles_deg.len())
             .map(|a| {
@@ -131,5 +183,5 @@ fn json(title: &str, rows: &Rows) -> String {
     for (col, name) in COLUMNS[2..].iter().enumerate() {
         doc.insert((*name).into(), per_angle(col));
     }
-    serde_json::to_string(&serde_json::Value::Object(doc)).expect("finite numbers serialise")
+    Ok(serde_json::to_string(&serde_json::Value::Object(doc)).expect("finite numbers serialise"))
 }

@@ -35,6 +35,7 @@ impl Weights {
         if wavelengths_nm.is_empty() {
             return Err(Error::invalid("wavelengths", "(none)", "the grid is empty"));
         }
+        Weights::check_light(wavelengths_nm, illuminant, observer)?;
         let cmfs = observer.cmfs();
         let light = illuminant.table();
         let n = wavelengths_nm.len();
@@ -51,17 +52,7 @@ impl Weights {
                 wz.push(0.0);
                 continue;
             };
-            let s = light.at(0, wl).ok_or_else(|| {
-                let (lo, hi) = light.span();
-                Error::invalid(
-                    format!("wavelengths[{i}]"),
-                    wl,
-                    format!(
-                        "outside the table of illuminant {} ({lo}–{hi} nm) where the observer still sees; limit the grid to that range",
-                        illuminant.name()
-                    ),
-                )
-            })?;
+            let s = light.at(0, wl).expect("checked: the light covers the grid");
             let d = interval(wavelengths_nm, i);
             wx.push(s * x * d);
             wy.push(s * y * d);
@@ -90,6 +81,34 @@ impl Weights {
             ));
         }
         Ok(Weights { wx, wy, wz, white })
+    }
+
+    /// Refuses a grid point the observer sees but the illuminant's table
+    /// does not cover, naming it (no silent zero weight where it matters).
+    pub fn check_light(
+        wavelengths_nm: &[f64],
+        illuminant: &Illuminant,
+        observer: Observer,
+    ) -> Result<()> {
+        let (cmfs, light) = (observer.cmfs(), illuminant.table());
+        match wavelengths_nm
+            .iter()
+            .enumerate()
+            .find(|&(_, &wl)| cmfs.at(1, wl).is_some() && light.at(0, wl).is_none())
+        {
+            None => Ok(()),
+            Some((i, &wl)) => {
+                let (lo, hi) = light.span();
+                Err(Error::invalid(
+                    format!("wavelengths[{i}]"),
+                    wl,
+                    format!(
+                        "outside the table of illuminant {} ({lo}–{hi} nm) where the observer still sees; limit the grid to that range",
+                        illuminant.name()
+                    ),
+                ))
+            }
+        }
     }
 
     /// Tristimulus values X, Y, Z (0–100 scale) of a reflectance or

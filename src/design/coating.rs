@@ -39,15 +39,10 @@ impl At {
     }
 }
 
-/// The scene and its coating when it has a `coating` section (materials
-/// used only by the platelet added to the scene's media).
+/// The scene and its coating when it has a `coating` section (the
+/// platelet's materials are among the scene's media).
 pub fn with_coating(scene: &Scene) -> Result<(Scene, Option<Coating>)> {
-    let mut scene = scene.clone();
-    if scene.document.get("coating").is_none() {
-        return Ok((scene, None));
-    }
-    let coating = Coating::from_scene(&mut scene)?;
-    Ok((scene, Some(coating)))
+    Ok((scene.clone(), scene.coating.clone()))
 }
 
 /// The layers the design tools work on: the coating's platelet, or the

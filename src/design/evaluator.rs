@@ -47,7 +47,7 @@ pub struct Output<'a> {
 
 /// Evaluates designs of one scene on a fixed wavelength grid and angle list.
 pub struct Evaluator {
-    scene: Scene,
+    scene: Box<Scene>,
     vars: Vec<Variable>,
     index: Vec<Vec<Complex64>>,
     wavelengths_nm: Vec<f64>,
@@ -91,7 +91,7 @@ impl Evaluator {
             .is_none()
             .then(|| fast_template(scene, &vars));
         Ok(Evaluator {
-            scene: scene.clone(),
+            scene: Box::new(scene.clone()),
             vars,
             index,
             wavelengths_nm: wavelengths_nm.to_vec(),

@@ -1,8 +1,9 @@
 //! Effect-pigment coatings: interference platelets in a clear binder over a
 //! background, and their colour at the multi-angle measurement geometries.
 //!
-//! Typical use: `Coating::from_scene(&mut scene)`, `Model::new(&scene,
-//! &coating)`, then [`measure`] at the coating's geometries. Design tools
+//! Typical use: `Model::new(&scene, coating)` with the scene's validated
+//! [`crate::scene::Scene::coating`], then [`measure`] at the coating's
+//! geometries. Design tools
 //! build a [`Template`] for the geometries they target, a model per edited
 //! platelet from it, and call [`colours`]; renderers tabulate
 //! [`Model::reflectance_parts`] over pairs of directions.
@@ -11,11 +12,13 @@ mod coating;
 mod geometry;
 mod model;
 
-pub use coating::{Background, Coating, KEYS as COATING_KEYS, Orientation};
+pub use coating::{Background, Coating, Orientation};
 pub use geometry::{Geometry, SET_45, parse as parse_geometries, parse_name};
 pub use model::{Model, TABLE_STEP_DEG, Template};
 
+use crate::angle_colour::check_colour;
 use crate::colorimetry::{Colour, ColourOptions, Weights};
+use crate::error::{Error, Result};
 
 /// The colour of the coating at one geometry.
 #[derive(Debug, Clone)]
@@ -81,14 +84,31 @@ fn wrap180(d: f64) -> f64 {
 }
 
 /// Colours at every geometry, the flop index, the hue travel and the
-/// surface gloss.
+/// surface gloss; a reflectance factor or colour that is not a finite number
+/// is an error naming its geometry.
 pub fn measure(
     model: &Model,
     geometries: &[Geometry],
     weights: &Weights,
     options: &ColourOptions,
-) -> Measurement {
+) -> Result<Measurement> {
     let list = colours(model, geometries, weights, options);
+    for g in &list {
+        let at = &g.geometry.name;
+        let wavelengths = model.wavelengths_nm();
+        if let Some((w, rf)) = wavelengths
+            .iter()
+            .zip(&g.reflectance_factor)
+            .find(|(_, rf)| !rf.is_finite())
+        {
+            return Err(Error::not_computable(
+                "reflectance factor",
+                format!("{at}, {w} nm"),
+                *rf,
+            ));
+        }
+        check_colour(&g.colour, at)?;
+    }
     let lightness = |asp: f64| {
         list.iter()
             .find(|g| {
@@ -121,15 +141,22 @@ pub fn measure(
     let mut angles: Vec<f64> = geometries.iter().map(|g| g.illumination_deg).collect();
     angles.sort_by(f64::total_cmp);
     angles.dedup();
-    let surface_gloss_y = angles
+    let surface_gloss_y: Vec<(f64, f64)> = angles
         .into_iter()
         .map(|a| (a, weights.xyz(&model.surface_reflectance(a))[1]))
         .collect();
-    Measurement {
+    if let Some((a, y)) = surface_gloss_y.iter().find(|(_, y)| !y.is_finite()) {
+        return Err(Error::not_computable(
+            "surface gloss Y",
+            format!("{a}° illumination"),
+            *y,
+        ));
+    }
+    Ok(Measurement {
         geometries: list,
         flop_index,
         flop_note,
         hue_travel_deg,
         surface_gloss_y,
-    }
+    })
 }

@@ -385,22 +385,8 @@ impl Template {
     ) -> Result<Template> {
         let wavelengths_nm = scene.wavelengths_nm.clone();
         let index = scene.indices(&wavelengths_nm)?;
-        let binder = &scene.media[coating.binder];
-        let n: Vec<f64> = index[coating.binder]
-            .iter()
-            .zip(&wavelengths_nm)
-            .map(|(z, w)| {
-                if z.im != 0.0 || z.re < 1.0 {
-                    Err(Error::invalid(
-                        "coating.binder",
-                        &binder.name,
-                        format!("the binder must be lossless with n ≥ 1 (n = {z} at {w} nm)"),
-                    ))
-                } else {
-                    Ok(z.re)
-                }
-            })
-            .collect::<Result<_>>()?;
+        // The scene checked that the binder is lossless with n ≥ 1.
+        let n: Vec<f64> = index[coating.binder].iter().map(|z| z.re).collect();
         let density = Density::new(&coating.orientation);
         let normals = normals(&density);
         if !(density.inv_norm.is_finite() && density.inv_norm > 0.0) || normals.is_empty() {

@@ -1,14 +1,15 @@
-//! Preview settings: defaults, the scene's `preview` object, and the
-//! `key=value` light notation shared by the scene file and the command line.
+//! Preview settings: defaults, ranges, and the `key=value` light notation
+//! shared by the scene's `preview` object (read with the scene) and the
+//! command line.
 
 use std::str::FromStr;
 
 use serde_json::Value;
 
 use super::camera::View;
-use crate::colorimetry::srgb_decode;
+use crate::colorimetry::{Illuminant, srgb_decode};
 use crate::error::{Error, Result};
-use crate::scene::json::{Obj, show};
+use crate::scene::json::show;
 
 /// The object wearing the coating.
 #[derive(Debug, Clone, PartialEq)]
@@ -108,8 +109,8 @@ pub struct Light {
     /// Strength: a white diffuser facing a disc light of intensity 1, or in a
     /// sky of intensity 1, renders at linear value 1 (Y = 100).
     pub intensity: f64,
-    /// Built-in illuminant name; `None`: the scene's illuminant.
-    pub illuminant: Option<String>,
+    /// A built-in illuminant; `None`: the scene's illuminant.
+    pub illuminant: Option<Illuminant>,
 }
 
 const LIGHT_KEYS: &[&str] = &[
@@ -125,7 +126,7 @@ impl Light {
     /// A light from `(key, value)` pairs with keys from [`LIGHT_KEYS`]:
     /// `type` (sky, area or directional), `azimuth_deg`, `elevation_deg`,
     /// `size_deg` (area only), `intensity`, `illuminant`. `path` names errors.
-    fn from_pairs(pairs: &[(String, Value)], path: &str) -> Result<Light> {
+    pub(crate) fn from_pairs(pairs: &[(String, Value)], path: &str) -> Result<Light> {
         let key = |k: &str| format!("{path}.{k}");
         let get = |k: &str| pairs.iter().find(|(n, _)| n == k).map(|(_, v)| v);
         if let Some((k, v)) = pairs
@@ -210,7 +211,9 @@ impl Light {
         Ok(Light {
             source,
             intensity,
-            illuminant: get("illuminant").map(text),
+            illuminant: get("illuminant")
+                .map(|v| Illuminant::builtin(&text(v)).map_err(|e| e.within(path)))
+                .transpose()?,
         })
     }
 }
@@ -336,89 +339,6 @@ pub fn parse_size(s: &str) -> Result<(u32, u32)> {
 }
 
 impl Settings {
-    /// The defaults overridden by the scene document's `preview` object (if any).
-    pub fn from_document(document: &Value) -> Result<Settings> {
-        let mut s = Settings::default();
-        let Some(v) = document.get("preview") else {
-            return Ok(s);
-        };
-        let o = Obj::new(v, "preview")?;
-        o.only(PREVIEW_KEYS)?;
-        let within = |e: Error| e.within("preview");
-        if let Some(t) = o.str("shape")? {
-            s.shape = t.parse().map_err(within)?;
-        }
-        if let Some(t) = o.str("size")? {
-            (s.width, s.height) = parse_size(t).map_err(within)?;
-        }
-        if let Some(n) = o.u64("ssaa")? {
-            s.ssaa = n.min(u32::MAX as u64) as u32;
-        }
-        if let Some(x) = o.f64("exposure")? {
-            s.exposure = x;
-        }
-        match o.get("tone") {
-            None => {}
-            Some(Value::Bool(b)) => s.tone = *b,
-            Some(Value::String(t)) => s.tone = parse_tone(t).map_err(within)?,
-            Some(other) => {
-                return Err(Error::invalid(
-                    o.key("tone"),
-                    show(other),
-                    "expected on or off",
-                ));
-            }
-        }
-        if let Some(x) = o.f64("roughness_deg")? {
-            s.roughness_deg = x;
-        }
-        if let Some(t) = o.str("base")? {
-            s.base = t.parse().map_err(within)?;
-        }
-        if let Some(v) = o.get("lights") {
-            let list = v.as_array().ok_or_else(|| {
-                Error::invalid(o.key("lights"), show(v), "expected a list of lights")
-            })?;
-            s.lights = list
-                .iter()
-                .enumerate()
-                .map(|(i, l)| {
-                    let path = format!("preview.lights[{i}]");
-                    let obj = Obj::new(l, path.clone())?;
-                    let pairs: Vec<(String, Value)> = obj
-                        .map
-                        .iter()
-                        .map(|(k, v)| (k.clone(), v.clone()))
-                        .collect();
-                    Light::from_pairs(&pairs, &path)
-                })
-                .collect::<Result<_>>()?;
-        }
-        if let Some(x) = o.f64("orbit_deg")? {
-            s.view.orbit_deg = x;
-        }
-        if let Some(x) = o.f64("elevation_deg")? {
-            s.view.elevation_deg = x;
-        }
-        if let Some(x) = o.f64("fov_deg")? {
-            s.view.fov_deg = x;
-        }
-        if let Some(x) = o.f64("distance")? {
-            s.view.distance = Some(x);
-        }
-        if let Some(n) = o.u64("turntable")? {
-            if n == 0 {
-                return Err(Error::invalid(
-                    o.key("turntable"),
-                    n,
-                    "at least 1 frame (leave the key out for a single image)",
-                ));
-            }
-            s.turntable = n.min(u32::MAX as u64) as u32;
-        }
-        Ok(s)
-    }
-
     /// Checks every range (called before rendering, after flags override).
     pub fn check(&self) -> Result<()> {
         if !(1..=8).contains(&self.ssaa) {
@@ -479,52 +399,6 @@ pub fn parse_tone(s: &str) -> Result<bool> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use serde_json::json;
-
-    #[test]
-    fn preview_object_overrides_defaults() {
-        let doc = json!({"preview": {
-            "shape": "torus", "size": "320x200", "ssaa": 3, "exposure": 1.5, "tone": "off",
-            "roughness_deg": 8, "base": "#808080", "orbit_deg": 15, "elevation_deg": 30,
-            "fov_deg": 40, "distance": 5, "turntable": 12,
-            "lights": [{"type": "sky", "intensity": 0.5},
-                       {"type": "area", "azimuth_deg": 30, "size_deg": 10, "illuminant": "A"}]
-        }});
-        let s = Settings::from_document(&doc).unwrap();
-        assert_eq!(s.shape, Shape::Torus);
-        assert_eq!((s.width, s.height, s.ssaa, s.turntable), (320, 200, 3, 12));
-        assert!(!s.tone && s.exposure == 1.5 && s.roughness_deg == 8.0);
-        let Base::Diffuse(grey) = s.base else {
-            panic!()
-        };
-        assert!((grey[0] - 0.2158605).abs() < 1e-6, "{grey:?}"); // IEC 61966-2-1 decode of 128/255
-        assert_eq!(s.lights.len(), 2);
-        assert_eq!(s.lights[1].illuminant.as_deref(), Some("A"));
-        assert_eq!(s.view.distance, Some(5.0));
-        s.check().unwrap();
-    }
-
-    #[test]
-    fn unknown_or_bad_preview_keys_are_named() {
-        for (doc, needle) in [
-            (json!({"preview": {"shap": "sphere"}}), "preview.shap"),
-            (json!({"preview": {"shape": "cube"}}), "preview.shape"),
-            (json!({"preview": {"size": "100"}}), "preview.size"),
-            (
-                json!({"preview": {"lights": [{"type": "area", "colour": 1}]}}),
-                "preview.lights[0].colour",
-            ),
-            (
-                json!({"preview": {"lights": [{"type": "sky", "size_deg": 3}]}}),
-                "preview.lights[0].size_deg",
-            ),
-            (json!({"preview": {"base": "grey"}}), "preview.base"),
-            (json!({"preview": {"tone": 3}}), "preview.tone"),
-        ] {
-            let err = Settings::from_document(&doc).unwrap_err().to_string();
-            assert!(err.contains(needle), "{err}");
-        }
-    }
 
     #[test]
     fn light_notation() {
@@ -543,6 +417,11 @@ mod tests {
         assert!("sky,intensity=x".parse::<Light>().is_err());
         assert!("lamp".parse::<Light>().is_err());
         assert!("directional,size_deg=3".parse::<Light>().is_err());
+        let err = "sky,illuminant=D66"
+            .parse::<Light>()
+            .unwrap_err()
+            .to_string();
+        assert!(err.starts_with("light.illuminant = D66"), "{err}");
         assert_eq!(parse_size("1024x768").unwrap(), (1024, 768));
         assert!(parse_size("0x5").is_err());
     }

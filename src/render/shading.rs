@@ -16,11 +16,10 @@ use super::camera::Camera;
 use super::pigment::{Body, Convert, Lobe};
 use super::settings::{Base, Light, Settings, Source};
 use crate::angle_colour::Viewing;
-use crate::colorimetry::{Illuminant, RgbDisplay, RgbSpace, Weights};
+use crate::colorimetry::{RgbDisplay, RgbSpace, Weights};
 use crate::error::Result;
-use crate::optics;
-use crate::pigment::{Coating, Model};
-use crate::scene::Scene;
+use crate::pigment::Model;
+use crate::scene::{GRID_BYTES_PER_POINT, Scene};
 
 /// Angle step of the reflectance tables in degrees.
 const STEP: f64 = 0.25;
@@ -112,12 +111,7 @@ fn film(scene: &Scene, body: Option<&Body>) -> Result<(PerAngle, PerAngle)> {
         r.push(vec![1.0; wl.len()]);
         return Ok((r, vec![vec![0.0; wl.len()]; n + 1]));
     }
-    let spectra = optics::compute(
-        &scene.realisations(&scene.stack),
-        &scene.indices(wl)?,
-        wl,
-        &angles,
-    );
+    let spectra = scene.spectra_at(&angles)?;
     let (mut r, mut t): (PerAngle, PerAngle) = (0..n)
         .map(|a| {
             let rt = spectra.at_angle(a);
@@ -213,13 +207,11 @@ impl Shader {
         let wl = &scene.wavelengths_nm;
         let viewing = Viewing::of_scene(scene)?;
         let display = RgbDisplay::new(viewing.weights(wl)?.white(), RgbSpace::Srgb);
-        let body = match scene.document.get("coating") {
+        // The tables hold every wavelength at each table angle.
+        scene.check_grid_size((90.0 / STEP) as usize + 1, GRID_BYTES_PER_POINT, "render")?;
+        let body = match &scene.coating {
             None => None,
-            Some(_) => {
-                let mut scene = scene.clone();
-                let coating = Coating::from_scene(&mut scene)?;
-                Some(Body::new(Model::new(&scene, &coating)?))
-            }
+            Some(coating) => Some(Body::new(Model::new(scene, coating)?)),
         };
         let (r, t) = film(scene, body.as_ref())?;
         let slope = settings.roughness_deg.to_radians().tan() as f32;
@@ -343,7 +335,7 @@ impl Shader {
 fn light_weights(light: &Light, viewing: &Viewing, wl: &[f64]) -> Result<Weights> {
     match &light.illuminant {
         None => viewing.weights(wl),
-        Some(name) => Weights::new(wl, &Illuminant::builtin(name)?, viewing.observer),
+        Some(illuminant) => Weights::new(wl, illuminant, viewing.observer),
     }
 }
 

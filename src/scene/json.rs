@@ -1,8 +1,127 @@
-//! Reading a `serde_json::Value` with errors that name the key path and value.
+//! Reading scene JSON: a strict parse (duplicate keys refused), then a
+//! `serde_json::Value` read with errors that name the key path and value.
 
-use serde_json::{Map, Value};
+use std::cell::RefCell;
+use std::fmt;
+
+use serde::de::{self, DeserializeSeed, Deserializer, MapAccess, SeqAccess, Visitor};
+use serde_json::{Map, Number, Value};
 
 use crate::error::{Error, Result};
+
+/// Parses JSON text into a document. A UTF-8 byte-order mark at the start is
+/// skipped; a key given twice in one object is refused, naming its path
+/// (serde_json alone would keep the last value silently). Numbers parse
+/// exactly as `serde_json` parses them (shortest round trip).
+pub fn parse(text: &str) -> Result<Value> {
+    let text = text.strip_prefix('\u{feff}').unwrap_or(text);
+    let duplicate = RefCell::new(None);
+    let mut de = serde_json::Deserializer::from_str(text);
+    let parsed = Strict {
+        path: String::new(),
+        duplicate: &duplicate,
+    }
+    .deserialize(&mut de)
+    .and_then(|v| de.end().map(|()| v));
+    parsed.map_err(|e| match duplicate.take() {
+        Some(path) => Error::invalid(
+            path,
+            format!("(given again at line {}, column {})", e.line(), e.column()),
+            "duplicate key: each key may appear once in an object",
+        ),
+        None => Error::Syntax {
+            line: e.line(),
+            column: e.column(),
+            message: e
+                .to_string()
+                .split(" at line")
+                .next()
+                .unwrap_or_default()
+                .to_string(),
+        },
+    })
+}
+
+/// Builds a [`Value`] like serde_json's own, tracking the key path so that a
+/// duplicate key can be named.
+struct Strict<'a> {
+    path: String,
+    duplicate: &'a RefCell<Option<String>>,
+}
+
+impl<'de> DeserializeSeed<'de> for Strict<'_> {
+    type Value = Value;
+    fn deserialize<D: Deserializer<'de>>(self, d: D) -> std::result::Result<Value, D::Error> {
+        d.deserialize_any(self)
+    }
+}
+
+impl<'de> Visitor<'de> for Strict<'_> {
+    type Value = Value;
+
+    fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
+        f.write_str("a JSON value")
+    }
+
+    fn visit_bool<E>(self, b: bool) -> std::result::Result<Value, E> {
+        Ok(Value::Bool(b))
+    }
+
+    fn visit_i64<E>(self, n: i64) -> std::result::Result<Value, E> {
+        Ok(Value::from(n))
+    }
+
+    fn visit_u64<E>(self, n: u64) -> std::result::Result<Value, E> {
+        Ok(Value::from(n))
+    }
+
+    fn visit_f64<E>(self, x: f64) -> std::result::Result<Value, E> {
+        Ok(Number::from_f64(x).map_or(Value::Null, Value::Number))
+    }
+
+    fn visit_str<E>(self, s: &str) -> std::result::Result<Value, E> {
+        Ok(Value::String(s.to_string()))
+    }
+
+    fn visit_string<E>(self, s: String) -> std::result::Result<Value, E> {
+        Ok(Value::String(s))
+    }
+
+    fn visit_unit<E>(self) -> std::result::Result<Value, E> {
+        Ok(Value::Null)
+    }
+
+    fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> std::result::Result<Value, A::Error> {
+        let mut items = Vec::new();
+        loop {
+            let seed = Strict {
+                path: format!("{}[{}]", self.path, items.len()),
+                duplicate: self.duplicate,
+            };
+            match seq.next_element_seed(seed)? {
+                Some(v) => items.push(v),
+                None => return Ok(Value::Array(items)),
+            }
+        }
+    }
+
+    fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> std::result::Result<Value, A::Error> {
+        let mut out = Map::new();
+        while let Some(key) = map.next_key::<String>()? {
+            let path = join(&self.path, &key);
+            if out.contains_key(&key) {
+                *self.duplicate.borrow_mut() = Some(path);
+                return Err(de::Error::custom(format!("duplicate key `{key}`")));
+            }
+            let value = map.next_value_seed(Strict {
+                path,
+                duplicate: self.duplicate,
+            })?;
+            out.insert(key, value);
+        }
+        Ok(Value::Object(out))
+    }
+}
 
 /// An object together with its path in the document.
 pub struct Obj<'a> {
@@ -35,6 +154,11 @@ impl<'a> Obj<'a> {
         let path = path.into();
         match v {
             Value::Object(map) => Ok(Obj { map, path }),
+            other if path.is_empty() => Err(Error::invalid(
+                "(the scene)",
+                show(other),
+                "expected a JSON object",
+            )),
             other => Err(Error::invalid(path, show(other), "expected a JSON object")),
         }
     }
@@ -125,5 +249,35 @@ pub fn pair(v: &Value, path: &str) -> Result<(f64, f64)> {
             show(v),
             "expected two numbers [low, high]",
         )),
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn duplicate_keys_are_named_with_their_path() {
+        let err = parse(r#"{"stack": [{"material": "a", "thickness_nm": 1, "thickness_nm": 2}]}"#)
+            .unwrap_err()
+            .to_string();
+        assert!(err.starts_with("stack[0].thickness_nm = "), "{err}");
+        assert!(err.contains("duplicate key"), "{err}");
+        let err = parse("{\"a\": 1,\n \"a\": 1}").unwrap_err().to_string();
+        assert!(err.contains("a = (given again at line 2"), "{err}");
+    }
+
+    #[test]
+    fn parse_matches_serde_json_and_skips_a_bom() {
+        let text = r#"{"z": [1, -2, 0.1, 1e300, 5e-324, true, null, "s"], "a": {"b": {}}}"#;
+        let strict = parse(&format!("\u{feff}{text}")).unwrap();
+        assert_eq!(strict, serde_json::from_str::<Value>(text).unwrap());
+        let keys: Vec<&String> = strict.as_object().unwrap().keys().collect();
+        assert_eq!(keys, ["z", "a"], "key order is kept");
+        assert!(matches!(parse("{\"a\": 1} x"), Err(Error::Syntax { .. })));
+        assert!(matches!(
+            parse("\u{feff}\u{feff}{}"),
+            Err(Error::Syntax { .. })
+        ));
     }
 }

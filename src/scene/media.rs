@@ -19,7 +19,16 @@ pub struct Medium {
     pub key: String,
     /// Its index model.
     pub dispersion: Dispersion,
+    /// Wavelengths (nm) where the model's source vouches for it: a built-in
+    /// material's range, the overlap of a mixture's built-in parts; `None`
+    /// for models the scene defines itself.
+    pub valid_nm: Option<(f64, f64)>,
+    /// Where the scene first uses it, e.g. `stack[0].material`.
+    pub used_at: String,
 }
+
+/// A model with the range its source vouches for.
+type Vouched = (Dispersion, Option<(f64, f64)>);
 
 pub(super) struct Registry<'a> {
     user: Option<Obj<'a>>,
@@ -27,9 +36,6 @@ pub(super) struct Registry<'a> {
     media: Vec<Medium>,
     by_name: HashMap<String, usize>,
 }
-
-static NO_FILES: fn(&str) -> std::result::Result<String, String> =
-    |_| Err("no files can be read here".to_string());
 
 const MODEL_KEYS: &[&str] = &["n", "cauchy", "sellmeier", "table", "drude_lorentz", "mix"];
 
@@ -44,32 +50,18 @@ impl<'a> Registry<'a> {
         })
     }
 
-    /// A registry holding `media` already resolved, with no user materials
-    /// or files: further names come from the built-in library.
-    pub fn with_media(media: Vec<Medium>) -> Registry<'static> {
-        let by_name = media
-            .iter()
-            .enumerate()
-            .map(|(i, m)| (m.name.clone(), i))
-            .collect();
-        Registry {
-            user: None,
-            load: &NO_FILES,
-            media,
-            by_name,
-        }
-    }
-
     /// Index of the medium called `name`, used at `key`.
     pub fn resolve(&mut self, name: &str, key: &str) -> Result<usize> {
         if let Some(&i) = self.by_name.get(name) {
             return Ok(i);
         }
-        let (dispersion, mkey) = self.dispersion(name, key, &mut Vec::new())?;
+        let ((dispersion, valid_nm), mkey) = self.dispersion(name, key, &mut Vec::new())?;
         self.media.push(Medium {
             name: name.to_string(),
             key: mkey,
             dispersion,
+            valid_nm,
+            used_at: key.to_string(),
         });
         self.by_name.insert(name.to_string(), self.media.len() - 1);
         Ok(self.media.len() - 1)
@@ -84,7 +76,7 @@ impl<'a> Registry<'a> {
         name: &str,
         key: &str,
         chain: &mut Vec<String>,
-    ) -> Result<(Dispersion, String)> {
+    ) -> Result<(Vouched, String)> {
         if let Some(v) = self.user.as_ref().and_then(|u| u.get(name)) {
             let mkey = format!("materials.{name}");
             if chain.iter().any(|c| c == name) {
@@ -96,7 +88,7 @@ impl<'a> Registry<'a> {
             return Ok((d, mkey));
         }
         match library::find(name) {
-            Some(m) => Ok((m.dispersion, name.to_string())),
+            Some(m) => Ok(((m.dispersion, Some(m.valid_nm)), name.to_string())),
             None => Err(Error::UnknownMaterial {
                 key: key.to_string(),
                 name: name.to_string(),
@@ -104,7 +96,7 @@ impl<'a> Registry<'a> {
         }
     }
 
-    fn user_model(&self, v: &Value, key: &str, chain: &[String]) -> Result<Dispersion> {
+    fn user_model(&self, v: &Value, key: &str, chain: &[String]) -> Result<Vouched> {
         let o = Obj::new(v, key)?;
         o.only(&[
             "n",
@@ -125,6 +117,7 @@ impl<'a> Registry<'a> {
             .filter(|k| o.get(k).is_some())
             .collect();
         let k = o.f64("k")?.unwrap_or(0.0);
+        let mut valid_nm = None;
         let d = match present.as_slice() {
             ["n"] => Dispersion::Constant {
                 n: o.req_f64("n")?,
@@ -192,16 +185,21 @@ impl<'a> Registry<'a> {
                         ));
                     }
                 };
-                let part = |role: &str| -> Result<Dispersion> {
+                let part = |role: &str| -> Result<Vouched> {
                     let name = o
                         .str(role)?
                         .ok_or_else(|| o.missing(role, "a material name"))?;
                     Ok(self.dispersion(name, &o.key(role), &mut chain.to_vec())?.0)
                 };
+                let ((host, host_nm), (guest, guest_nm)) = (part("host")?, part("guest")?);
+                valid_nm = match (host_nm, guest_nm) {
+                    (Some(a), Some(b)) => Some((a.0.max(b.0), a.1.min(b.1))),
+                    (a, b) => a.or(b),
+                };
                 Dispersion::Mixture {
                     rule,
-                    host: Box::new(part("host")?),
-                    guest: Box::new(part("guest")?),
+                    host: Box::new(host),
+                    guest: Box::new(guest),
                     fraction: o
                         .f64("fraction")?
                         .ok_or_else(|| o.missing("fraction", "the guest's volume fraction 0–1"))?,
@@ -216,7 +214,7 @@ impl<'a> Registry<'a> {
             }
         };
         d.validate().map_err(|e| e.within(key))?;
-        Ok(d)
+        Ok((d, valid_nm))
     }
 }
 

@@ -1,19 +1,27 @@
 //! Scene files: the validated description of a coating problem, built from
 //! JSON in one place so that everything downstream can trust it.
 
+mod coating;
 pub(crate) mod json;
 mod media;
+mod preview;
 mod stack;
+mod warnings;
 
 use num_complex::Complex64;
 use serde_json::Value;
 
+use crate::colorimetry::{Illuminant, Observer, Weights};
 use crate::error::{Error, Result};
 use crate::grid::Range;
-use crate::optics::{self, Behind, Exit, Spectra};
+use crate::optics::{self, Behind, Exit, Rt, Spectra};
+use crate::pigment::Coating;
+use crate::render::{Mesh, Settings, Shape};
+pub use coating::KEYS as COATING_KEYS;
 use json::Obj;
 pub use media::Medium;
 pub use stack::{Item, Layer, Repeat, Sigma, realise};
+pub use warnings::{COARSEST_COLOUR_STEP_NM, THICKEST_COHERENT_NM, Warning, WarningKind};
 
 /// Reads a file named in a scene (a CSV table), relative to the scene file.
 /// Returns the text or a one-line reason.
@@ -22,9 +30,20 @@ pub type Loader<'a> = dyn Fn(&str) -> std::result::Result<String, String> + 'a;
 /// Most layers a stack may hold once disorder or grading expand its repeats.
 pub const MAX_EXPANDED_LAYERS: u64 = 2_000_000;
 
+/// Most layers all the realisations of a disordered stack may hold together.
+pub const MAX_ENSEMBLE_LAYERS: u64 = 20_000_000;
+
 /// Most periods one repeat group may have, and most times nested groups may
 /// repeat any one layer (the product of their counts).
 pub const MAX_REPEAT: u64 = 100_000_000;
+
+/// Most memory (bytes) a result held whole over a grid may take; larger work
+/// is refused before it starts.
+pub const MAX_GRID_BYTES: u64 = 4 << 30;
+
+/// Bytes a grid point takes while R and T are held for a whole grid (four
+/// f64), with room for what is derived from them.
+pub const GRID_BYTES_PER_POINT: u64 = 48;
 
 /// Ensemble settings for thickness disorder.
 #[derive(Debug, Clone, PartialEq)]
@@ -70,15 +89,28 @@ pub struct Scene {
     pub wavelengths_nm: Vec<f64>,
     /// Angles of incidence in degrees.
     pub angles_deg: Vec<f64>,
-    /// Illuminant name as written (or `"custom"` with [`Scene::illuminant_csv`]).
-    pub illuminant: String,
-    /// Custom illuminant table text (`wavelength_nm,power`), when given.
-    pub illuminant_csv: Option<String>,
-    /// Observer name as written.
-    pub observer: String,
+    /// The light colours are computed under (default D65); a custom table
+    /// is labelled with its path as written.
+    pub illuminant: Illuminant,
+    /// The standard observer (default CIE 1931 2°).
+    pub observer: Observer,
     /// Thickness disorder, when any layer is jittered.
     pub disorder: Option<Disorder>,
-    /// The document as parsed, kept so that edited scenes keep every key.
+    /// Whether the scene describes a film (it has a `stack`); an
+    /// effect-pigment scene may describe its optics in `coating` alone.
+    pub film: bool,
+    /// The effect-pigment coating, when the scene has a `coating` section.
+    pub coating: Option<Coating>,
+    /// Render settings from the `preview` section (defaults for every key
+    /// left out), when the scene has one.
+    pub preview: Option<Settings>,
+    /// The mesh a `preview` shape `mesh:PATH` names, read with the scene.
+    pub preview_mesh: Option<Mesh>,
+    /// What the scene may get wrong without being invalid, each naming its
+    /// key (for the caller to show).
+    pub warnings: Vec<Warning>,
+    /// The document as parsed, kept only so that edited scenes can be
+    /// written back with every key.
     pub document: Value,
 }
 
@@ -100,17 +132,11 @@ const TOP_KEYS: &[&str] = &[
 
 impl Scene {
     /// Parses and validates scene JSON; `load` reads files the scene names.
+    /// Every section is read and checked here, so every command accepts or
+    /// refuses a file alike. A UTF-8 byte-order mark is skipped; a key given
+    /// twice in one object is refused.
     pub fn from_json(text: &str, load: &Loader) -> Result<Scene> {
-        let document: Value = serde_json::from_str(text).map_err(|e| Error::Syntax {
-            line: e.line(),
-            column: e.column(),
-            message: e
-                .to_string()
-                .split(" at line")
-                .next()
-                .unwrap_or_default()
-                .to_string(),
-        })?;
+        let document = json::parse(text)?;
         let top = Obj::new(&document, "")?;
         top.only(TOP_KEYS)?;
         let mut media = media::Registry::new(top.get("materials"), load)?;
@@ -119,17 +145,18 @@ impl Scene {
         // An effect-pigment scene may describe its optics in `coating` alone:
         // then the scene-level stack is empty and the substrate is the
         // incident medium.
-        let coating = top.get("coating");
-        let stack = match (top.get("stack"), coating) {
-            (Some(v), _) => stack::parse_items(v, "stack", &mut media)?,
-            (None, Some(_)) => Vec::new(),
-            (None, None) => return Err(top.missing("stack", "a list of layers")),
+        let has_coating = top.get("coating").is_some();
+        let stack = match top.get("stack") {
+            Some(v) => stack::parse_items(v, "stack", &mut media)?,
+            None if has_coating => Vec::new(),
+            None => return Err(top.missing("stack", "a list of layers")),
         };
-        if let Some(c) = coating {
-            coating_media(c, &mut media)?;
-        }
+        let coating = top
+            .get("coating")
+            .map(|c| coating::parse(c, &mut media))
+            .transpose()?;
         let substrate = match top.get("substrate") {
-            None if coating.is_some() => Substrate::Medium(incident),
+            None if has_coating => Substrate::Medium(incident),
             None => return Err(top.missing("substrate", "a material name or a sheet object")),
             Some(Value::String(name)) => Substrate::Medium(media.resolve(name, "substrate")?),
             Some(v) => {
@@ -190,9 +217,9 @@ impl Scene {
                 "angles of incidence must lie below 90°",
             ));
         }
-        let (illuminant, illuminant_csv) = match top.get("illuminant") {
-            None => ("D65".to_string(), None),
-            Some(Value::String(s)) => (s.clone(), None),
+        let illuminant = match top.get("illuminant") {
+            None => Illuminant::builtin("D65")?,
+            Some(Value::String(s)) => Illuminant::builtin(s)?,
             Some(v) => {
                 let o = Obj::new(v, "illuminant")?;
                 o.only(&["csv"])?;
@@ -200,12 +227,25 @@ impl Scene {
                     .str("csv")?
                     .ok_or_else(|| o.missing("csv", "path of a wavelength_nm,power table"))?;
                 let text = load(path).map_err(|why| Error::invalid(o.key("csv"), path, why))?;
-                ("custom".to_string(), Some(text))
+                Illuminant::from_csv(path, &text)?
             }
         };
-        let observer = top.str("observer")?.unwrap_or("CIE1931_2").to_string();
+        let observer = match top.str("observer")? {
+            None => Observer::Cie1931_2,
+            Some(name) => name.parse()?,
+        };
+        Weights::check_light(&wavelengths_nm, &illuminant, observer)?;
         let disorder = stack::parse_disorder(top.get("disorder"), "disorder", &stack)?;
-        let scene = Scene {
+        let preview = top.get("preview").map(preview::parse).transpose()?;
+        let preview_mesh = match preview.as_ref().map(|p| &p.shape) {
+            Some(Shape::Mesh(path)) => {
+                let text = load(path)
+                    .map_err(|why| Error::invalid("preview.shape", format!("mesh:{path}"), why))?;
+                Some(Mesh::from_obj(path, text.as_bytes()).map_err(|e| e.within("preview"))?)
+            }
+            _ => None,
+        };
+        let mut scene = Scene {
             title: top.str("title")?.unwrap_or("").to_string(),
             media: media.into_media(),
             incident,
@@ -214,13 +254,58 @@ impl Scene {
             wavelengths_nm,
             angles_deg,
             illuminant,
-            illuminant_csv,
             observer,
             disorder,
+            film: top.get("stack").is_some(),
+            coating,
+            preview,
+            preview_mesh,
+            warnings: Vec::new(),
             document,
         };
         scene.check_expansion()?;
+        let index = scene.indices(&scene.wavelengths_nm)?;
+        if let Some(c) = &scene.coating {
+            check_coating(&scene, c, &index)?;
+        }
+        scene.warnings = warnings::of(&scene);
         Ok(scene)
+    }
+
+    /// Refuses a coating-only scene (no `stack`) for a command that computes
+    /// a film, pointing to the commands that take a coating.
+    pub fn require_film(&self) -> Result<()> {
+        if self.film {
+            return Ok(());
+        }
+        Err(Error::invalid(
+            "stack",
+            "(missing)",
+            "this scene describes only an effect-pigment `coating`; use `lamella multiangle` \
+             (or `lamella render`) for its colour, or add a `stack` and `substrate` for a film",
+        ))
+    }
+
+    /// Refuses work over `angles` angles × the scene's wavelengths that
+    /// needs about `bytes_per_point` bytes a point for `what`, when it would
+    /// take more than [`MAX_GRID_BYTES`]; the error gives the size.
+    pub fn check_grid_size(&self, angles: usize, bytes_per_point: u64, what: &str) -> Result<()> {
+        let nw = self.wavelengths_nm.len() as u64;
+        let points = nw.saturating_mul(angles as u64);
+        let bytes = points.saturating_mul(bytes_per_point);
+        if bytes <= MAX_GRID_BYTES {
+            return Ok(());
+        }
+        Err(Error::invalid(
+            "wavelengths_nm × angles_deg",
+            format!("{nw} × {angles} points"),
+            format!(
+                "{what} would need about {} for the whole grid, over the {} limit; use a coarser grid \
+                 (`lamella spectrum --format csv` streams any size)",
+                bytes_text(bytes),
+                bytes_text(MAX_GRID_BYTES)
+            ),
+        ))
     }
 
     /// Complex index of every medium at every grid wavelength (`[medium][w]`).
@@ -265,13 +350,28 @@ impl Scene {
         Ok(table)
     }
 
-    /// R and T on the scene's grid (averaged over the disorder ensemble).
+    /// R and T on the scene's grid (averaged over the disorder ensemble);
+    /// a value that is not finite is an error naming its point.
     pub fn spectra(&self) -> Result<Spectra> {
-        self.with_rows(|rows| rows.all())
+        self.spectra_at(&self.angles_deg)
+    }
+
+    /// R and T on the scene's wavelengths at `angles_deg` (each below 90°),
+    /// checked like [`Scene::spectra`].
+    pub fn spectra_at(&self, angles_deg: &[f64]) -> Result<Spectra> {
+        let spectra = optics::compute(
+            &self.realisations(&self.stack),
+            &self.indices(&self.wavelengths_nm)?,
+            &self.wavelengths_nm,
+            angles_deg,
+        );
+        check_spectra(&spectra)?;
+        Ok(spectra)
     }
 
     /// Runs `f` on the scene's grid computation, for callers that take the
-    /// spectra row by row rather than whole.
+    /// spectra row by row rather than whole (they check each point with
+    /// [`check_point`]).
     pub fn with_rows<T>(&self, f: impl FnOnce(&optics::Rows) -> T) -> Result<T> {
         let index = self.indices(&self.wavelengths_nm)?;
         let stacks = self.realisations(&self.stack);
@@ -281,30 +381,6 @@ impl Scene {
             &self.wavelengths_nm,
             &self.angles_deg,
         )))
-    }
-
-    /// Parses a list of layer items (the `stack` syntax, repeats included)
-    /// found elsewhere in the document at `path` (e.g. `coating.platelet`),
-    /// resolving material names among the scene's media and the built-in
-    /// library; library materials not used before are added to
-    /// [`Scene::media`]. Materials defined under `materials` must already be
-    /// in use (the coating's are resolved when the scene is read).
-    pub fn parse_items(&mut self, v: &Value, path: &str) -> Result<Vec<Item>> {
-        let mut media = media::Registry::with_media(std::mem::take(&mut self.media));
-        let items = stack::parse_items(v, path, &mut media);
-        self.media = media.into_media();
-        items
-    }
-
-    /// Thickness disorder of `items` from a `disorder`-syntax object at `path`
-    /// (defaults as for the scene's own `disorder`).
-    pub fn parse_disorder(
-        &self,
-        v: Option<&Value>,
-        path: &str,
-        items: &[Item],
-    ) -> Result<Option<Disorder>> {
-        stack::parse_disorder(v, path, items)
     }
 
     /// Index of the medium called `name` in [`Scene::media`].
@@ -337,36 +413,103 @@ impl Scene {
     }
 
     fn check_expansion(&self) -> Result<()> {
-        let jittered = self.disorder.is_some();
-        let layers = stack::expanded_layers(&self.stack, jittered);
-        if layers > MAX_EXPANDED_LAYERS {
-            return Err(Error::invalid(
-                "stack",
-                format!("{layers} layers once expanded"),
-                format!(
-                    "disorder or chirp_scale expand repeats layer by layer; keep it under {MAX_EXPANDED_LAYERS}"
-                ),
-            ));
+        let platelet = self.coating.as_ref().map(|c| {
+            (
+                "coating.platelet",
+                c.platelet.as_slice(),
+                c.disorder.as_ref(),
+            )
+        });
+        for (key, items, disorder) in [("stack", self.stack.as_slice(), self.disorder.as_ref())]
+            .into_iter()
+            .chain(platelet)
+        {
+            let layers = stack::expanded_layers(items, disorder.is_some());
+            if layers > MAX_EXPANDED_LAYERS {
+                return Err(Error::invalid(
+                    key,
+                    format!("{layers} layers once expanded"),
+                    format!(
+                        "disorder or chirp_scale expand repeats layer by layer; keep it under {MAX_EXPANDED_LAYERS}"
+                    ),
+                ));
+            }
+            let realizations = disorder.map_or(1, |d| d.realizations as u64);
+            let total = layers.saturating_mul(realizations);
+            if total > MAX_ENSEMBLE_LAYERS {
+                return Err(Error::invalid(
+                    key,
+                    format!("{layers} layers × {realizations} realizations"),
+                    format!(
+                        "the disorder ensemble would hold {total} layers; keep layers × realizations under {MAX_ENSEMBLE_LAYERS}"
+                    ),
+                ));
+            }
         }
         Ok(())
     }
 }
 
-/// A grid written as `{"from", "to", "step"}` or as a list of increasing values.
-/// Resolves the media an effect-pigment `coating` names (its binder and the
-/// platelet's layers) while the scene's `materials` and file loader are at
-/// hand; the section itself is validated by the pigment model.
-fn coating_media(v: &Value, media: &mut media::Registry) -> Result<()> {
-    let o = Obj::new(v, "coating")?;
-    if let Some(name) = o.str("binder")? {
-        media.resolve(name, &o.key("binder"))?;
-    }
-    if let Some(items) = o.get("platelet") {
-        stack::parse_items(items, &o.key("platelet"), media)?;
+/// Refuses spectra holding a value that is not a finite number, naming the
+/// first such point.
+pub fn check_spectra(spectra: &Spectra) -> Result<()> {
+    for (a, &angle) in spectra.angles_deg.iter().enumerate() {
+        for (x, &w) in spectra.at_angle(a).iter().zip(&spectra.wavelengths_nm) {
+            check_point(x, w, angle)?;
+        }
     }
     Ok(())
 }
 
+/// Refuses R or T that is not a finite number at one grid point, naming it.
+pub fn check_point(x: &Rt, wavelength_nm: f64, angle_deg: f64) -> Result<()> {
+    for (name, v) in [("R_s", x.rs), ("R_p", x.rp), ("T_s", x.ts), ("T_p", x.tp)] {
+        if !v.is_finite() {
+            return Err(Error::not_computable(
+                name,
+                format!("{wavelength_nm} nm, {angle_deg}°"),
+                v,
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// Checks a coating against the scene's grid: a lossless binder with n ≥ 1
+/// and a background spectrum that covers the wavelengths.
+fn check_coating(scene: &Scene, coating: &Coating, index: &[Vec<Complex64>]) -> Result<()> {
+    let binder = &scene.media[coating.binder];
+    if let Some((z, w)) = index[coating.binder]
+        .iter()
+        .zip(&scene.wavelengths_nm)
+        .find(|(z, _)| z.im != 0.0 || z.re < 1.0)
+    {
+        return Err(Error::invalid(
+            "coating.binder",
+            &binder.name,
+            format!("the binder must be lossless with n ≥ 1 (n = {z} at {w} nm)"),
+        ));
+    }
+    coating.background.on(&scene.wavelengths_nm)?;
+    Ok(())
+}
+
+/// A byte count in bytes, KiB, MiB, GiB or TiB.
+fn bytes_text(bytes: u64) -> String {
+    const UNITS: [&str; 5] = ["bytes", "KiB", "MiB", "GiB", "TiB"];
+    let (mut value, mut unit) = (bytes as f64, 0);
+    while value >= 1024.0 && unit + 1 < UNITS.len() {
+        value /= 1024.0;
+        unit += 1;
+    }
+    if unit == 0 {
+        format!("{bytes} bytes")
+    } else {
+        format!("{value:.1} {}", UNITS[unit])
+    }
+}
+
+/// A grid written as `{"from", "to", "step"}` or as a list of increasing values.
 fn grid(top: &Obj, key: &str, default: Range) -> Result<Vec<f64>> {
     let range = match top.get(key) {
         None => default,

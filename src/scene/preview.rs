@@ -1,0 +1,141 @@
+//! The scene's `preview` object: the render settings a scene carries.
+
+use serde_json::Value;
+
+use super::json::{Obj, show};
+use crate::error::{Error, Result};
+use crate::render::{Light, PREVIEW_KEYS, Settings, parse_size, parse_tone};
+
+/// The default settings overridden by the `preview` object `v`, with every
+/// range checked.
+pub(super) fn parse(v: &Value) -> Result<Settings> {
+    let mut s = Settings::default();
+    let o = Obj::new(v, "preview")?;
+    o.only(PREVIEW_KEYS)?;
+    let within = |e: Error| e.within("preview");
+    if let Some(t) = o.str("shape")? {
+        s.shape = t.parse().map_err(within)?;
+    }
+    if let Some(t) = o.str("size")? {
+        (s.width, s.height) = parse_size(t).map_err(within)?;
+    }
+    if let Some(n) = o.u64("ssaa")? {
+        s.ssaa = n.min(u32::MAX as u64) as u32;
+    }
+    if let Some(x) = o.f64("exposure")? {
+        s.exposure = x;
+    }
+    match o.get("tone") {
+        None => {}
+        Some(Value::Bool(b)) => s.tone = *b,
+        Some(Value::String(t)) => s.tone = parse_tone(t).map_err(within)?,
+        Some(other) => {
+            return Err(Error::invalid(
+                o.key("tone"),
+                show(other),
+                "expected on or off",
+            ));
+        }
+    }
+    if let Some(x) = o.f64("roughness_deg")? {
+        s.roughness_deg = x;
+    }
+    if let Some(t) = o.str("base")? {
+        s.base = t.parse().map_err(within)?;
+    }
+    if let Some(v) = o.get("lights") {
+        let list = v
+            .as_array()
+            .ok_or_else(|| Error::invalid(o.key("lights"), show(v), "expected a list of lights"))?;
+        s.lights = list
+            .iter()
+            .enumerate()
+            .map(|(i, l)| {
+                let path = format!("preview.lights[{i}]");
+                let obj = Obj::new(l, path.clone())?;
+                let pairs: Vec<(String, Value)> = obj
+                    .map
+                    .iter()
+                    .map(|(k, v)| (k.clone(), v.clone()))
+                    .collect();
+                Light::from_pairs(&pairs, &path)
+            })
+            .collect::<Result<_>>()?;
+    }
+    if let Some(x) = o.f64("orbit_deg")? {
+        s.view.orbit_deg = x;
+    }
+    if let Some(x) = o.f64("elevation_deg")? {
+        s.view.elevation_deg = x;
+    }
+    if let Some(x) = o.f64("fov_deg")? {
+        s.view.fov_deg = x;
+    }
+    if let Some(x) = o.f64("distance")? {
+        s.view.distance = Some(x);
+    }
+    if let Some(n) = o.u64("turntable")? {
+        if n == 0 {
+            return Err(Error::invalid(
+                o.key("turntable"),
+                n,
+                "at least 1 frame (leave the key out for a single image)",
+            ));
+        }
+        s.turntable = n.min(u32::MAX as u64) as u32;
+    }
+    s.check().map_err(|e| e.within("preview"))?;
+    Ok(s)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::render::{Base, Shape};
+    use serde_json::json;
+
+    #[test]
+    fn preview_object_overrides_defaults() {
+        let doc = json!({"preview": {
+            "shape": "torus", "size": "320x200", "ssaa": 3, "exposure": 1.5, "tone": "off",
+            "roughness_deg": 8, "base": "#808080", "orbit_deg": 15, "elevation_deg": 30,
+            "fov_deg": 40, "distance": 5, "turntable": 12,
+            "lights": [{"type": "sky", "intensity": 0.5},
+                       {"type": "area", "azimuth_deg": 30, "size_deg": 10, "illuminant": "A"}]
+        }});
+        let s = parse(&doc["preview"]).unwrap();
+        assert_eq!(s.shape, Shape::Torus);
+        assert_eq!((s.width, s.height, s.ssaa, s.turntable), (320, 200, 3, 12));
+        assert!(!s.tone && s.exposure == 1.5 && s.roughness_deg == 8.0);
+        let Base::Diffuse(grey) = s.base else {
+            panic!()
+        };
+        assert!((grey[0] - 0.2158605).abs() < 1e-6, "{grey:?}"); // IEC 61966-2-1 decode of 128/255
+        assert_eq!(s.lights.len(), 2);
+        assert_eq!(s.lights[1].illuminant.as_ref().map(|i| i.name()), Some("A"));
+        assert_eq!(s.view.distance, Some(5.0));
+        s.check().unwrap();
+    }
+
+    #[test]
+    fn unknown_or_bad_preview_keys_are_named() {
+        for (doc, needle) in [
+            (json!({"preview": {"shap": "sphere"}}), "preview.shap"),
+            (json!({"preview": {"shape": "cube"}}), "preview.shape"),
+            (json!({"preview": {"size": "100"}}), "preview.size"),
+            (
+                json!({"preview": {"lights": [{"type": "area", "colour": 1}]}}),
+                "preview.lights[0].colour",
+            ),
+            (
+                json!({"preview": {"lights": [{"type": "sky", "size_deg": 3}]}}),
+                "preview.lights[0].size_deg",
+            ),
+            (json!({"preview": {"base": "grey"}}), "preview.base"),
+            (json!({"preview": {"tone": 3}}), "preview.tone"),
+        ] {
+            let err = parse(&doc["preview"]).unwrap_err().to_string();
+            assert!(err.contains(needle), "{err}");
+        }
+    }
+}
