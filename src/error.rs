@@ -1,5 +1,6 @@
 //! Typed errors of the engine. The command line adds the file name and maps
-//! every variant to exit code 2 (bad input).
+//! every variant to exit code 2 (bad input), except [`Error::NotFinite`]
+//! (a value that cannot be computed: exit code 1).
 
 use std::fmt::Display;
 
@@ -53,6 +54,14 @@ pub enum Error {
         /// Last tabulated wavelength.
         max_nm: f64,
     },
+    /// A value of a valid design that cannot be computed (not finite).
+    #[error("{at}: {what} is not finite")]
+    NotFinite {
+        /// Where, e.g. `angle 30°` or `geometry 45as15`.
+        at: String,
+        /// What, e.g. `the colour`.
+        what: String,
+    },
 }
 
 impl Error {
@@ -102,7 +111,7 @@ impl Error {
                 min_nm,
                 max_nm,
             },
-            other @ Error::Syntax { .. } => other,
+            other @ (Error::Syntax { .. } | Error::NotFinite { .. }) => other,
         }
     }
 }

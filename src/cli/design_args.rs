@@ -1,11 +1,25 @@
 //! Pieces shared by the design commands: target colours, seeds, progress.
 
 use std::io::IsTerminal;
+use std::path::Path;
 
 use lamella::angle_colour::Viewing;
 use lamella::colorimetry::{rgb_to_xyz_under, xyz_to_lab};
 
 use super::Failure;
+
+/// An engine error about `path` as a failure: exit code 1 for a value that
+/// cannot be computed, 2 for bad input.
+pub fn engine_failure(path: &Path, e: lamella::Error) -> Failure {
+    let code = match e {
+        lamella::Error::NotFinite { .. } => 1,
+        _ => 2,
+    };
+    Failure {
+        message: format!("{}: {e}", path.display()),
+        code,
+    }
+}
 
 /// A target colour as given on the command line.
 #[derive(Debug, Clone, clap::Args)]
