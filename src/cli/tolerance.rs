@@ -157,6 +157,9 @@ pub fn run(args: &ToleranceArgs) -> CliResult {
         lamella::Error::Invalid { key, value, why } if key.starts_with("yield_") => {
             Failure::input(format!("--{} {value}: {why}", key.replace('_', "-")))
         }
+        lamella::Error::Invalid { key, value, why } if key == "per_period" => {
+            Failure::input(format!("--per-period: {value}: {why}"))
+        }
         e => engine_failure(&args.scene, e),
     })?;
     let mut report = stats_json(&out.overall);
