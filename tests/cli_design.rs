@@ -62,9 +62,12 @@ fn match_writes_report_and_scene() {
     assert_eq!(r["thicknesses_nm"], r2["thicknesses_nm"]);
 }
 
+/// An unreachable target: exit code 3, the closest design still written and
+/// reported, and the search ended by the stop rule, not the budget.
 #[test]
-fn unreachable_target_is_reported() {
+fn unreachable_target_exits_3_and_keeps_the_result() {
     let out_scene = tmp("far.json");
+    let _ = std::fs::remove_file(&out_scene);
     let o = lamella(&[
         "match",
         SCENE,
@@ -72,14 +75,107 @@ fn unreachable_target_is_reported() {
         "20,80,80",
         "--out-scene",
         &out_scene,
-        "--max-evals",
-        "3000",
     ]);
-    assert!(o.status.success());
+    assert_eq!(o.status.code(), Some(3));
     let r: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
     assert_eq!(r["reachable"], false);
     assert!(r["delta_e00"].as_f64().unwrap() > 1.0);
-    assert!(String::from_utf8_lossy(&o.stderr).contains("not reached"));
+    assert_eq!(r["stopped"], "no_improvement");
+    assert!(r["evaluations"].as_u64().unwrap() < r["max_evals"].as_u64().unwrap());
+    assert!(std::path::Path::new(&out_scene).exists());
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        err.contains("not reached") && err.trim_end().lines().count() == 1,
+        "{err}"
+    );
+    // The exit codes are documented in the help.
+    let help = String::from_utf8(lamella(&["match", "--help"]).stdout).unwrap();
+    assert!(
+        help.contains("Exit codes") && help.contains("3 it was not"),
+        "{help}"
+    );
+}
+
+/// A thickness limit the bounds cannot meet (three periods of at least
+/// 120 + 220 nm plus a fixed 157 nm layer: 1177 nm) is refused at once with
+/// exit code 2, naming the limit and the smallest total; nothing is written.
+#[test]
+fn infeasible_thickness_limit_exits_2() {
+    let teal = concat!(env!("CARGO_MANIFEST_DIR"), "/scenes/teal_label_foil.json");
+    let out_scene = tmp("never-teal.json");
+    let o = lamella(&[
+        "match",
+        teal,
+        "--target-hex",
+        "#3366CC",
+        "--max-total-nm",
+        "900",
+        "--out-scene",
+        &out_scene,
+    ]);
+    assert_eq!(o.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        err.contains("--max-total-nm 900") && err.contains("1177 nm"),
+        "{err}"
+    );
+    assert!(o.stdout.is_empty() && !std::path::Path::new(&out_scene).exists());
+}
+
+/// A scene whose colour cannot be computed (an index of 1e200 overflows):
+/// every design command exits 1 with one line naming the angle, and prints
+/// no number.
+#[test]
+fn colour_that_is_not_finite_exits_1() {
+    let scene = tmp("huge.json");
+    std::fs::write(
+        &scene,
+        r#"{"materials": {"huge": {"n": 1e200}, "glass": {"n": 1.52}},
+ "stack": [{"material": "huge", "thickness_nm": 100, "vary_nm": [50, 150]}],
+ "substrate": "glass", "wavelengths_nm": {"from": 400, "to": 700, "step": 10},
+ "angles_deg": [0, 30]}"#,
+    )
+    .unwrap();
+    let measured = tmp("huge.csv");
+    std::fs::write(
+        &measured,
+        "wavelength_nm,R\n400,0.1\n500,0.2\n600,0.1\n700,0.3\n",
+    )
+    .unwrap();
+    let out = tmp("huge-out.json");
+    for args in [
+        vec![
+            "match",
+            &scene,
+            "--target-lab",
+            "50,0,0",
+            "--max-evals",
+            "200",
+            "--out-scene",
+            &out,
+        ],
+        vec!["tolerance", &scene, "--sigma-nm", "1", "--samples", "10"],
+        vec!["sweep", &scene, "--grid", "3"],
+        vec![
+            "fit",
+            &scene,
+            "--measured",
+            &measured,
+            "--max-evals",
+            "200",
+            "--out-scene",
+            &out,
+        ],
+    ] {
+        let o = lamella(&args);
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert_eq!(o.status.code(), Some(1), "{args:?}: {err}");
+        assert!(
+            err.contains("angle 0°") && err.trim_end().lines().count() == 1,
+            "{err}"
+        );
+        assert!(o.stdout.is_empty(), "{args:?}");
+    }
 }
 
 #[test]
@@ -177,6 +273,48 @@ fn bad_input_exits_2() {
         vec!["sweep", SCENE, "--grid", "0"],
         vec!["tolerance", SCENE, "--samples", "10"],
         vec![
+            "tolerance",
+            SCENE,
+            "--sigma-nm",
+            "1",
+            "--yield-angles",
+            "20",
+        ],
+        vec![
+            "tolerance",
+            SCENE,
+            "--sigma-nm",
+            "1",
+            "--yield-angles",
+            "0,x",
+        ],
+        vec![
+            "tolerance",
+            SCENE,
+            "--sigma-nm",
+            "1",
+            "--yield-geometries",
+            "45as15",
+        ],
+        vec![
+            "match",
+            SCENE,
+            "--target-lab",
+            "120,0,0",
+            "--out-scene",
+            &out,
+        ],
+        vec![
+            "match",
+            SCENE,
+            "--target-lab",
+            "50,0,0",
+            "--max-evals",
+            "0",
+            "--out-scene",
+            &out,
+        ],
+        vec![
             "fit",
             SCENE,
             "--measured",
@@ -193,4 +331,69 @@ fn bad_input_exits_2() {
             String::from_utf8_lossy(&o.stderr)
         );
     }
+}
+
+/// Readings in percent are refused with the file, line, value and a hint.
+#[test]
+fn percent_readings_exit_2() {
+    let csv = tmp("percent.csv");
+    std::fs::write(&csv, "wavelength_nm,R\n400,0.5\n410,15.4\n").unwrap();
+    let o = lamella(&[
+        "fit",
+        SCENE,
+        "--measured",
+        &csv,
+        "--out-scene",
+        &tmp("never-fit.json"),
+    ]);
+    assert_eq!(o.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&o.stderr);
+    assert!(
+        err.contains("percent.csv")
+            && err.contains("line 3")
+            && err.contains("15.4")
+            && err.contains("looks like percent: divide by 100"),
+        "{err}"
+    );
+}
+
+/// `--yield-angles` picks the angles of the overall yield (all still
+/// reported); `--per-period` gives every deposited layer its own error.
+#[test]
+fn tolerance_yield_angles_and_per_period() {
+    let o = lamella(&[
+        "tolerance",
+        SCENE,
+        "--sigma-nm",
+        "2",
+        "--samples",
+        "50",
+        "--yield-angles",
+        "0,30",
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let r: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(r["yield_angles_deg"], serde_json::json!([0.0, 30.0]));
+    let in_yield: Vec<bool> = r["angles"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|a| a["in_yield"].as_bool().unwrap())
+        .collect();
+    assert_eq!(in_yield, [true, false, true, false, false]);
+    let teal = concat!(env!("CARGO_MANIFEST_DIR"), "/scenes/teal_label_foil.json");
+    let o = lamella(&[
+        "tolerance",
+        teal,
+        "--sigma-nm",
+        "2",
+        "--samples",
+        "20",
+        "--per-period",
+    ]);
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let r: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(r["per_period"], true);
+    assert_eq!(r["deposited_layers"], 7);
+    assert_eq!(r["sensitivity"].as_array().unwrap().len(), 3);
 }

@@ -58,10 +58,13 @@ fn check_csv(text: &str, what: &str) {
     assert_eq!(bad_token(text), None, "{what}");
 }
 
+/// Runs a command that must succeed; `match` may also report (exit 3) that
+/// its target was not reached, with its outputs written all the same.
 fn run_ok(args: &[&str], what: &str) -> Output {
     let out = lamella(args);
+    let reported = args[0] == "match" && out.status.code() == Some(3);
     assert!(
-        out.status.success(),
+        out.status.success() || reported,
         "{what}: {args:?} exited {:?}: {}",
         out.status.code(),
         String::from_utf8_lossy(&out.stderr)

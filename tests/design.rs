@@ -1,11 +1,13 @@
-//! Design tools: recovery of known designs by match and fit, tolerance
-//! behaviour, sweep sharding.
+//! Design tools: recovery of known designs by match and fit, how the search
+//! stops, limits refused up front, tolerance behaviour (shared and
+//! per-period errors, the angles that count), sweep sharding, and colours
+//! that cannot be computed.
 
 use lamella::angle_colour::{Viewing, angle_colours};
 use lamella::colorimetry::delta_e2000;
 use lamella::design::coating::At;
 use lamella::design::matching::{Goal, MatchSettings, match_colour};
-use lamella::design::search::Budget;
+use lamella::design::search::{Budget, Stopped};
 use lamella::design::variables::{edited_document, varying};
 use lamella::scene::Scene;
 use rand::rngs::StdRng;
@@ -57,6 +59,7 @@ fn settings(goals: Vec<Goal>, seed: u64) -> MatchSettings {
             max_evals: 40_000,
             good_enough: 0.03,
             handover: 0.5,
+            min_gain: 0.05,
             seed,
         },
     }
@@ -88,6 +91,7 @@ fn random_feasible_targets_are_reached() {
         let de = delta_e2000(target, got);
         assert!((de - out.goals[0].delta_e00).abs() < 1e-6, "{de} vs report");
         if de <= 1.0 {
+            assert_eq!(out.stopped, Stopped::Reached);
             reached += 1;
         } else {
             eprintln!(
@@ -124,6 +128,7 @@ fn fit_recovers_a_noisy_synthetic_spectrum() {
             max_evals: 20_000,
             good_enough: 1e-5,
             handover: 0.0,
+            min_gain: 1e-5,
             seed: 1,
         },
     };
@@ -159,6 +164,8 @@ fn tolerance_is_zero_at_zero_sigma_and_grows_with_sigma() {
         let settings = ToleranceSettings {
             thickness: Sigma::Nm(s),
             sigma_n: dn,
+            per_period: false,
+            yield_at: vec![],
             samples: 200,
             limit: 1.0,
             seed: 5,
@@ -267,7 +274,9 @@ fn sweep_shards_concatenate_to_the_whole() {
         },
     ] {
         let total = plan.count(5).unwrap();
-        let whole: Vec<u8> = lines(&eval, plan, 0..total, Some([50.0, 0.0, 0.0])).concat();
+        let whole: Vec<u8> = lines(&eval, plan, 0..total, Some([50.0, 0.0, 0.0]))
+            .unwrap()
+            .concat();
         let parts: Vec<u8> = (1..=3)
             .flat_map(|i| {
                 lines(
@@ -276,6 +285,7 @@ fn sweep_shards_concatenate_to_the_whole() {
                     shard(total, i, 3).unwrap(),
                     Some([50.0, 0.0, 0.0]),
                 )
+                .unwrap()
                 .concat()
             })
             .collect();
@@ -289,4 +299,315 @@ fn sweep_shards_concatenate_to_the_whole() {
     }
     assert!(shard(10, 0, 3).is_err() && shard(10, 4, 3).is_err() && shard(10, 1, 0).is_err());
     assert_eq!(Plan::Grid(3).count(5).unwrap(), 243);
+}
+
+/// A target no design of the bounds comes near stops once restarts stop
+/// paying, well before the budget, and says so.
+#[test]
+fn unreachable_target_stops_before_the_budget() {
+    let scene = five_layer(r#"{"from": 0, "to": 0, "step": 1}"#);
+    let mut s = settings(
+        vec![Goal {
+            at: At::Angle(0.0),
+            lab: [20.0, 80.0, 80.0],
+        }],
+        1,
+    );
+    s.budget.max_evals = 60_000;
+    let out = match_colour(&scene, &Viewing::of_scene(&scene).unwrap(), &s, &|_, _| {}).unwrap();
+    assert!(!out.reachable && out.goals[0].delta_e00 > 1.0);
+    assert_eq!(out.stopped, Stopped::NoImprovement);
+    assert!(
+        out.evaluations < s.budget.max_evals / 2,
+        "{}",
+        out.evaluations
+    );
+    // The same seed stops at the same place with the same design.
+    let again = match_colour(&scene, &Viewing::of_scene(&scene).unwrap(), &s, &|_, _| {}).unwrap();
+    assert_eq!(out.thicknesses_nm, again.thicknesses_nm);
+    assert_eq!(out.evaluations, again.evaluations);
+}
+
+/// Two periods of two free layers, 30–150 nm each, over one fixed 100 nm
+/// layer: totals run from 2·(30 + 30) + 100 = 220 to 2·(150 + 150) + 100 = 700 nm.
+fn repeat_scene() -> Scene {
+    let text = r#"{
+  "materials": {"hi": {"n": 2.3}, "lo": {"n": 1.45}},
+  "stack": [{"repeat": 2, "stack": [
+      {"material": "hi", "thickness_nm": 60, "vary_nm": [30, 150]},
+      {"material": "lo", "thickness_nm": 90, "vary_nm": [30, 150]}]},
+    {"material": "hi", "thickness_nm": 100}],
+  "substrate": "lo",
+  "wavelengths_nm": {"from": 380, "to": 780, "step": 5}
+}"#;
+    Scene::from_json(text, &|_| Err("no files".into())).unwrap()
+}
+
+/// A thickness limit below the smallest total the bounds allow (periods
+/// counted) is refused before the search starts: progress, which the search
+/// reports after every generation, is never called.
+#[test]
+fn infeasible_thickness_limit_is_refused_before_any_evaluation() {
+    let scene = repeat_scene();
+    let viewing = Viewing::of_scene(&scene).unwrap();
+    let mut s = settings(
+        vec![Goal {
+            at: At::Angle(0.0),
+            lab: [50.0, 0.0, 0.0],
+        }],
+        1,
+    );
+    s.max_total_nm = Some(219.0);
+    let calls = std::sync::atomic::AtomicUsize::new(0);
+    let count = |_: usize, _: f64| {
+        calls.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+    };
+    let e = match_colour(&scene, &viewing, &s, &count).unwrap_err();
+    assert_eq!(calls.load(std::sync::atomic::Ordering::Relaxed), 0);
+    let text = e.to_string();
+    assert!(
+        text.starts_with("max_total_nm = 219") && text.contains("is 220 nm"),
+        "{text}"
+    );
+    // At the smallest total the limit can be met; the report gives the range.
+    s.max_total_nm = Some(220.0);
+    s.budget.max_evals = 200;
+    let out = match_colour(&scene, &viewing, &s, &count).unwrap();
+    assert!(calls.load(std::sync::atomic::Ordering::Relaxed) > 0);
+    assert_eq!(out.total_range_nm, (220.0, 700.0));
+    // A film's lightness cannot pass 100 nor fall below 0.
+    s.goals[0].lab = [101.0, 0.0, 0.0];
+    assert!(match_colour(&scene, &viewing, &s, &|_, _| panic!("evaluated")).is_err());
+    s.goals[0].lab = [-1.0, 0.0, 0.0];
+    assert!(match_colour(&scene, &viewing, &s, &|_, _| panic!("evaluated")).is_err());
+}
+
+fn tolerance_settings(
+    sigma_nm: f64,
+    per_period: bool,
+    yield_at: Vec<At>,
+) -> lamella::design::tolerance::ToleranceSettings {
+    lamella::design::tolerance::ToleranceSettings {
+        thickness: lamella::scene::Sigma::Nm(sigma_nm),
+        sigma_n: 0.0,
+        per_period,
+        yield_at,
+        samples: 300,
+        limit: 1.0,
+        seed: 3,
+    }
+}
+
+/// Property: a 30-period quarter-wave mirror (550 nm) with a 2 nm σ. When
+/// every period shares one error, the whole stop band moves with it and the
+/// reflected colour follows; when each deposited layer draws its own, the
+/// band's position follows roughly the mean of 60 independent errors
+/// (σ/√60), so the colour spreads less (though not √60 times less:
+/// independent errors also disturb the spectrum in ways a shared one does
+/// not, beyond the band's position).
+#[test]
+fn per_period_errors_average_out_in_a_many_period_stack() {
+    use lamella::design::tolerance::tolerance;
+    let text = r#"{
+  "materials": {"hi": {"n": 2.35}, "lo": {"n": 1.46}},
+  "stack": [{"repeat": 30, "stack": [
+      {"material": "hi", "thickness_nm": 58.5},
+      {"material": "lo", "thickness_nm": 94.2}]}],
+  "substrate": "lo",
+  "wavelengths_nm": {"from": 380, "to": 780, "step": 5},
+  "angles_deg": [0]
+}"#;
+    let scene = Scene::from_json(text, &|_| Err("no files".into())).unwrap();
+    let viewing = Viewing::of_scene(&scene).unwrap();
+    let shared = tolerance(&scene, &viewing, &tolerance_settings(2.0, false, vec![])).unwrap();
+    let own = tolerance(&scene, &viewing, &tolerance_settings(2.0, true, vec![])).unwrap();
+    assert_eq!((shared.deposited_layers, own.deposited_layers), (2, 60));
+    assert!(
+        own.overall.p95 < 0.8 * shared.overall.p95,
+        "per period {} vs shared {}",
+        own.overall.p95,
+        shared.overall.p95
+    );
+    // Sensitivity stays per layer as written (each moved in every period).
+    assert_eq!(own.sensitivity.len(), 2);
+}
+
+/// The written-out periods of a graded repeat reproduce the scene's own
+/// expansion: at σ = 0 the nominal colour equals the ordinary spectrum →
+/// colour path, and every sample equals it.
+#[test]
+fn per_period_expansion_matches_the_scene() {
+    use lamella::design::tolerance::tolerance;
+    let text = r#"{
+  "materials": {"hi": {"n": 2.35}, "lo": {"n": 1.46}},
+  "stack": [{"repeat": 5, "chirp_scale": 1.3, "stack": [
+      {"material": "hi", "thickness_nm": 58.5},
+      {"repeat": 2, "stack": [{"material": "lo", "thickness_nm": 47.1}]}]},
+    {"material": "hi", "thickness_nm": 20}],
+  "substrate": "lo",
+  "wavelengths_nm": {"from": 380, "to": 780, "step": 5},
+  "angles_deg": [0, 40]
+}"#;
+    let scene = Scene::from_json(text, &|_| Err("no files".into())).unwrap();
+    let viewing = Viewing::of_scene(&scene).unwrap();
+    let want = labs(&scene);
+    for per_period in [false, true] {
+        let out = tolerance(
+            &scene,
+            &viewing,
+            &tolerance_settings(0.0, per_period, vec![]),
+        )
+        .unwrap();
+        for (got, want) in out.nominal_lab.iter().zip(&want) {
+            assert!(delta_e2000(*got, *want) < 1e-9, "{got:?} vs {want:?}");
+        }
+        assert_eq!(out.overall.max, 0.0);
+    }
+}
+
+/// Only the chosen angles count toward the overall statistics and yield;
+/// an angle off the scene's grid is refused.
+#[test]
+fn yield_angles_choose_what_counts() {
+    use lamella::design::tolerance::tolerance;
+    let scene = five_layer(r#"{"from": 0, "to": 60, "step": 30}"#);
+    let viewing = Viewing::of_scene(&scene).unwrap();
+    let all = tolerance(&scene, &viewing, &tolerance_settings(2.0, false, vec![])).unwrap();
+    assert_eq!(all.counted, vec![true; 3]);
+    for (i, a) in [0.0, 30.0, 60.0].iter().enumerate() {
+        let one = tolerance(
+            &scene,
+            &viewing,
+            &tolerance_settings(2.0, false, vec![At::Angle(*a)]),
+        )
+        .unwrap();
+        // Same draws, so the per-angle statistics are unchanged.
+        assert_eq!(one.per_point, all.per_point);
+        assert_eq!(one.overall, one.per_point[i]);
+        assert!(one.overall.yield_fraction >= all.overall.yield_fraction);
+    }
+    let e = tolerance(
+        &scene,
+        &viewing,
+        &tolerance_settings(2.0, false, vec![At::Angle(20.0)]),
+    )
+    .unwrap_err();
+    assert!(e.to_string().starts_with("yield_angles = 20"), "{e}");
+}
+
+/// A layer whose index is too large to compute with gives colours that are
+/// not finite: every design tool refuses with an error naming the angle
+/// instead of a ΔE00 of 0 or a yield of 1.
+#[test]
+fn colours_that_are_not_finite_are_refused() {
+    use lamella::Error;
+    use lamella::design::evaluator::Evaluator;
+    use lamella::design::sweep::{Plan, lines};
+    use lamella::design::tolerance::tolerance;
+    let text = r#"{
+  "materials": {"huge": {"n": 1e200}, "glass": {"n": 1.52}},
+  "stack": [{"material": "huge", "thickness_nm": 100, "vary_nm": [50, 150]}],
+  "substrate": "glass",
+  "wavelengths_nm": {"from": 400, "to": 700, "step": 10},
+  "angles_deg": [0, 30]
+}"#;
+    let scene = Scene::from_json(text, &|_| Err("no files".into())).unwrap();
+    let viewing = Viewing::of_scene(&scene).unwrap();
+    let not_finite = |e: Error| {
+        let text = e.to_string();
+        assert!(
+            matches!(e, Error::NotComputable { .. }) && text.contains("angle 0°"),
+            "{text}"
+        );
+    };
+    let s = settings(
+        vec![Goal {
+            at: At::Angle(0.0),
+            lab: [50.0, 0.0, 0.0],
+        }],
+        1,
+    );
+    let mut small = s.clone();
+    small.budget.max_evals = 100;
+    not_finite(match_colour(&scene, &viewing, &small, &|_, _| {}).unwrap_err());
+    not_finite(tolerance(&scene, &viewing, &tolerance_settings(1.0, false, vec![])).unwrap_err());
+    let eval = Evaluator::colour(&scene, varying(&scene), &[0.0], &viewing).unwrap();
+    not_finite(lines(&eval, Plan::Grid(2), 0..2, None).unwrap_err());
+}
+
+/// Measured reflectance in percent is refused with the line and the value.
+#[test]
+fn percent_readings_are_refused() {
+    use lamella::design::fit::parse_measured;
+    assert!(parse_measured("wavelength_nm,R\n500,1.5\n", 0.0).is_ok());
+    let e = parse_measured("wavelength_nm,R\n500,0.2\n510,45.2\n", 0.0).unwrap_err();
+    let text = e.to_string();
+    assert!(
+        text.contains("line 3")
+            && text.contains("45.2")
+            && text.contains("looks like percent: divide by 100"),
+        "{text}"
+    );
+}
+
+/// Media with identical indices share the evaluator's precomputed terms;
+/// on seeded random stacks mixing such twins (and an absorbing layer) the
+/// evaluator agrees with the scene's ordinary spectra, with and without
+/// index shifts given to one twin.
+#[test]
+fn twin_media_share_terms_without_changing_spectra() {
+    use lamella::angle_colour::{Polarization, Side};
+    use lamella::design::evaluator::Evaluator;
+    let mut rng = StdRng::seed_from_u64(21);
+    for _ in 0..8 {
+        let names = ["a", "a_twin", "b", "metal"];
+        // Both twins are always used; the other layers are drawn.
+        let layers: Vec<String> = (0..5)
+            .map(|i| {
+                format!(
+                    r#"{{"material": "{}", "thickness_nm": {:.1}}}"#,
+                    if i < 2 {
+                        names[i]
+                    } else {
+                        names[rng.random_range(0..4)]
+                    },
+                    rng.random_range(5.0..150.0)
+                )
+            })
+            .collect();
+        let text = format!(
+            r#"{{"materials": {{"a": {{"n": 2.1}}, "a_twin": {{"n": 2.1}}, "b": {{"n": 1.4}},
+                "metal": {{"n": 0.2, "k": 3.0}}, "glass": {{"n": 1.52}}}},
+              "stack": [{}], "substrate": "glass",
+              "wavelengths_nm": {{"from": 400, "to": 700, "step": 20}}, "angles_deg": [0, 50]}}"#,
+            layers.join(",")
+        );
+        let scene = Scene::from_json(&text, &|_| Err("no files".into())).unwrap();
+        let want = scene.spectra().unwrap();
+        let eval = Evaluator::spectral(
+            &scene,
+            vec![],
+            &scene.wavelengths_nm,
+            &scene.angles_deg,
+            Side::Reflect,
+            Polarization::Unpolarized,
+        )
+        .unwrap();
+        let nw = scene.wavelengths_nm.len();
+        let media = scene.media.len();
+        let twin = scene.medium("a_twin").unwrap();
+        let zero = vec![0.0; media];
+        let mut shifted = zero.clone();
+        shifted[twin] = 1e-12;
+        for dn in [None, Some(zero.as_slice()), Some(shifted.as_slice())] {
+            eval.eval(&[], dn, |o| {
+                for a in 0..2 {
+                    for (w, rt) in want.at_angle(a).iter().enumerate() {
+                        let got = o.spectrum[a * nw + w];
+                        assert!((got - rt.r()).abs() < 1e-9, "{got} vs {}", rt.r());
+                    }
+                }
+            });
+        }
+    }
 }

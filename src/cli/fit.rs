@@ -20,7 +20,8 @@ pub struct FitArgs {
     /// a `coating` section, the platelet's).
     pub scene: PathBuf,
     /// Measured unpolarized reflectance: CSV with a header and columns
-    /// `wavelength_nm,R` (R as a fraction), optionally `angle_deg`. For a
+    /// `wavelength_nm,R` (R as a fraction; R above 1.5 is refused as
+    /// percent), optionally `angle_deg`. For a
     /// coating, a `geometry` column (names such as 45as15) instead, and R the
     /// reflectance factor as a fraction: 1 is the perfect white diffuser
     /// (Y = 100 in `multiangle`), so divide readings in percent by 100.
@@ -35,7 +36,8 @@ pub struct FitArgs {
     /// Seed of the global search.
     #[arg(long, default_value_t = 1)]
     pub seed: u64,
-    /// Most model evaluations in the global search.
+    /// Most model evaluations in the global search (which also ends when a
+    /// restart no longer lowers the rms residual by 1e-5).
     #[arg(long, default_value_t = 20_000)]
     pub max_evals: usize,
     /// Write the scene with the fitted thicknesses here (atomically).
@@ -63,10 +65,11 @@ pub fn run(args: &FitArgs) -> CliResult {
             max_evals: args.max_evals.max(1),
             good_enough: 1e-5,
             handover: 0.0,
+            min_gain: 1e-5,
             seed: args.seed,
         },
     };
-    let bad = |e: lamella::Error| Failure::input(format!("{}: {e}", args.scene.display()));
+    let bad = |e: lamella::Error| Failure::scene(&args.scene, e);
     let out = fit(&scene, &measured, &settings).map_err(bad)?;
     let doc = edited_document(&scene.document, &out.variables, &out.thicknesses_nm).map_err(bad)?;
     write_out(Some(&args.out_scene), &[json_bytes(&doc)])?;

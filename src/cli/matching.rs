@@ -6,7 +6,9 @@ use std::time::Instant;
 
 use lamella::colorimetry::Colour;
 use lamella::design::coating::At;
-use lamella::design::matching::{Goal, MatchOutcome, MatchSettings, match_colour};
+use lamella::design::matching::{
+    Goal, MIN_GAIN_DELTA_E, MatchOutcome, MatchSettings, REACHABLE_DELTA_E, match_colour,
+};
 use lamella::design::search::Budget;
 use lamella::design::variables::edited_document;
 use serde_json::{Value, json};
@@ -15,8 +17,31 @@ use super::color::ViewArgs;
 use super::design_args::{Format, Progress, TargetArgs, json_bytes, parse_lab};
 use super::{CliResult, Failure, load_scene, write_out};
 
+/// How the search ends and what the exit code says, for `--help`.
+pub const HELP: &str = "\
+Stopping: the search (differential evolution until its best has not fallen
+by 1 % for 10 generations, then Nelder-Mead from the best few candidates,
+restarted with fresh seeds) ends at the first of:
+  reached         every goal within ΔE00 1 after a local refinement (and the
+                  thickness limit held); not with --brightness-weight > 0,
+                  which always leaves brightness to gain
+  no_improvement  4 restarts in a row did not lower the best cost (the sum
+                  of the goals' ΔE00, plus the brightness and limit terms)
+                  by 0.05
+  budget          --max-evals evaluations spent
+The report's `stopped` says which, `evaluations` how many were spent.
+Limits no design can meet are refused before the search: --max-total-nm
+below the smallest total the vary_nm bounds allow (each variable in a repeat
+group counted once per period), or a film target with L* outside 0-100.
+
+Exit codes: 0 the target was reached; 3 it was not (the closest design is
+still written to --out-scene and reported, with `reachable` false); 2 bad
+input or a limit that cannot be met; 1 a colour that cannot be computed or a
+file that cannot be written.";
+
 /// Flags of `lamella match`.
 #[derive(Debug, Clone, clap::Args)]
+#[command(after_help = HELP)]
 pub struct MatchArgs {
     /// Scene file (JSON); layers with `vary_nm: [low, high]` are optimised
     /// (a layer in a repeat group is one variable for all its periods). With
@@ -53,7 +78,8 @@ pub struct MatchArgs {
     /// Seed of the search (same seed, same result).
     #[arg(long, default_value_t = 1)]
     pub seed: u64,
-    /// Most design evaluations.
+    /// Most design evaluations (the search usually stops well before; see
+    /// below).
     #[arg(long, default_value_t = 60_000)]
     pub max_evals: usize,
     /// Write the scene with the optimised thicknesses here (atomically).
@@ -117,19 +143,28 @@ pub fn run(args: &MatchArgs) -> CliResult {
             "--brightness-weight: must be a finite number ≥ 0",
         ));
     }
+    if args.max_evals == 0 {
+        return Err(Failure::input("--max-evals 0: must be at least 1"));
+    }
     let settings = MatchSettings {
         goals,
         max_total_nm: args.max_total_nm,
         brightness_weight: args.brightness_weight,
         budget: Budget {
-            max_evals: args.max_evals.max(1),
+            max_evals: args.max_evals,
             good_enough: 0.03,
             handover: 0.5,
+            min_gain: MIN_GAIN_DELTA_E,
             seed: args.seed,
         },
     };
     let bar = Progress::new(settings.budget.max_evals as u64, "match");
-    let bad = |e: lamella::Error| Failure::input(format!("{}: {e}", args.scene.display()));
+    let bad = |e: lamella::Error| match e {
+        lamella::Error::Invalid { key, value, why } if key == "max_total_nm" => {
+            Failure::input(format!("--max-total-nm {value}: {why}"))
+        }
+        e => Failure::scene(&args.scene, e),
+    };
     let out = match_colour(&scene, &viewing, &settings, &|n, best| {
         bar.set(n as u64, format!("cost {best:.3}"))
     })
@@ -139,13 +174,33 @@ pub fn run(args: &MatchArgs) -> CliResult {
     write_out(Some(&args.out_scene), &[json_bytes(&doc)])?;
     let report = report(&out, args, started.elapsed().as_secs_f64());
     write_out(args.output.as_deref(), &[json_bytes(&report)])?;
-    if !out.reachable {
-        eprintln!(
-            "lamella: target not reached: closest ΔE00 {:.3} (see the report)",
-            out.goals[0].delta_e00
-        );
+    if out.reachable {
+        return Ok(());
     }
-    Ok(())
+    let worst = out
+        .goals
+        .iter()
+        .max_by(|a, b| a.delta_e00.total_cmp(&b.delta_e00))
+        .expect("at least one goal");
+    let why = if worst.delta_e00 > REACHABLE_DELTA_E {
+        format!(
+            "closest ΔE00 {:.3} at {}",
+            worst.delta_e00,
+            worst.goal.at.describe()
+        )
+    } else {
+        format!(
+            "the closest design is {:.1} nm thick, over --max-total-nm",
+            out.total_nm
+        )
+    };
+    Err(Failure {
+        message: format!(
+            "target not reached: {why} (stopped: {}; design and report written)",
+            out.stopped.name()
+        ),
+        code: 3,
+    })
 }
 
 /// One geometry name (`45as15`) as a point.
@@ -190,7 +245,7 @@ fn report(out: &MatchOutcome, args: &MatchArgs, wall: f64) -> Value {
         "delta_e00": out.goals[0].delta_e00,
         "delta_e00_max": worst,
         "reachable": out.reachable,
-        "reachable_limit_delta_e00": lamella::design::matching::REACHABLE_DELTA_E,
+        "reachable_limit_delta_e00": REACHABLE_DELTA_E,
         "goals": out.goals.iter().map(|g| {
             let mut v = point_json(&g.goal.at);
             v.insert("target".into(), json!({"L": g.goal.lab[0], "a": g.goal.lab[1], "b": g.goal.lab[2]}));
@@ -203,7 +258,10 @@ fn report(out: &MatchOutcome, args: &MatchArgs, wall: f64) -> Value {
             "low": v.low_nm, "high": v.high_nm,
         })).collect::<Vec<_>>(),
         "total_thickness_nm": out.total_nm,
+        "total_thickness_range_nm": [out.total_range_nm.0, out.total_range_nm.1],
         "evaluations": out.evaluations,
+        "max_evals": args.max_evals,
+        "stopped": out.stopped.name(),
         "wall_time_s": wall,
         "seed": args.seed,
     })

@@ -53,7 +53,7 @@ pub fn run(args: &SweepArgs) -> CliResult {
     let scene = load_scene(&args.scene)?;
     let viewing = args.view.viewing(&scene, &args.scene)?;
     let target = args.target.lab(&viewing, &scene.wavelengths_nm)?;
-    let bad = |e: lamella::Error| Failure::input(format!("{}: {e}", args.scene.display()));
+    let bad = |e: lamella::Error| Failure::scene(&args.scene, e);
     let vars = varying(&scene);
     if vars.is_empty() {
         return Err(Failure::input(format!(
@@ -93,14 +93,23 @@ pub fn run(args: &SweepArgs) -> CliResult {
     // Streamed in batches so that a large sweep never sits in memory whole.
     let batch = 1 << 18;
     let out = args.output.as_deref();
-    output::emit_with(out, |w| {
+    let mut failed = None;
+    let written = output::emit_with(out, |w| {
         for start in range.clone().step_by(batch) {
             let end = (start + batch as u64).min(range.end);
-            lines(&eval, plan, start..end, target)
-                .iter()
-                .try_for_each(|c| w.write_all(c))?;
+            match lines(&eval, plan, start..end, target) {
+                Ok(chunks) => chunks.iter().try_for_each(|c| w.write_all(c))?,
+                Err(e) => {
+                    failed = Some(e);
+                    // Abandons the output file (never renamed into place).
+                    return Err(std::io::Error::other("a colour is not finite"));
+                }
+            }
         }
         Ok(())
-    })
-    .map_err(|e| Failure::io(out.unwrap_or(Path::new("<stdout>")), e))
+    });
+    if let Some(e) = failed {
+        return Err(bad(e));
+    }
+    written.map_err(|e| Failure::io(out.unwrap_or(Path::new("<stdout>")), e))
 }

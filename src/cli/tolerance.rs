@@ -3,6 +3,7 @@
 use std::path::PathBuf;
 use std::time::Instant;
 
+use lamella::design::coating::At;
 use lamella::design::tolerance::{Stats, ToleranceSettings, tolerance};
 use lamella::scene::Sigma;
 use serde_json::{Value, json};
@@ -16,15 +17,21 @@ use super::{CliResult, Failure, load_scene, write_out};
 ///
 /// Every layer as written in the scene draws an independent Gaussian
 /// thickness error (a layer in a repeat group carries the same error into
-/// each period) and, with --sigma-n, an independent error in its real
-/// index. The report gives ΔE00 from the nominal colour at each scene angle
-/// (median, 95th percentile, maximum, yield within --limit) and overall
-/// (each sample's worst angle). Sensitivity: each layer alone is moved by
-/// +1σ and −1σ; its ΔE00 (worst angle, mean of the two) ranks the layers,
-/// largest first (combined with the index effect when --sigma-n is given).
-/// With a `coating` section the layers are the platelet's (each error shared
-/// by every platelet of the batch) and the colour is judged at each of the
-/// coating's geometries instead of angles (report key `geometries`).
+/// each period, unless --per-period) and, with --sigma-n, an independent
+/// error in its real index. The report gives ΔE00 from the nominal colour at
+/// each scene angle (median, 95th percentile, maximum, yield within --limit)
+/// and overall (each sample's worst angle among those that count, all unless
+/// --yield-angles). Sensitivity: each layer as written alone is moved by +1σ
+/// and −1σ (in every period of its group); its ΔE00 (worst counted angle,
+/// mean of the two) ranks the layers, largest first (combined with the index
+/// effect when --sigma-n is given). With a `coating` section the layers are
+/// the platelet's (each error shared by every platelet of the batch) and the
+/// colour is judged at each of the coating's geometries instead of angles
+/// (report key `geometries`; --yield-geometries chooses among them).
+///
+/// Exit codes: 0 done; 2 bad input; 1 a colour that cannot be computed (the
+/// message names the sample and the angle or geometry) or a file that cannot
+/// be written.
 #[derive(Debug, Clone, clap::Args)]
 #[command(group(clap::ArgGroup::new("sigma").required(true).args(["sigma_nm", "sigma_pct"])))]
 pub struct ToleranceArgs {
@@ -39,6 +46,25 @@ pub struct ToleranceArgs {
     /// σ of every layer's real refractive index (absolute).
     #[arg(long, default_value_t = 0.0)]
     pub sigma_n: f64,
+    /// Every deposited layer draws its own errors: each period of a repeat
+    /// group independently (run-to-run scatter), instead of one error per
+    /// layer as written shared by all its periods (a recipe offset).
+    #[arg(long)]
+    pub per_period: bool,
+    /// Only these scene angles (comma-separated degrees, each on the scene's
+    /// angle grid) count toward the overall statistics, the yield and the
+    /// sensitivity; every angle is still reported. [default: all]
+    #[arg(
+        long,
+        value_name = "DEG,DEG,...",
+        allow_hyphen_values = true,
+        conflicts_with = "yield_geometries"
+    )]
+    pub yield_angles: Option<String>,
+    /// Coatings: only these of the coating's geometries (comma-separated
+    /// names such as 45as15,45as45) count toward the yield. [default: all]
+    #[arg(long, value_name = "NAME,NAME,...")]
+    pub yield_geometries: Option<String>,
     /// Number of Monte Carlo samples.
     #[arg(long, default_value_t = 1000)]
     pub samples: usize,
@@ -81,18 +107,66 @@ pub fn run(args: &ToleranceArgs) -> CliResult {
             args.limit
         )));
     }
+    let coating = scene.document.get("coating").is_some();
+    let yield_at = match (&args.yield_angles, &args.yield_geometries) {
+        (Some(_), _) if coating => {
+            return Err(Failure::input(
+                "--yield-angles: this scene has a coating: choose geometries with --yield-geometries",
+            ));
+        }
+        (_, Some(_)) if !coating => {
+            return Err(Failure::input(
+                "--yield-geometries: needs a scene with a `coating` section; choose angles with --yield-angles",
+            ));
+        }
+        (Some(list), _) => list
+            .split(',')
+            .map(|a| {
+                a.trim()
+                    .parse::<f64>()
+                    .ok()
+                    .filter(|a| a.is_finite())
+                    .map(At::Angle)
+                    .ok_or_else(|| {
+                        Failure::input(format!("--yield-angles {list}: `{a}` is not an angle"))
+                    })
+            })
+            .collect::<Result<Vec<_>, _>>()?,
+        (_, Some(list)) => list
+            .split(',')
+            .map(|g| match lamella::pigment::parse_name(g, "--yield-geometries") {
+                Ok(mut one) if one.len() == 1 => Ok(At::Geometry(one.remove(0))),
+                Ok(_) => Err(Failure::input(format!(
+                    "--yield-geometries {list}: `{g}` is a set; list single geometries such as 45as15"
+                ))),
+                Err(e) => Err(Failure::input(e.to_string())),
+            })
+            .collect::<Result<Vec<_>, _>>()?,
+        (None, None) => Vec::new(),
+    };
     let settings = ToleranceSettings {
         thickness,
         sigma_n: args.sigma_n,
+        per_period: args.per_period,
+        yield_at,
         samples: args.samples,
         limit: args.limit,
         seed: args.seed,
     };
-    let out = tolerance(&scene, &viewing, &settings)
-        .map_err(|e| Failure::input(format!("{}: {e}", args.scene.display())))?;
+    let out = tolerance(&scene, &viewing, &settings).map_err(|e| match e {
+        lamella::Error::Invalid { key, value, why } if key.starts_with("yield_") => {
+            Failure::input(format!("--{} {value}: {why}", key.replace('_', "-")))
+        }
+        lamella::Error::Invalid { key, value, why } if key == "per_period" => {
+            Failure::input(format!("--per-period: {value}: {why}"))
+        }
+        e => Failure::scene(&args.scene, e),
+    })?;
     let mut report = stats_json(&out.overall);
     let obj = report.as_object_mut().expect("an object");
     obj.insert("limit_delta_e00".into(), json!(args.limit));
+    obj.insert("per_period".into(), json!(args.per_period));
+    obj.insert("deposited_layers".into(), json!(out.deposited_layers));
     obj.insert("samples".into(), json!(args.samples));
     obj.insert(
         "sigma".into(),
@@ -101,18 +175,34 @@ pub fn run(args: &ToleranceArgs) -> CliResult {
             Sigma::Pct(p) => json!({"pct": p, "n": args.sigma_n}),
         },
     );
-    let coating = out.points.iter().any(|p| p.geometry().is_some());
+    let counted = out.points.iter().zip(&out.counted).filter(|(_, c)| **c);
+    obj.insert(
+        if coating {
+            "yield_geometries"
+        } else {
+            "yield_angles_deg"
+        }
+        .into(),
+        counted
+            .map(|(p, _)| match p {
+                At::Angle(a) => json!(a),
+                At::Geometry(g) => json!(g.name),
+            })
+            .collect(),
+    );
     obj.insert(
         if coating { "geometries" } else { "angles" }.into(),
         out.points
             .iter()
             .zip(&out.per_point)
             .zip(&out.nominal_lab)
-            .map(|((p, s), lab)| {
+            .zip(&out.counted)
+            .map(|(((p, s), lab), counted)| {
                 let mut v = stats_json(s);
                 let o = v.as_object_mut().expect("an object");
                 o.extend(point_json(p));
                 o.insert("nominal_lab".into(), json!(lab));
+                o.insert("in_yield".into(), json!(counted));
                 v
             })
             .collect(),

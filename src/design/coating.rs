@@ -97,8 +97,8 @@ impl CoatingEvaluator {
 /// Colours of designs at a list of points: a film's angles or a coating's
 /// geometries.
 pub(super) enum Colours {
-    Film(Evaluator),
-    Coating(CoatingEvaluator, Weights, ColourOptions),
+    Film(Box<Evaluator>),
+    Coating(Box<CoatingEvaluator>, Weights, ColourOptions),
 }
 
 impl Colours {
@@ -133,9 +133,9 @@ impl Colours {
                         "angles of incidence must lie below 90°",
                     ));
                 }
-                Ok(Colours::Film(Evaluator::colour(
+                Ok(Colours::Film(Box::new(Evaluator::colour(
                     scene, vars, &angles, viewing,
-                )?))
+                )?)))
             }
             Some(c) => {
                 let geometries = points
@@ -152,7 +152,7 @@ impl Colours {
                     .collect::<Result<Vec<Geometry>>>()?;
                 let weights = viewing.weights(&scene.wavelengths_nm)?;
                 Ok(Colours::Coating(
-                    CoatingEvaluator::new(scene, c, vars, &geometries)?,
+                    Box::new(CoatingEvaluator::new(scene, c, vars, &geometries)?),
                     weights,
                     viewing.options,
                 ))

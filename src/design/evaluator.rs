@@ -54,7 +54,15 @@ pub struct Evaluator {
     angles_deg: Vec<f64>,
     /// The evaluation point of every (angle, wavelength), angle-major.
     probes: Vec<Probe>,
+    /// Per-medium terms of each distinct index (angle-major, then
+    /// wavelength, then distinct medium).
     terms: Vec<MediumTerms>,
+    /// The distinct index each medium shares terms with, when some media
+    /// repeat another's index (as the per-layer copies of a tolerance
+    /// analysis do); `None` when all differ.
+    shared: Option<Vec<usize>>,
+    /// Number of distinct indices.
+    distinct: usize,
     side: Side,
     polarization: Polarization,
     colour: Option<(Weights, ColourOptions)>,
@@ -74,16 +82,31 @@ impl Evaluator {
     ) -> Result<Self> {
         let index = scene.indices(wavelengths_nm)?;
         let nw = wavelengths_nm.len();
-        let nm = index.len();
+        // Media with bit-identical indices share one set of terms.
+        let mut first = std::collections::HashMap::new();
+        let mut distinct: Vec<&[Complex64]> = Vec::new();
+        let class: Vec<usize> = index
+            .iter()
+            .map(|n| {
+                let bits: Vec<(u64, u64)> =
+                    n.iter().map(|z| (z.re.to_bits(), z.im.to_bits())).collect();
+                *first.entry(bits).or_insert_with(|| {
+                    distinct.push(n);
+                    distinct.len() - 1
+                })
+            })
+            .collect();
+        let shared = (distinct.len() < index.len()).then_some(class);
+        let distinct_count = distinct.len();
         let mut probes = Vec::with_capacity(angles_deg.len() * nw);
-        let mut terms = Vec::with_capacity(angles_deg.len() * nw * nm);
+        let mut terms = Vec::with_capacity(angles_deg.len() * nw * distinct.len());
         for &a in angles_deg {
             let sine = Probe::sine(a);
             for (w, &wavelength) in wavelengths_nm.iter().enumerate() {
                 let k0 = Probe::wavenumber(wavelength);
                 let at = Probe::of(k0, index[scene.incident][w].re, sine);
                 probes.push(at);
-                terms.extend(index.iter().map(|n| MediumTerms::new(n[w], at.beta())));
+                terms.extend(distinct.iter().map(|n| MediumTerms::new(n[w], at.beta())));
             }
         }
         let fast = scene
@@ -98,6 +121,8 @@ impl Evaluator {
             angles_deg: angles_deg.to_vec(),
             probes,
             terms,
+            shared,
+            distinct: distinct_count,
             side,
             polarization,
             colour: None,
@@ -191,7 +216,7 @@ impl Evaluator {
 
     fn fill(&self, x: &[f64], dn: Option<&[f64]>, ws: &mut Workspace) {
         let nw = self.wavelengths_nm.len();
-        let nm = self.index.len();
+        let nd = self.distinct;
         let ensemble;
         let stacks: &[Stack] = match (&self.fast, &mut ws.stack) {
             (Some(fast), Some(stack)) => {
@@ -213,17 +238,17 @@ impl Evaluator {
         for a in 0..self.angles_deg.len() {
             for w in 0..nw {
                 let at = a * nw + w;
-                let fixed = &self.terms[at * nm..(at + 1) * nm];
-                let terms = match dn {
-                    None => fixed,
-                    Some(dn) => {
+                let fixed = &self.terms[at * nd..(at + 1) * nd];
+                let terms = match (dn, &self.shared) {
+                    (None, None) => fixed,
+                    _ => {
                         ws.terms.clear();
-                        ws.terms.extend(fixed.iter().enumerate().map(|(m, t)| {
-                            if dn[m] == 0.0 {
-                                *t
+                        ws.terms.extend((0..self.index.len()).map(|m| {
+                            let d = dn.map_or(0.0, |dn| dn[m]);
+                            if d == 0.0 {
+                                fixed[self.shared.as_ref().map_or(m, |c| c[m])]
                             } else {
-                                let n = self.index[m][w] + dn[m];
-                                MediumTerms::new(n, self.probes[at].beta())
+                                MediumTerms::new(self.index[m][w] + d, self.probes[at].beta())
                             }
                         }));
                         &ws.terms

@@ -6,6 +6,7 @@
 
 use super::coating::{At, CoatingEvaluator, design_items, with_coating};
 use super::evaluator::Evaluator;
+use super::finite::check_finite;
 use super::search::{self, Budget};
 use super::variables::{Variable, varying_in};
 use crate::angle_colour::{Polarization, Side};
@@ -25,10 +26,14 @@ pub struct Measured {
     pub r: Vec<f64>,
 }
 
+/// Largest measured R accepted: reflectance is a fraction, and values above
+/// this are almost surely percent.
+pub const MAX_MEASURED_R: f64 = 1.5;
+
 /// Reads `wavelength_nm,R[,angle_deg]` or `wavelength_nm,R,geometry` CSV
 /// (columns in any order, a header line first; geometry names such as
 /// `45as15`); rows without an angle or geometry column are at
-/// `default_angle`.
+/// `default_angle`. R above [`MAX_MEASURED_R`] is refused as percent.
 pub fn parse_measured(text: &str, default_angle: f64) -> Result<Vec<Measured>> {
     let mut lines = text
         .lines()
@@ -73,6 +78,15 @@ pub fn parse_measured(text: &str, default_angle: f64) -> Result<Vec<Measured>> {
         };
         let (w, rv) = (num(wl, "wavelength_nm")?, num(r, "R")?);
         let key = format!("measured line {}", i + 1);
+        if rv > MAX_MEASURED_R {
+            return Err(Error::invalid(
+                key,
+                format!("R {}", cells[r]),
+                format!(
+                    "R is a fraction and this is above {MAX_MEASURED_R}: looks like percent: divide by 100"
+                ),
+            ));
+        }
         let at = match geometry {
             Some(c) => {
                 let name = cells.get(c).copied().unwrap_or("");
@@ -285,7 +299,7 @@ pub fn fit(scene: &Scene, measured: &[Measured], settings: &FitSettings) -> Resu
         let r = model(&to_x(u));
         (sse(&r, best_scale(&r)) / points as f64).sqrt()
     };
-    let found = search::minimise(&rms_at, vars.len(), settings.budget, &|_, _| {});
+    let found = search::minimise(&rms_at, vars.len(), settings.budget, &|_| false, &|_, _| {});
     // Levenberg–Marquardt on (thicknesses, scale).
     let mut p = to_x(&found.u);
     p.push(best_scale(&model(&p)));
@@ -298,10 +312,26 @@ pub fn fit(scene: &Scene, measured: &[Measured], settings: &FitSettings) -> Resu
     });
     let n = vars.len();
     let rms = (lm.sse / points as f64).sqrt();
+    if !rms.is_finite() || !lm.p[n].is_finite() {
+        // Name the first point where the fitted model cannot be computed.
+        let model = predict(&lm.p[..n]);
+        let mut start = 0;
+        for m in measured {
+            let end = start + m.r.len();
+            check_finite(&model[start..end], &m.at, "", "the model reflectance")?;
+            start = end;
+        }
+        return Err(Error::NotComputable {
+            what: "the residual".into(),
+            at: "the fit".into(),
+            why: "not a finite number".into(),
+        });
+    }
+    let finite = |s: Option<f64>| s.filter(|s| s.is_finite());
     Ok(FitOutcome {
         thicknesses_nm: lm.p[..n].to_vec(),
-        uncertainties_nm: lm.sigma[..n].to_vec(),
-        scale: settings.fit_scale.then(|| (lm.p[n], lm.sigma[n])),
+        uncertainties_nm: lm.sigma[..n].iter().map(|&s| finite(s)).collect(),
+        scale: settings.fit_scale.then(|| (lm.p[n], finite(lm.sigma[n]))),
         variables: vars,
         rms,
         points,

@@ -6,6 +6,7 @@
 
 pub mod coating;
 pub mod evaluator;
+pub mod finite;
 pub mod fit;
 pub mod matching;
 pub mod search;

@@ -1,8 +1,9 @@
 //! Bounded minimisation shared by the design tools: a seeded global stage
 //! (differential evolution from `metaheuristics-nature`) over the unit box,
 //! then Nelder–Mead refinements (from `argmin`) started at the best distinct
-//! members of the population, repeated with fresh seeds while the budget
-//! lasts and the goal is not met.
+//! members of the population, restarted with fresh seeds until the goal is
+//! met, [`PATIENCE_ROUNDS`] restarts in a row bring no progress, or the
+//! budget is spent.
 
 use std::sync::atomic::{AtomicUsize, Ordering};
 
@@ -10,8 +11,19 @@ use argmin::core::{CostFunction, Executor, State};
 use argmin::solver::neldermead::NelderMead;
 use metaheuristics_nature::{Bounded, De, ObjFunc, Solver};
 
+/// The global stage has stalled when its best cost has not fallen by 1 %
+/// for this many generations.
+pub const STALL_GENERATIONS: u64 = 10;
+
+/// The search ends after this many restarts in a row that did not lower
+/// the best cost by [`Budget::min_gain`].
+pub const PATIENCE_ROUNDS: u32 = 4;
+
 /// A cost over the unit box [0, 1]^dim.
 pub type Cost<'a> = dyn Fn(&[f64]) -> f64 + Sync + 'a;
+
+/// Whether the caller's goal is met at a point of the unit box.
+pub type Met<'a> = dyn Fn(&[f64]) -> bool + Sync + 'a;
 
 /// Limits of a search.
 #[derive(Debug, Clone, Copy)]
@@ -23,8 +35,35 @@ pub struct Budget {
     /// The global stage hands over to local refinement once its best cost
     /// falls below this (or when it stalls).
     pub handover: f64,
+    /// Least fall of the best cost that counts as progress (cost units):
+    /// [`PATIENCE_ROUNDS`] restarts in a row that do not lower the best cost
+    /// by this much end the search.
+    pub min_gain: f64,
     /// Seed of the global stage; the search is deterministic for a seed.
     pub seed: u64,
+}
+
+/// Why a search ended.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Stopped {
+    /// The caller's goal was met (or the cost fell below `good_enough`).
+    Reached,
+    /// [`PATIENCE_ROUNDS`] restarts in a row did not lower the best cost by
+    /// `min_gain`.
+    NoImprovement,
+    /// The evaluation budget was spent.
+    Budget,
+}
+
+impl Stopped {
+    /// The name in reports: `reached`, `no_improvement` or `budget`.
+    pub fn name(self) -> &'static str {
+        match self {
+            Stopped::Reached => "reached",
+            Stopped::NoImprovement => "no_improvement",
+            Stopped::Budget => "budget",
+        }
+    }
 }
 
 /// The best point found.
@@ -36,6 +75,8 @@ pub struct Found {
     pub cost: f64,
     /// Cost evaluations spent.
     pub evaluations: usize,
+    /// Why the search ended.
+    pub stopped: Stopped,
 }
 
 struct Counted<'a, 'c> {
@@ -78,12 +119,15 @@ impl CostFunction for Unbounded<'_, '_, '_> {
     }
 }
 
-/// Minimises `cost` over [0, 1]^dim. `progress(evaluations, best)` is called
-/// after each stage.
+/// Minimises `cost` over [0, 1]^dim. `met(u)` says whether the caller's goal
+/// is met at the best point; it is asked after each local refinement that
+/// lowers the best cost. `progress(evaluations, best)` is called after every
+/// generation of the global stage and every local refinement.
 pub fn minimise(
     cost: &Cost,
     dim: usize,
     budget: Budget,
+    met: &Met,
     progress: &(dyn Fn(usize, f64) + Sync),
 ) -> Found {
     let count = AtomicUsize::new(0);
@@ -94,11 +138,13 @@ pub fn minimise(
     };
     let evals = || count.load(Ordering::Relaxed);
     if dim == 0 {
+        // Nothing to search: the one point is the answer.
         let cost = f.at(&[]);
         return Found {
             u: vec![],
             cost,
             evaluations: 1,
+            stopped: Stopped::NoImprovement,
         };
     }
     let pop = (10 * dim).clamp(20, 60);
@@ -106,11 +152,16 @@ pub fn minimise(
         u: vec![0.5; dim],
         cost: f64::INFINITY,
         evaluations: 0,
+        stopped: Stopped::Budget,
     };
+    // The best cost at the last progress, and the restarts since.
+    let mut mark = f64::INFINITY;
+    let mut idle = 0;
     for round in 0u64.. {
         // Global stage: until it is close enough for a local method to
         // finish, stalls, or the budget is spent.
         let mut last = (f64::INFINITY, 0u64);
+        let so_far = best.cost;
         let solver = Solver::build(
             De::default(),
             Counted {
@@ -122,10 +173,13 @@ pub fn minimise(
         .pop_num(pop)
         .task(|ctx| {
             let b = ctx.best.get_eval();
+            progress(evals(), b.min(so_far));
             if b < last.0 * 0.99 {
                 last = (b, ctx.r#gen);
             }
-            b < budget.handover || ctx.r#gen - last.1 > 30 || evals() >= budget.max_evals
+            b < budget.handover
+                || ctx.r#gen - last.1 > STALL_GENERATIONS
+                || evals() >= budget.max_evals
         })
         .solve();
         // Local stage from the best few distinct members.
@@ -147,15 +201,34 @@ pub fn minimise(
         }
         for start in chosen {
             let (u, c) = nelder_mead(&f, &start, budget, &evals);
-            if c < best.cost {
+            let improved = c < best.cost;
+            if improved {
                 best.u = u;
                 best.cost = c;
             }
             progress(evals(), best.cost);
-            if best.cost < budget.good_enough || evals() >= budget.max_evals {
+            let stopped = if best.cost < budget.good_enough || (improved && met(&best.u)) {
+                Stopped::Reached
+            } else if evals() >= budget.max_evals {
+                Stopped::Budget
+            } else {
+                continue;
+            };
+            best.evaluations = evals();
+            best.stopped = stopped;
+            return best;
+        }
+        // Restarts go on only while they keep paying.
+        if best.cost > mark - budget.min_gain {
+            idle += 1;
+            if idle >= PATIENCE_ROUNDS {
                 best.evaluations = evals();
+                best.stopped = Stopped::NoImprovement;
                 return best;
             }
+        } else {
+            idle = 0;
+            mark = best.cost;
         }
     }
     unreachable!("the rounds end when the budget is spent")

@@ -5,7 +5,9 @@
 
 use rayon::prelude::*;
 
+use super::coating::At;
 use super::evaluator::Evaluator;
+use super::finite::check_finite;
 use crate::colorimetry::{Colour, delta_e2000};
 use crate::error::{Error, Result};
 
@@ -106,14 +108,16 @@ pub fn shard(total: u64, index: u64, count: u64) -> Result<std::ops::Range<u64>>
 const CHUNK: u64 = 4096;
 
 /// Evaluates designs `range` of `plan` with `eval` (a colour evaluator at one
-/// angle) and returns their JSON lines in chunks, in order.
+/// angle) and returns their JSON lines in chunks, in order; a design whose
+/// colour is not finite is an error naming it.
 pub fn lines(
     eval: &Evaluator,
     plan: Plan,
     range: std::ops::Range<u64>,
     target: Option<[f64; 3]>,
-) -> Vec<Vec<u8>> {
+) -> Result<Vec<Vec<u8>>> {
     let (white, options) = eval.white().expect("a colour evaluator");
+    let at = At::Angle(eval.angles_deg()[0]);
     let vars = eval.variables();
     let dim = vars.len();
     let chunks: Vec<u64> = (range.start..range.end).step_by(CHUNK as usize).collect();
@@ -133,6 +137,7 @@ pub fn lines(
                 let c = eval.eval_in(&mut ws, &x, None, |o| {
                     Colour::new(o.xyz[0], white, &options)
                 });
+                check_finite(&c.lab, &at, &format!("design {i}, "), "the colour")?;
                 out.extend_from_slice(b"{\"index\":");
                 out.extend_from_slice(i.to_string().as_bytes());
                 out.extend_from_slice(b",\"thicknesses_nm\":[");
@@ -167,7 +172,7 @@ pub fn lines(
                 }
                 out.extend_from_slice(b"}\n");
             }
-            out
+            Ok(out)
         })
         .collect()
 }

@@ -4,9 +4,10 @@
 //! platelet, at each of the coating's geometries), the yield at a ΔE00
 //! limit, and which layer's error moves the colour most.
 //!
-//! Each layer as written in the scene draws one error; a layer inside a
-//! repeat group carries the same error into every period (the period is
-//! what a coater repeats).
+//! By default each layer as written in the scene draws one error, and a
+//! layer inside a repeat group carries the same error into every period (a
+//! drift of the coater's recipe). With `per_period`, every deposited layer
+//! (each period of each repeat group) draws its own (run-to-run scatter).
 
 use rand::SeedableRng;
 use rand::rngs::StdRng;
@@ -14,19 +15,29 @@ use rand_distr::{Distribution, StandardNormal};
 use rayon::prelude::*;
 
 use super::coating::{At, Colours, with_coating};
+use super::finite::check_finite;
 use super::variables::{Variable, every_layer, walk_mut};
 use crate::angle_colour::Viewing;
 use crate::colorimetry::{delta_e2000, xyz_to_lab};
 use crate::error::{Error, Result};
-use crate::scene::{Scene, Sigma};
+use crate::scene::{Item, Scene, Sigma};
+
+/// Most deposited layers a `per_period` analysis expands repeat groups to.
+pub const MAX_DEPOSITED_LAYERS: u64 = 100_000;
 
 /// Error model and sampling.
-#[derive(Debug, Clone, Copy)]
+#[derive(Debug, Clone)]
 pub struct ToleranceSettings {
     /// Standard deviation of each layer's thickness (nm or % of nominal).
     pub thickness: Sigma,
     /// Standard deviation of each layer's real refractive index (0 = none).
     pub sigma_n: f64,
+    /// Whether every period of a repeat group draws its own errors (else a
+    /// layer written once in a group shares one error across its periods).
+    pub per_period: bool,
+    /// The points (scene angles, or coating geometries) that count toward
+    /// the overall statistics, the yield and the sensitivity; empty = all.
+    pub yield_at: Vec<At>,
     /// Number of Monte Carlo samples.
     pub samples: usize,
     /// ΔE00 limit for the yield.
@@ -51,12 +62,12 @@ pub struct Stats {
 /// One layer's share of the colour error.
 #[derive(Debug, Clone)]
 pub struct Sensitivity {
-    /// The layer.
+    /// The layer as written (in a repeat group: all its periods).
     pub layer: Variable,
     /// Its thickness σ in nm.
     pub sigma_nm: f64,
-    /// ΔE00 (largest over the points, mean of +σ and −σ) for a one-σ
-    /// thickness error in this layer alone.
+    /// ΔE00 (largest over the counted points, mean of +σ and −σ) for a
+    /// one-σ thickness error in this layer alone.
     pub delta_e00_thickness: f64,
     /// The same for a one-σ index error, when index errors are modelled.
     pub delta_e00_index: Option<f64>,
@@ -68,15 +79,101 @@ pub struct ToleranceOutcome {
     /// Where the colour is judged: the scene's angles of incidence, or its
     /// coating's geometries.
     pub points: Vec<At>,
+    /// Whether each point counts toward `overall` and the sensitivity.
+    pub counted: Vec<bool>,
     /// Nominal Lab at each point.
     pub nominal_lab: Vec<[f64; 3]>,
     /// ΔE00 statistics per point.
     pub per_point: Vec<Stats>,
-    /// Statistics of each sample's worst point (a sample passes only if it
-    /// passes at every point).
+    /// Statistics of each sample's worst counted point (a sample passes only
+    /// if it passes at every counted point).
     pub overall: Stats,
-    /// Layers ranked by their one-σ effect, largest first.
+    /// Layers as written, ranked by their one-σ effect, largest first.
     pub sensitivity: Vec<Sensitivity>,
+    /// Independent error sources: layers as written, or deposited layers
+    /// with `per_period`.
+    pub deposited_layers: usize,
+}
+
+/// The layers of `items` as deposited: every period of every repeat group
+/// written out (graded groups scaled from 1 to `chirp_scale`, as the scene
+/// expands them), each layer's pointer marked `@period` per enclosing group
+/// so that every deposited layer is a variable of its own.
+fn deposited(items: &[Item], scale: f64, mark: &str, out: &mut Vec<Item>) {
+    for item in items {
+        match item {
+            Item::Layer(l) => {
+                let mut l = l.clone();
+                l.thickness_nm *= scale;
+                l.pointer.push_str(mark);
+                out.push(Item::Layer(l));
+            }
+            Item::Repeat(r) => {
+                let steps = (r.count.max(2) - 1) as f64;
+                for p in 0..r.count {
+                    let s = scale * (1.0 + (r.chirp_scale - 1.0) * p as f64 / steps);
+                    deposited(&r.items, s, &format!("{mark}@{}", p + 1), out);
+                }
+            }
+        }
+    }
+}
+
+/// Deposited layers of `items`, counting every period.
+fn deposited_count(items: &[Item]) -> u64 {
+    items
+        .iter()
+        .map(|i| match i {
+            Item::Layer(_) => 1,
+            Item::Repeat(r) => r.count.saturating_mul(deposited_count(&r.items)),
+        })
+        .fold(0, u64::saturating_add)
+}
+
+/// Which of `points` count: all when `chosen` is empty, else those listed
+/// (each must be one of the points; angles compared to 1e-9°).
+fn counted_points(points: &[At], chosen: &[At]) -> Result<Vec<bool>> {
+    if chosen.is_empty() {
+        return Ok(vec![true; points.len()]);
+    }
+    let same = |a: &At, b: &At| match (a, b) {
+        (At::Angle(x), At::Angle(y)) => (x - y).abs() < 1e-9,
+        (At::Geometry(g), At::Geometry(h)) => {
+            g.name == h.name
+                || (g.in_plane == h.in_plane
+                    && (g.illumination_deg - h.illumination_deg).abs() < 1e-9
+                    && (g.aspecular_deg - h.aspecular_deg).abs() < 1e-9)
+        }
+        _ => false,
+    };
+    for c in chosen {
+        if !points.iter().any(|p| same(p, c)) {
+            let list = points
+                .iter()
+                .map(|p| match p {
+                    At::Angle(a) => a.to_string(),
+                    At::Geometry(g) => g.name.clone(),
+                })
+                .collect::<Vec<_>>()
+                .join(", ");
+            return Err(match c {
+                At::Angle(a) => Error::invalid(
+                    "yield_angles",
+                    a,
+                    format!("not an angle of the scene's grid ({list})"),
+                ),
+                At::Geometry(g) => Error::invalid(
+                    "yield_geometries",
+                    &g.name,
+                    format!("not one of the coating's geometries ({list})"),
+                ),
+            });
+        }
+    }
+    Ok(points
+        .iter()
+        .map(|p| chosen.iter().any(|c| same(p, c)))
+        .collect())
 }
 
 /// Runs the analysis at the scene's angles as `viewing` sees them; when the
@@ -95,12 +192,29 @@ pub fn tolerance(
             return Err(Error::invalid(key, v, "must be a finite number ≥ 0"));
         }
     }
-    // Each layer gets a medium of its own so that its index can move alone.
     let (mut own, mut coating) = with_coating(scene)?;
-    let mut items = match &coating {
+    let written_items = match &coating {
         Some(c) => c.platelet.clone(),
         None => own.stack.clone(),
     };
+    let written = every_layer(&own, &written_items);
+    let mut items = if settings.per_period {
+        let n = deposited_count(&written_items);
+        if n > MAX_DEPOSITED_LAYERS {
+            return Err(Error::invalid(
+                "per_period",
+                format!("{n} deposited layers"),
+                format!("keep the expanded stack under {MAX_DEPOSITED_LAYERS} layers"),
+            ));
+        }
+        let mut out = Vec::new();
+        deposited(&written_items, 1.0, "", &mut out);
+        out
+    } else {
+        written_items
+    };
+    // Each deposited layer gets a medium of its own so that its index can
+    // move alone.
     let mut layer_medium = Vec::new();
     walk_mut(&mut items, &mut |l| {
         own.media.push(own.media[l.medium].clone());
@@ -108,6 +222,17 @@ pub fn tolerance(
         layer_medium.push(l.medium);
     });
     let vars = every_layer(&own, &items);
+    // The written layer each deposited layer comes from.
+    let source: Vec<usize> = vars
+        .iter()
+        .map(|v| {
+            let written_pointer = v.pointer.split('@').next().unwrap_or(&v.pointer);
+            written
+                .iter()
+                .position(|w| w.pointer == written_pointer)
+                .expect("every deposited layer comes from a written one")
+        })
+        .collect();
     let points: Vec<At> = match &mut coating {
         Some(c) => {
             c.platelet = items;
@@ -118,13 +243,12 @@ pub fn tolerance(
             own.angles_deg.iter().map(|&a| At::Angle(a)).collect()
         }
     };
-    let sigma: Vec<f64> = vars
-        .iter()
-        .map(|v| match settings.thickness {
-            Sigma::Nm(s) => s,
-            Sigma::Pct(p) => v.nominal_nm * p / 100.0,
-        })
-        .collect();
+    let counted = counted_points(&points, &settings.yield_at)?;
+    let sigma_of = |v: &Variable| match settings.thickness {
+        Sigma::Nm(s) => s,
+        Sigma::Pct(p) => v.nominal_nm * p / 100.0,
+    };
+    let sigma: Vec<f64> = vars.iter().map(sigma_of).collect();
     let eval = Colours::new(&own, coating.as_ref(), vars.clone(), &points, viewing)?;
     let (white, _) = eval.white();
     let nominal: Vec<f64> = vars.iter().map(|v| v.nominal_nm).collect();
@@ -135,10 +259,25 @@ pub fn tolerance(
             .collect()
     };
     let nominal_lab = labs(&nominal, None);
-    let worst = |l: &[[f64; 3]]| -> f64 {
+    for (lab, p) in nominal_lab.iter().zip(&points) {
+        check_finite(lab, p, "", "the nominal design's colour")?;
+    }
+    // ΔE00 at every point; the colour of a sample must be finite.
+    let deltas = |l: &[[f64; 3]], context: &dyn Fn() -> String| -> Result<Vec<f64>> {
         l.iter()
             .zip(&nominal_lab)
-            .map(|(a, b)| delta_e2000(*b, *a))
+            .zip(&points)
+            .map(|((a, b), p)| {
+                check_finite(a, p, &context(), "the colour")?;
+                Ok(delta_e2000(*b, *a))
+            })
+            .collect()
+    };
+    let worst = |d: &[f64]| -> f64 {
+        d.iter()
+            .zip(&counted)
+            .filter(|(_, c)| **c)
+            .map(|(d, _)| *d)
             .fold(0.0, f64::max)
     };
     let media = own.media.len();
@@ -164,48 +303,49 @@ pub fn tolerance(
                 }
                 dn
             });
-            labs(&x, dn.as_deref())
-                .iter()
-                .zip(&nominal_lab)
-                .map(|(a, b)| delta_e2000(*b, *a))
-                .collect()
+            deltas(&labs(&x, dn.as_deref()), &|| format!("sample {}, ", i + 1))
         })
-        .collect();
+        .collect::<Result<_>>()?;
     let per_point = (0..points.len())
         .map(|a| stats(samples.iter().map(|s| s[a]).collect(), settings.limit))
         .collect();
-    let overall = stats(
-        samples
-            .iter()
-            .map(|s| s.iter().copied().fold(0.0, f64::max))
-            .collect(),
-        settings.limit,
-    );
-    // One layer at a time, ±1σ.
-    let mut sensitivity: Vec<Sensitivity> = (0..vars.len())
+    let overall = stats(samples.iter().map(|s| worst(s)).collect(), settings.limit);
+    // One layer as written at a time (all its deposited copies), ±1σ.
+    let nominal_context = || String::from("one-σ change, ");
+    let mut sensitivity: Vec<Sensitivity> = (0..written.len())
         .into_par_iter()
-        .map(|i| {
-            let moved = |d: f64| {
+        .map(|j| {
+            let copies: Vec<usize> = (0..vars.len()).filter(|&c| source[c] == j).collect();
+            let moved = |sign: f64| -> Result<f64> {
                 let mut x = nominal.clone();
-                x[i] = (x[i] + d).max(0.0);
-                worst(&labs(&x, None))
+                for &c in &copies {
+                    x[c] = (x[c] + sign * sigma[c]).max(0.0);
+                }
+                Ok(worst(&deltas(&labs(&x, None), &nominal_context)?))
             };
-            let index = with_index.then(|| {
-                let moved_n = |d: f64| {
-                    let mut dn = vec![0.0; media];
-                    dn[layer_medium[i]] = d;
-                    worst(&labs(&nominal, Some(&dn)))
-                };
-                0.5 * (moved_n(settings.sigma_n) + moved_n(-settings.sigma_n))
-            });
-            Sensitivity {
-                layer: vars[i].clone(),
-                sigma_nm: sigma[i],
-                delta_e00_thickness: 0.5 * (moved(sigma[i]) + moved(-sigma[i])),
+            let index = with_index
+                .then(|| -> Result<f64> {
+                    let moved_n = |d: f64| -> Result<f64> {
+                        let mut dn = vec![0.0; media];
+                        for &c in &copies {
+                            dn[layer_medium[c]] = d;
+                        }
+                        Ok(worst(&deltas(
+                            &labs(&nominal, Some(&dn)),
+                            &nominal_context,
+                        )?))
+                    };
+                    Ok(0.5 * (moved_n(settings.sigma_n)? + moved_n(-settings.sigma_n)?))
+                })
+                .transpose()?;
+            Ok(Sensitivity {
+                layer: written[j].clone(),
+                sigma_nm: sigma_of(&written[j]),
+                delta_e00_thickness: 0.5 * (moved(1.0)? + moved(-1.0)?),
                 delta_e00_index: index,
-            }
+            })
         })
-        .collect();
+        .collect::<Result<_>>()?;
     let size = |s: &Sensitivity| {
         s.delta_e00_thickness
             .hypot(s.delta_e00_index.unwrap_or(0.0))
@@ -213,10 +353,12 @@ pub fn tolerance(
     sensitivity.sort_by(|a, b| size(b).total_cmp(&size(a)));
     Ok(ToleranceOutcome {
         points,
+        counted,
         nominal_lab,
         per_point,
         overall,
         sensitivity,
+        deposited_layers: vars.len(),
     })
 }
 
