@@ -73,20 +73,28 @@ pub fn run(args: &FitArgs) -> CliResult {
     let out = fit(&scene, &measured, &settings).map_err(bad)?;
     let doc = edited_document(&scene.document, &out.variables, &out.thicknesses_nm).map_err(bad)?;
     write_out(Some(&args.out_scene), &[json_bytes(&doc)])?;
-    let report = json!({
+    // An uncertainty the fit cannot determine is left out, never null.
+    let with_uncertainty = |mut v: Value, u: Option<f64>| {
+        if let Some(u) = u {
+            v["uncertainty"] = json!(u);
+        }
+        v
+    };
+    let mut report = json!({
         "rms": out.rms,
         "points": out.points,
         "thicknesses_nm": out.variables.iter().zip(&out.thicknesses_nm).zip(&out.uncertainties_nm)
-            .map(|((v, t), u)| json!({
-                "pointer": v.pointer, "material": v.material, "value": t, "uncertainty": u,
+            .map(|((v, t), u)| with_uncertainty(json!({
+                "pointer": v.pointer, "material": v.material, "value": t,
                 "low": v.low_nm, "high": v.high_nm,
-            })).collect::<Vec<_>>(),
-        "scale": out.scale.map(|(s, u)| json!({"value": s, "uncertainty": u})),
+            }), *u)).collect::<Vec<_>>(),
         "evaluations": out.evaluations,
         "wall_time_s": started.elapsed().as_secs_f64(),
         "seed": args.seed,
     });
-    let mut report = report;
+    if let Some((s, u)) = out.scale {
+        report["scale"] = with_uncertainty(json!({ "value": s }), u);
+    }
     report[if measured[0].at.geometry().is_some() {
         "geometries"
     } else {

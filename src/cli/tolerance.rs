@@ -213,15 +213,19 @@ pub fn run(args: &ToleranceArgs) -> CliResult {
             .iter()
             .enumerate()
             .map(|(rank, s)| {
-                json!({
+                let mut entry = json!({
                     "rank": rank + 1,
                     "pointer": s.layer.pointer,
                     "material": s.layer.material,
                     "thickness_nm": s.layer.nominal_nm,
                     "sigma_nm": s.sigma_nm,
                     "delta_e00_per_sigma_thickness": s.delta_e00_thickness,
-                    "delta_e00_per_sigma_index": s.delta_e00_index,
-                })
+                });
+                // Only with --sigma-n (left out, never null, without it).
+                if let Some(d) = s.delta_e00_index {
+                    entry["delta_e00_per_sigma_index"] = json!(d);
+                }
+                entry
             })
             .collect(),
     );
