@@ -15,6 +15,7 @@ pub mod grid;
 pub mod materials;
 pub mod optics;
 pub mod pigment;
+pub mod raster;
 pub mod render;
 pub mod report;
 pub mod scene;

@@ -4,6 +4,9 @@
 use std::path::PathBuf;
 use std::process::Command;
 
+mod common;
+
+use common::{hit_sphere, lab_of};
 use glam::{Vec2, Vec3};
 use lamella::angle_colour::Viewing;
 use lamella::colorimetry::{Colour, ColourOptions, delta_e2000};
@@ -12,7 +15,6 @@ use lamella::render::{
     Base, Camera, Image, Light, Mesh, Preview, Settings, Source, View, builtin_mesh,
 };
 use lamella::scene::Scene;
-use palette::{FromColor, Lab, Srgb, white_point::D65};
 
 fn data(name: &str) -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR"))
@@ -56,12 +58,6 @@ fn pixel(image: &Image, x: usize, y: usize) -> [u8; 3] {
     [image.rgb[k], image.rgb[k + 1], image.rgb[k + 2]]
 }
 
-/// CIELAB (D65) of encoded sRGB, IEC 61966-2-1 by `palette`.
-fn lab_of(rgb: [f64; 3]) -> [f64; 3] {
-    let lab: Lab<D65, f64> = Lab::from_color(Srgb::new(rgb[0], rgb[1], rgb[2]).into_linear());
-    [lab.l, lab.a, lab.b]
-}
-
 fn bytes_lab(p: [u8; 3]) -> [f64; 3] {
     lab_of(p.map(|c| c as f64 / 255.0))
 }
@@ -83,13 +79,6 @@ fn colour_at(scene: &Scene, angles: &[f64]) -> Vec<[f64; 3]> {
             Colour::new(weights.xyz(&r), weights.white(), &ColourOptions::default()).rgb
         })
         .collect()
-}
-
-/// Where the ray through a pixel centre meets the unit sphere, if it does.
-fn hit_sphere(eye: Vec3, dir: Vec3) -> Option<Vec3> {
-    let b = eye.dot(dir);
-    let disc = b * b - (eye.length_squared() - 1.0);
-    (disc > 0.0).then(|| eye + (-b - disc.sqrt()) * dir)
 }
 
 /// Physics check: in a uniform white (D65) sky of intensity 1 with a

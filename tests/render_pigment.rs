@@ -1,12 +1,14 @@
 //! Preview renders of effect-pigment coatings: pixels against the platelet
 //! model and `multiangle`, and mirror symmetry.
 
+mod common;
+
+use common::{hit_sphere, lab_of};
 use glam::{Vec2, Vec3};
 use lamella::colorimetry::{Colour, ColourOptions, delta_e2000};
 use lamella::pigment::{Coating, Model, colours, parse_name};
 use lamella::render::{Base, Camera, Image, Light, Mesh, Preview, Settings, Source, View};
 use lamella::scene::Scene;
-use palette::{FromColor, Lab, Srgb, white_point::D65};
 
 /// An invented blue-violet interference pearl in a binder of index 1.5.
 fn coating_scene(background: &str) -> Scene {
@@ -26,18 +28,6 @@ fn coating_scene(background: &str) -> Scene {
 fn pixel(image: &Image, x: usize, y: usize) -> [u8; 3] {
     let k = 3 * (y * image.width as usize + x);
     [image.rgb[k], image.rgb[k + 1], image.rgb[k + 2]]
-}
-
-/// CIELAB (D65) of encoded sRGB, IEC 61966-2-1 by `palette`.
-fn lab_of(rgb: [f64; 3]) -> [f64; 3] {
-    let lab: Lab<D65, f64> = Lab::from_color(Srgb::new(rgb[0], rgb[1], rgb[2]).into_linear());
-    [lab.l, lab.a, lab.b]
-}
-
-fn hit_sphere(eye: Vec3, dir: Vec3) -> Option<Vec3> {
-    let b = eye.dot(dir);
-    let disc = b * b - (eye.length_squared() - 1.0);
-    (disc > 0.0).then(|| eye + (-b - disc.sqrt()) * dir)
 }
 
 /// Physics check: one directional light of intensity k = √2 at 75° to the

@@ -340,7 +340,7 @@ impl Surface for Svg {
     }
 
     fn image(&mut self, (x, y): (i32, i32), (w, h): (u32, u32), rgb: &[u8]) {
-        if let Some(png) = png_bytes((w, h), rgb) {
+        if let Some(png) = crate::raster::png((w, h), rgb) {
             let _ = writeln!(
                 self.body,
                 "<image x=\"{x}\" y=\"{y}\" width=\"{w}\" height=\"{h}\" preserveAspectRatio=\"none\" xlink:href=\"data:image/png;base64,{}\"/>",
@@ -348,21 +348,6 @@ impl Surface for Svg {
             );
         }
     }
-}
-
-/// PNG bytes of packed RGB pixels (`None` if the sizes disagree), with
-/// zlib's default compression and adaptive row filters.
-pub fn png_bytes((w, h): (u32, u32), rgb: &[u8]) -> Option<Vec<u8>> {
-    use image::ImageEncoder;
-    use image::codecs::png::{CompressionType, FilterType, PngEncoder};
-    if rgb.len() != 3 * w as usize * h as usize {
-        return None;
-    }
-    let mut out = Vec::new();
-    PngEncoder::new_with_quality(&mut out, CompressionType::Default, FilterType::Adaptive)
-        .write_image(rgb, w, h, image::ExtendedColorType::Rgb8)
-        .ok()?;
-    Some(out)
 }
 
 impl Svg {

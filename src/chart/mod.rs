@@ -117,7 +117,7 @@ pub fn rgb(chart: &impl Chart, size: (u32, u32)) -> Result<Vec<u8>> {
 
 /// The chart as PNG bytes.
 pub fn png(chart: &impl Chart, size: (u32, u32)) -> Result<Vec<u8>> {
-    canvas::png_bytes(size, &rgb(chart, size)?).ok_or_else(|| failed("PNG encoding"))
+    crate::raster::png(size, &rgb(chart, size)?).ok_or_else(|| failed("PNG encoding"))
 }
 
 /// The chart in `format`, as bytes to write.

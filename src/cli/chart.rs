@@ -98,18 +98,9 @@ pub struct Args {
     pub steps: usize,
 }
 
+/// A chart size `WxH` within the chart limits (a clap value parser).
 pub fn parse_size(s: &str) -> Result<(u32, u32), String> {
-    let (w, h) = s
-        .split_once(['x', 'X'])
-        .ok_or_else(|| format!("{s}: expected WIDTHxHEIGHT, e.g. 1200x800"))?;
-    let p = |v: &str| {
-        v.trim()
-            .parse::<u32>()
-            .map_err(|_| format!("{s}: expected WIDTHxHEIGHT in whole pixels"))
-    };
-    let size = (p(w)?, p(h)?);
-    chart::check_size(size).map_err(|e| e.to_string())?;
-    Ok(size)
+    lamella::raster::parse_size(s, chart::SIZE_LIMITS).map_err(|e| e.to_string())
 }
 
 fn parse_pair(s: &str) -> Result<(f64, f64), String> {

@@ -5,7 +5,7 @@ use std::path::{Path, PathBuf};
 
 use lamella::angle_colour::{Polarization, Side, Viewing, angle_colours};
 use lamella::colorimetry::{
-    Colour, ColourOptions, GamutMapping, Illuminant, RgbSpace, delta_e2000, travel,
+    Colour, ColourOptions, GamutMapping, Illuminant, RgbSpace, travel, travel_points,
 };
 use serde_json::{Value, json};
 
@@ -117,41 +117,29 @@ pub fn run(
 
 /// One JSON object per angle.
 fn records(angles: &[f64], colours: &[Colour]) -> Vec<Value> {
-    let first = &colours[0];
-    colours
+    let samples: Vec<(f64, [f64; 3])> = angles
         .iter()
-        .enumerate()
-        .map(|(i, c)| {
-            let hue_shift = wrap180(c.lch[2] - first.lch[2]);
-            // Rate of change toward the next angle (the previous one for the last angle).
-            let (j, k) = if i + 1 < colours.len() {
-                (i, i + 1)
-            } else {
-                (i.saturating_sub(1), i)
-            };
-            let rate = if j == k {
-                0.0
-            } else {
-                delta_e2000(colours[j].lab, colours[k].lab) / (angles[k] - angles[j]).abs()
-            };
+        .copied()
+        .zip(colours.iter().map(|c| c.lab))
+        .collect();
+    angles
+        .iter()
+        .zip(colours)
+        .zip(travel_points(&samples))
+        .map(|((a, c), t)| {
             json!({
-                "angle_deg": angles[i],
+                "angle_deg": a,
                 "X": c.xyz[0], "Y": c.xyz[1], "Z": c.xyz[2],
                 "x": c.xy[0], "y": c.xy[1],
                 "L": c.lab[0], "a": c.lab[1], "b": c.lab[2],
                 "C": c.lch[1], "h": c.lch[2],
                 "srgb": c.rgb, "hex": c.hex, "in_gamut": c.in_gamut,
-                "hue_shift_deg": hue_shift,
-                "delta_e00_from_first": delta_e2000(first.lab, c.lab),
-                "delta_e00_per_deg": rate,
+                "hue_shift_deg": t.hue_shift_deg,
+                "delta_e00_from_first": t.delta_e00_from_first,
+                "delta_e00_per_deg": t.delta_e00_per_deg,
             })
         })
         .collect()
-}
-
-fn wrap180(d: f64) -> f64 {
-    let w = (d + 180.0).rem_euclid(360.0) - 180.0;
-    if w == -180.0 { 180.0 } else { w }
 }
 
 /// The records as CSV, columns in record order; a list `k` of three values

@@ -5,7 +5,7 @@ use std::path::{Path, PathBuf};
 
 use indicatif::{ProgressBar, ProgressStyle};
 use lamella::render::{
-    Base, Light, Mesh, Preview, Settings, Shape, builtin_mesh, parse_size, parse_tone,
+    Base, Light, Mesh, Preview, SIZE_LIMITS, Settings, Shape, builtin_mesh, parse_tone,
 };
 use lamella::scene::Scene;
 
@@ -92,7 +92,8 @@ impl RenderArgs {
             s.shape = t.parse().map_err(|e| flag("shape", e))?;
         }
         if let Some(t) = &self.size {
-            (s.width, s.height) = parse_size(t).map_err(|e| flag("size", e))?;
+            (s.width, s.height) =
+                lamella::raster::parse_size(t, SIZE_LIMITS).map_err(|e| flag("size", e))?;
         }
         if let Some(t) = &self.tone {
             s.tone = parse_tone(t).map_err(|e| flag("tone", e))?;
@@ -157,8 +158,13 @@ pub fn run(args: &RenderArgs) -> CliResult {
         } else {
             args.output.clone()
         };
-        let png = encode_png(&image)
-            .map_err(|e| Failure::io(&path, std::io::Error::other(e.to_string())))?;
+        let png =
+            lamella::raster::png((image.width, image.height), &image.rgb).ok_or_else(|| {
+                Failure::io(
+                    &path,
+                    std::io::Error::other("the image could not be encoded"),
+                )
+            })?;
         write_out(Some(&path), &[png])?;
     }
     bar.finish_and_clear();
@@ -172,17 +178,4 @@ fn frame_path(output: &Path, index: u32) -> PathBuf {
         .extension()
         .map_or("png".into(), |e| e.to_string_lossy());
     output.with_file_name(format!("{stem}-{index:03}.{ext}"))
-}
-
-fn encode_png(image: &lamella::render::Image) -> image::ImageResult<Vec<u8>> {
-    let mut out = std::io::Cursor::new(Vec::new());
-    image::write_buffer_with_format(
-        &mut out,
-        &image.rgb,
-        image.width,
-        image.height,
-        image::ExtendedColorType::Rgb8,
-        image::ImageFormat::Png,
-    )?;
-    Ok(out.into_inner())
 }

@@ -102,6 +102,54 @@ pub fn delta_e2000(lab1: [f64; 3], lab2: [f64; 3]) -> f64 {
     (tl * tl + tc * tc + th * th + r_t * tc * th).sqrt()
 }
 
+/// The hue angle difference `to − from` in degrees, wrapped to (−180, 180].
+pub fn hue_difference_deg(from: f64, to: f64) -> f64 {
+    let w = (to - from + 180.0).rem_euclid(360.0) - 180.0;
+    if w == -180.0 { 180.0 } else { w }
+}
+
+/// The colour travel at one sample of a sequence ([`travel_points`]).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct TravelPoint {
+    /// h_ab here minus h_ab at the first sample, wrapped to (−180, 180].
+    pub hue_shift_deg: f64,
+    /// ΔE00 from the first sample.
+    pub delta_e00_from_first: f64,
+    /// ΔE00 per degree toward the next sample (from the previous one at the
+    /// last sample; 0 for a single sample).
+    pub delta_e00_per_deg: f64,
+}
+
+/// The travel at every sample of (angle in degrees, L*a*b*) pairs, in
+/// order of angle.
+pub fn travel_points(samples: &[(f64, [f64; 3])]) -> Vec<TravelPoint> {
+    let Some(&(_, first)) = samples.first() else {
+        return Vec::new();
+    };
+    let first_hue = lab_to_lch(first)[2];
+    (0..samples.len())
+        .map(|i| {
+            let (j, k) = if i + 1 < samples.len() {
+                (i, i + 1)
+            } else {
+                (i.saturating_sub(1), i)
+            };
+            let rate = if j == k {
+                0.0
+            } else {
+                let ((a0, lab0), (a1, lab1)) = (samples[j], samples[k]);
+                delta_e2000(lab0, lab1) / (a1 - a0).abs()
+            };
+            let lab = samples[i].1;
+            TravelPoint {
+                hue_shift_deg: hue_difference_deg(first_hue, lab_to_lch(lab)[2]),
+                delta_e00_from_first: delta_e2000(first, lab),
+                delta_e00_per_deg: rate,
+            }
+        })
+        .collect()
+}
+
 /// How the colour changes along a sequence of angles.
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 pub struct Travel {
@@ -148,16 +196,8 @@ pub fn travel(samples: &[(f64, [f64; 3])]) -> Result<Travel> {
             steepest = (0.5 * (a0 + a1), rate);
         }
     }
-    let dh = lab_to_lch(last.1)[2] - lab_to_lch(first.1)[2];
-    let hue_change_deg = if dh > 180.0 {
-        dh - 360.0
-    } else if dh <= -180.0 {
-        dh + 360.0
-    } else {
-        dh
-    };
     Ok(Travel {
-        hue_change_deg,
+        hue_change_deg: hue_difference_deg(lab_to_lch(first.1)[2], lab_to_lch(last.1)[2]),
         delta_e2000: delta_e2000(first.1, last.1),
         steepest_angle_deg: steepest.0,
         steepest_rate_per_deg: steepest.1,
@@ -226,6 +266,38 @@ mod tests {
             .map(|(i, s)| (i as f64, s.1))
             .collect();
         assert!((travel(&back).unwrap().hue_change_deg + 20.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn hue_differences_wrap_to_the_short_way_round() {
+        assert_eq!(hue_difference_deg(350.0, 10.0), 20.0);
+        assert_eq!(hue_difference_deg(10.0, 350.0), -20.0);
+        assert_eq!(hue_difference_deg(0.0, 180.0), 180.0);
+        assert_eq!(hue_difference_deg(180.0, 0.0), 180.0);
+        assert_eq!(hue_difference_deg(40.0, 40.0), 0.0);
+    }
+
+    #[test]
+    fn travel_points_measure_from_the_first_and_toward_the_next() {
+        let samples = [
+            (0.0, [50.0, 40.0, 0.0]),
+            (10.0, [50.0, 0.0, 40.0]),
+            (30.0, [50.0, -40.0, 0.0]),
+        ];
+        let t = travel_points(&samples);
+        assert_eq!(t.len(), 3);
+        assert!(
+            (t[1].hue_shift_deg - 90.0).abs() < 1e-12 && (t[2].hue_shift_deg - 180.0).abs() < 1e-12
+        );
+        assert_eq!(t[0].delta_e00_from_first, 0.0);
+        let step = |i: usize, j: usize| {
+            delta_e2000(samples[i].1, samples[j].1) / (samples[j].0 - samples[i].0)
+        };
+        assert_eq!(t[0].delta_e00_per_deg, step(0, 1));
+        assert_eq!(t[1].delta_e00_per_deg, step(1, 2));
+        assert_eq!(t[2].delta_e00_per_deg, step(1, 2));
+        assert!(travel_points(&[]).is_empty());
+        assert_eq!(travel_points(&samples[..1])[0].delta_e00_per_deg, 0.0);
     }
 
     #[test]

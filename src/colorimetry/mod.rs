@@ -16,7 +16,10 @@ pub use colour::{
     Colour, ColourOptions, GamutMapping, RgbDisplay, RgbSpace, chromaticity, lab_to_lch,
     lab_to_xyz, rgb_to_xyz_under, srgb_decode, srgb_encode, xyz_to_lab,
 };
-pub use difference::{Travel, delta_e76, delta_e94, delta_e2000, travel};
+pub use difference::{
+    Travel, TravelPoint, delta_e76, delta_e94, delta_e2000, hue_difference_deg, travel,
+    travel_points,
+};
 pub use spectra::{BUILT_IN_ILLUMINANTS, Illuminant, Observer};
 pub use weights::Weights;
 

@@ -17,7 +17,7 @@ pub use geometry::{Geometry, SET_45, parse as parse_geometries, parse_name};
 pub use model::{Model, TABLE_STEP_DEG, Template};
 
 use crate::angle_colour::check_colour;
-use crate::colorimetry::{Colour, ColourOptions, Weights};
+use crate::colorimetry::{Colour, ColourOptions, Weights, hue_difference_deg};
 use crate::error::{Error, Result};
 
 /// The colour of the coating at one geometry.
@@ -78,11 +78,6 @@ pub fn flop_index(l15: f64, l45: f64, l110: f64) -> Option<f64> {
     (l15 > l110 && l45 > 0.0).then(|| 2.69 * (l15 - l110).powf(1.11) / l45.powf(0.86))
 }
 
-fn wrap180(d: f64) -> f64 {
-    let w = (d + 180.0).rem_euclid(360.0) - 180.0;
-    if w == -180.0 { 180.0 } else { w }
-}
-
 /// Colours at every geometry, the flop index, the hue travel and the
 /// surface gloss; a reflectance factor or colour that is not a finite number
 /// is an error naming its geometry.
@@ -135,7 +130,7 @@ pub fn measure(
     };
     let hue_travel_deg = (list.len() >= 2).then(|| {
         list.windows(2)
-            .map(|p| wrap180(p[1].colour.lch[2] - p[0].colour.lch[2]))
+            .map(|p| hue_difference_deg(p[0].colour.lch[2], p[1].colour.lch[2]))
             .sum()
     });
     let mut angles: Vec<f64> = geometries.iter().map(|g| g.illumination_deg).collect();

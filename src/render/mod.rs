@@ -15,7 +15,7 @@ use rayon::prelude::*;
 
 pub use camera::{Camera, View};
 pub use mesh::Mesh;
-pub use settings::{Base, Light, PREVIEW_KEYS, Settings, Shape, Source, parse_size, parse_tone};
+pub use settings::{Base, Light, PREVIEW_KEYS, SIZE_LIMITS, Settings, Shape, Source, parse_tone};
 
 use crate::error::Result;
 use crate::scene::Scene;

@@ -321,22 +321,8 @@ impl Default for Settings {
     }
 }
 
-/// `WxH` to a size (each 1–16384).
-pub fn parse_size(s: &str) -> Result<(u32, u32)> {
-    let bad = || {
-        Error::invalid(
-            "size",
-            s,
-            "expected WxH with each side from 1 to 16384, e.g. 800x600",
-        )
-    };
-    let (w, h) = s.split_once(['x', 'X']).ok_or_else(bad)?;
-    let side = |t: &str| match t.trim().parse::<u32>() {
-        Ok(v @ 1..=16384) => Ok(v),
-        _ => Err(bad()),
-    };
-    Ok((side(w)?, side(h)?))
-}
+/// Smallest and largest side of a render in pixels.
+pub const SIZE_LIMITS: (u32, u32) = (1, 16384);
 
 impl Settings {
     /// Checks every range (called before rendering, after flags override).
@@ -422,8 +408,6 @@ mod tests {
             .unwrap_err()
             .to_string();
         assert!(err.starts_with("light.illuminant = D66"), "{err}");
-        assert_eq!(parse_size("1024x768").unwrap(), (1024, 768));
-        assert!(parse_size("0x5").is_err());
     }
 
     #[test]

@@ -4,7 +4,8 @@ use serde_json::Value;
 
 use super::json::{Obj, show};
 use crate::error::{Error, Result};
-use crate::render::{Light, PREVIEW_KEYS, Settings, parse_size, parse_tone};
+use crate::raster;
+use crate::render::{Light, PREVIEW_KEYS, SIZE_LIMITS, Settings, parse_tone};
 
 /// The default settings overridden by the `preview` object `v`, with every
 /// range checked.
@@ -17,7 +18,7 @@ pub(super) fn parse(v: &Value) -> Result<Settings> {
         s.shape = t.parse().map_err(within)?;
     }
     if let Some(t) = o.str("size")? {
-        (s.width, s.height) = parse_size(t).map_err(within)?;
+        (s.width, s.height) = raster::parse_size(t, SIZE_LIMITS).map_err(within)?;
     }
     if let Some(n) = o.u64("ssaa")? {
         s.ssaa = n.min(u32::MAX as u64) as u32;

@@ -138,3 +138,18 @@ pub fn airy(n0: f64, n1: Complex64, n2: Complex64, d: f64, wl: f64, angle_deg: f
     let (rp, tp) = pol(q0 / (n0c * n0c), q1 / (n1 * n1), q2 / (n2 * n2));
     Rt { rs, rp, ts, tp }
 }
+
+/// Where the ray from `eye` along the unit vector `dir` first meets the
+/// unit sphere at the origin, if it does.
+pub fn hit_sphere(eye: glam::Vec3, dir: glam::Vec3) -> Option<glam::Vec3> {
+    let b = eye.dot(dir);
+    let disc = b * b - (eye.length_squared() - 1.0);
+    (disc > 0.0).then(|| eye + (-b - disc.sqrt()) * dir)
+}
+
+/// CIELAB (D65) of encoded sRGB, IEC 61966-2-1 by `palette`.
+pub fn lab_of(rgb: [f64; 3]) -> [f64; 3] {
+    use palette::{FromColor, Lab, Srgb, white_point::D65};
+    let lab: Lab<D65, f64> = Lab::from_color(Srgb::new(rgb[0], rgb[1], rgb[2]).into_linear());
+    [lab.l, lab.a, lab.b]
+}
