@@ -1,8 +1,11 @@
 //! Charts: pixel checks against the colour pipeline and the CIE tables, file
 //! formats and sizes, the chart and report commands.
 
+mod common;
+
+use common::lamella;
+
 use std::path::{Path, PathBuf};
-use std::process::Command;
 
 use lamella::angle_colour::Viewing;
 use lamella::chart::{self, AbTravel, AngleStrip, Chromaticity, ReflectanceMap, SpectraChart};
@@ -33,13 +36,6 @@ fn write_scene(dir: &Path, name: &str, text: &str) -> PathBuf {
     let p = dir.join(name);
     std::fs::write(&p, text).unwrap();
     p
-}
-
-fn lamella(args: &[&str]) -> std::process::Output {
-    Command::new(env!("CARGO_BIN_EXE_lamella"))
-        .args(args)
-        .output()
-        .unwrap()
 }
 
 fn pixel(rgb: &[u8], size: (u32, u32), (x, y): (i32, i32)) -> [u8; 3] {

@@ -1,13 +1,8 @@
 //! The `color` command end to end.
 
-use std::process::{Command, Output};
+mod common;
 
-fn lamella(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_lamella"))
-        .args(args)
-        .output()
-        .expect("runs")
-}
+use common::lamella;
 
 fn scene_file(name: &str, text: &str) -> String {
     let dir = std::env::temp_dir().join(format!("lamella-color-{}", std::process::id()));

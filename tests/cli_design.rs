@@ -1,15 +1,10 @@
 //! The design commands end to end: reports, written scenes, bad input.
 
-use std::process::Command;
+mod common;
+
+use common::lamella;
 
 const SCENE: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/bench/design_5layer.json");
-
-fn lamella(args: &[&str]) -> std::process::Output {
-    Command::new(env!("CARGO_BIN_EXE_lamella"))
-        .args(args)
-        .output()
-        .unwrap()
-}
 
 fn tmp(name: &str) -> String {
     let dir = std::env::temp_dir().join(format!("lamella-design-{}", std::process::id()));

@@ -3,25 +3,15 @@
 //! each must exit 0 with every number in every output finite (no NaN,
 //! infinity or null). Grids are small to keep the run short.
 
-use std::path::PathBuf;
-use std::process::{Command, Output};
+mod common;
+
+use common::{lamella, temp_dir};
+
+use std::process::Output;
 
 use lamella::angle_colour::{Viewing, angle_colours};
 use lamella::scene::Scene;
 use proptest::prelude::*;
-
-fn lamella(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_lamella"))
-        .args(args)
-        .output()
-        .expect("runs")
-}
-
-fn temp_dir(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("lamella-finite-{name}-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    dir
-}
 
 /// Words that stand for a number that is not one.
 fn bad_token(text: &str) -> Option<String> {

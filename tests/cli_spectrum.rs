@@ -1,21 +1,11 @@
 //! The `spectrum` and `materials` commands end to end, and bad input: exit code
 //! 2 with one line naming the file, key and value, never a panic.
 
+mod common;
+
+use common::{lamella, temp_dir};
+
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-
-fn lamella(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_lamella"))
-        .args(args)
-        .output()
-        .expect("runs")
-}
-
-fn temp_dir(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("lamella-test-{name}-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    dir
-}
 
 fn write(dir: &Path, name: &str, text: &str) -> PathBuf {
     let p = dir.join(name);

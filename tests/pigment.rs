@@ -2,7 +2,9 @@
 //! lightness flop, reciprocity, the TiO2-on-mica colour sequence and the
 //! `multiangle` command.
 
-use std::process::Command;
+mod common;
+
+use common::lamella;
 
 use lamella::colorimetry::{ColourOptions, Illuminant, Observer, Weights};
 use lamella::optics::{self, Exit, Stack};
@@ -230,13 +232,6 @@ fn tio2_on_mica_runs_through_the_trade_sequence() {
         ["silver", "gold", "red", "violet", "blue", "green"],
         "sequence of colours as TiO2 grows"
     );
-}
-
-fn lamella(args: &[&str]) -> std::process::Output {
-    Command::new(env!("CARGO_BIN_EXE_lamella"))
-        .args(args)
-        .output()
-        .unwrap()
 }
 
 #[test]

@@ -2,11 +2,10 @@
 //! silhouette size, an OBJ cube's faces, and the command line.
 
 use std::path::PathBuf;
-use std::process::Command;
 
 mod common;
 
-use common::{hit_sphere, lab_of};
+use common::{hit_sphere, lab_of, lamella};
 use glam::{Vec2, Vec3};
 use lamella::angle_colour::Viewing;
 use lamella::colorimetry::{Colour, ColourOptions, delta_e2000};
@@ -280,13 +279,6 @@ fn obj_cube_renders_the_faces_it_should() {
     }
     assert_eq!(faces.len(), 3, "{faces:?}");
     assert!(checked > 800, "{checked}");
-}
-
-fn lamella(args: &[&str]) -> std::process::Output {
-    Command::new(env!("CARGO_BIN_EXE_lamella"))
-        .args(args)
-        .output()
-        .unwrap()
 }
 
 fn temp(name: &str) -> PathBuf {

@@ -4,25 +4,16 @@
 //! warnings name what and where, oversized work is refused before it starts
 //! and a stopped run leaves no temporary file.
 
-use std::path::{Path, PathBuf};
+mod common;
+
+use common::{lamella, temp_dir};
+
+use std::path::Path;
 use std::process::{Command, Output, Stdio};
 use std::time::Duration;
 
 use lamella::colorimetry::Observer;
 use lamella::scene::{Scene, WarningKind};
-
-fn lamella(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_lamella"))
-        .args(args)
-        .output()
-        .expect("runs")
-}
-
-fn temp_dir(name: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("lamella-valid-{name}-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    dir
-}
 
 fn stderr(out: &Output) -> String {
     String::from_utf8_lossy(&out.stderr).into_owned()

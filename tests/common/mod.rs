@@ -153,3 +153,18 @@ pub fn lab_of(rgb: [f64; 3]) -> [f64; 3] {
     let lab: Lab<D65, f64> = Lab::from_color(Srgb::new(rgb[0], rgb[1], rgb[2]).into_linear());
     [lab.l, lab.a, lab.b]
 }
+
+/// Runs the `lamella` binary with `args`.
+pub fn lamella(args: &[&str]) -> std::process::Output {
+    std::process::Command::new(env!("CARGO_BIN_EXE_lamella"))
+        .args(args)
+        .output()
+        .expect("the lamella binary runs")
+}
+
+/// A fresh folder for one test's files, unique to this test process.
+pub fn temp_dir(name: &str) -> std::path::PathBuf {
+    let dir = std::env::temp_dir().join(format!("lamella-test-{name}-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
