@@ -184,3 +184,118 @@ proptest! {
         prop_assert!((x.ts - y.ts).abs() < 1e-9 && (x.tp - y.tp).abs() < 1e-9, "{x:?} vs reversed {y:?}");
     }
 }
+
+/// Scenes with thick incoherent layers anywhere, against R and T computed
+/// with mpmath 1.3.0 (PyPI) at 40 digits by the intensity matrices of
+/// Katsidis & Siapkas (Appl. Opt. 41, 3978, 2002):
+/// `reference_data/incoherent/`, with the script that made it.
+#[test]
+fn scenes_with_incoherent_layers_match_the_intensity_matrix_reference() {
+    use serde_json::{Value, json};
+    let doc: Value = serde_json::from_str(include_str!(
+        "../reference_data/incoherent/incoherent_reference.json"
+    ))
+    .unwrap();
+    let cases = doc["cases"].as_array().unwrap();
+    assert_eq!(cases.len(), 30);
+    let mut worst = 0.0f64;
+    for (i, case) in cases.iter().enumerate() {
+        let mut materials = serde_json::Map::new();
+        let stack: Vec<Value> = case["stack"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .enumerate()
+            .map(|(j, l)| {
+                let name = format!("m{j}");
+                materials.insert(name.clone(), json!({"n": l["n"], "k": l["k"]}));
+                let mut item = l.clone();
+                let o = item.as_object_mut().unwrap();
+                o.remove("n");
+                o.remove("k");
+                o.insert("material".into(), json!(name));
+                item
+            })
+            .collect();
+        materials.insert("sub".into(), json!({"n": case["substrate_n"]}));
+        let scene = json!({
+            "stack": stack, "substrate": "sub", "materials": materials,
+            "wavelengths_nm": case["wavelengths_nm"], "angles_deg": case["angles_deg"],
+        });
+        let scene =
+            lamella::scene::Scene::from_json(&scene.to_string(), &|_| Err("no files".into()))
+                .unwrap_or_else(|e| panic!("case {i}: {e}"));
+        let spectra = scene.spectra().unwrap();
+        for a in 0..spectra.angles_deg.len() {
+            for (w, x) in spectra.at_angle(a).iter().enumerate() {
+                for (got, key) in [(x.rs, "R_s"), (x.rp, "R_p"), (x.ts, "T_s"), (x.tp, "T_p")] {
+                    let want = case[key][a][w].as_f64().unwrap();
+                    worst = worst.max((got - want).abs());
+                    assert!(
+                        (got - want).abs() < 1e-9,
+                        "case {i}, {key} at angle {a}, λ {w}: {got} vs {want}"
+                    );
+                }
+            }
+        }
+    }
+    println!("largest deviation from the reference: {worst:e}");
+}
+
+fn read(scene: serde_json::Value) -> Result<lamella::scene::Scene, String> {
+    lamella::scene::Scene::from_json(&scene.to_string(), &|_| Err("no files".into()))
+        .map_err(|e| e.to_string())
+}
+
+/// The `incoherent` key: where it may sit, how its thickness is written,
+/// and the substrate-sheet form giving the same numbers.
+#[test]
+fn incoherent_items_in_scene_files() {
+    use serde_json::json;
+    let film = json!({"material": "mgf2", "thickness_nm": 99.6});
+    let glass = json!({"material": "bk7", "thickness_um": 3000, "incoherent": true});
+    // An antireflection layer on both faces of a window.
+    let window = read(json!({"stack": [film, glass, film], "substrate": "air"})).unwrap();
+    let sheet = read(json!({
+        "stack": [film],
+        "substrate": {"material": "bk7", "thickness_um": 3000, "behind": "air"}
+    }))
+    .unwrap();
+    let (w, s) = (window.spectra().unwrap(), sheet.spectra().unwrap());
+    // The coated back face reflects less than the bare one.
+    assert!(w.rt[170].rs < s.rt[170].rs && w.rt[170].ts > s.rt[170].ts);
+    let bare_back = read(json!({"stack": [film, glass], "substrate": "air"})).unwrap();
+    assert_eq!(bare_back.spectra().unwrap().rt, s.rt);
+
+    let refusals = [
+        (
+            json!({"stack": [{"repeat": 2, "stack": [glass]}], "substrate": "air"}),
+            "stack[0].stack[0].incoherent",
+        ),
+        (
+            json!({"stack": [{"material": "bk7", "thickness_nm": 5, "thickness_um": 5}], "substrate": "air"}),
+            "stack[0].thickness_um",
+        ),
+        (
+            json!({"stack": [{"material": "bk7", "thickness_um": 5, "incoherent": "yes"}], "substrate": "air"}),
+            "stack[0].incoherent",
+        ),
+        (
+            json!({"stack": [{"material": "bk7", "thickness_um": 0, "incoherent": true}], "substrate": "air"}),
+            "stack[0].thickness_um",
+        ),
+        (
+            json!({"stack": [{"material": "bk7"}], "substrate": "air"}),
+            "stack[0].thickness_nm",
+        ),
+    ];
+    for (scene, key) in refusals {
+        let e = read(scene).unwrap_err();
+        assert!(e.starts_with(key), "{e}");
+    }
+    let thin = read(json!({"stack": [{"material": "bk7", "thickness_nm": 400, "incoherent": true}], "substrate": "air"})).unwrap();
+    assert!(
+        thin.warnings.iter().any(|w| w.key == "stack[0].incoherent"
+            && w.message.contains("coherent layer is likely meant"))
+    );
+}

@@ -285,7 +285,7 @@ fn warnings_name_what_and_where() {
         w[0].1.starts_with("stack[1].thickness_nm: 60000 nm"),
         "{w:?}"
     );
-    assert!(w[0].1.contains("incoherent sheet"), "{w:?}");
+    assert!(w[0].1.contains("\"incoherent\": true"), "{w:?}");
 }
 
 #[test]

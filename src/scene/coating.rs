@@ -37,7 +37,7 @@ pub(super) fn parse(v: &Value, media: &mut Registry) -> Result<Coating> {
     let platelet_value = o
         .get("platelet")
         .ok_or_else(|| o.missing("platelet", "the platelet's layers, as in `stack`"))?;
-    let platelet = stack::parse_items(platelet_value, &o.key("platelet"), media)?;
+    let platelet = stack::parse_items(platelet_value, &o.key("platelet"), media, false)?;
     if platelet.is_empty() {
         return Err(Error::invalid(
             o.key("platelet"),

@@ -147,7 +147,7 @@ impl Scene {
         // incident medium.
         let has_coating = top.get("coating").is_some();
         let stack = match top.get("stack") {
-            Some(v) => stack::parse_items(v, "stack", &mut media)?,
+            Some(v) => stack::parse_items(v, "stack", &mut media, true)?,
             None if has_coating => Vec::new(),
             None => return Err(top.missing("stack", "a list of layers")),
         };

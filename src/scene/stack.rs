@@ -43,6 +43,9 @@ pub struct Layer {
     pub sigma: Option<Sigma>,
     /// JSON pointer of the layer in the scene document.
     pub pointer: String,
+    /// A thick layer treated incoherently (intensities add; only at the
+    /// top level of `stack`).
+    pub incoherent: bool,
 }
 
 /// A repeat group.
@@ -65,7 +68,14 @@ pub enum Item {
     Repeat(Repeat),
 }
 
-pub(super) fn parse_items(v: &Value, path: &str, media: &mut Registry) -> Result<Vec<Item>> {
+/// Parses a list of layers at `path`; `top` when it is the scene's own
+/// `stack` (the only place an incoherent layer may sit).
+pub(super) fn parse_items(
+    v: &Value,
+    path: &str,
+    media: &mut Registry,
+    top: bool,
+) -> Result<Vec<Item>> {
     let list = v
         .as_array()
         .ok_or_else(|| Error::invalid(path, show(v), "expected a list of layers"))?;
@@ -78,12 +88,19 @@ pub(super) fn parse_items(v: &Value, path: &str, media: &mut Registry) -> Result
                 &format!("{path}[{i}]"),
                 &format!("{pointer}/{i}"),
                 media,
+                top,
             )
         })
         .collect()
 }
 
-fn parse_item(v: &Value, path: &str, pointer: &str, media: &mut Registry) -> Result<Item> {
+fn parse_item(
+    v: &Value,
+    path: &str,
+    pointer: &str,
+    media: &mut Registry,
+    top: bool,
+) -> Result<Item> {
     let o = Obj::new(v, path)?;
     if o.get("repeat").is_some() {
         o.only(&["repeat", "stack", "chirp_scale"])?;
@@ -98,7 +115,7 @@ fn parse_item(v: &Value, path: &str, pointer: &str, media: &mut Registry) -> Res
         let inner = o
             .get("stack")
             .ok_or_else(|| o.missing("stack", "the layers of one period"))?;
-        let items = parse_items(inner, &o.key("stack"), media)?;
+        let items = parse_items(inner, &o.key("stack"), media, false)?;
         if items.is_empty() {
             return Err(Error::invalid(
                 o.key("stack"),
@@ -133,6 +150,8 @@ fn parse_item(v: &Value, path: &str, pointer: &str, media: &mut Registry) -> Res
     o.only(&[
         "material",
         "thickness_nm",
+        "thickness_um",
+        "incoherent",
         "vary_nm",
         "sigma_nm",
         "sigma_pct",
@@ -142,12 +161,49 @@ fn parse_item(v: &Value, path: &str, pointer: &str, media: &mut Registry) -> Res
         .str("material")?
         .ok_or_else(|| o.missing("material", "a material name (or `repeat` for a group)"))?;
     let medium = media.resolve(name, &o.key("material"))?;
-    let thickness_nm = o.req_f64("thickness_nm")?;
+    let (thickness_key, thickness_nm) = match (o.f64("thickness_nm")?, o.f64("thickness_um")?) {
+        (Some(nm), None) => ("thickness_nm", nm),
+        (None, Some(um)) => ("thickness_um", um * 1e3),
+        (Some(_), Some(um)) => {
+            return Err(Error::invalid(
+                o.key("thickness_um"),
+                um,
+                "give thickness_nm or thickness_um, not both",
+            ));
+        }
+        (None, None) => return Err(o.missing("thickness_nm", "a number (or thickness_um)")),
+    };
     if thickness_nm < 0.0 {
         return Err(Error::invalid(
-            o.key("thickness_nm"),
-            thickness_nm,
+            o.key(thickness_key),
+            show(&o.map[thickness_key]),
             "must be ≥ 0",
+        ));
+    }
+    let incoherent = match o.get("incoherent") {
+        None => false,
+        Some(Value::Bool(b)) => *b,
+        Some(other) => {
+            return Err(Error::invalid(
+                o.key("incoherent"),
+                show(other),
+                "expected true or false",
+            ));
+        }
+    };
+    if incoherent && !top {
+        return Err(Error::invalid(
+            o.key("incoherent"),
+            "true",
+            "an incoherent layer cannot sit inside a repeat group or a platelet; \
+             write it at the top level of `stack`",
+        ));
+    }
+    if incoherent && thickness_nm <= 0.0 {
+        return Err(Error::invalid(
+            o.key(thickness_key),
+            show(&o.map[thickness_key]),
+            "an incoherent layer must be thicker than zero",
         ));
     }
     let vary_nm = o
@@ -170,6 +226,7 @@ fn parse_item(v: &Value, path: &str, pointer: &str, media: &mut Registry) -> Res
         vary_nm,
         sigma,
         pointer: pointer.to_string(),
+        incoherent,
     }))
 }
 
@@ -308,9 +365,16 @@ fn emit(items: &[Item], scale: f64, jitter: &mut Jitter) -> Vec<Node> {
                     },
                     None => nominal,
                 };
-                out.push(Node::Layer {
-                    medium: l.medium,
-                    thickness_nm,
+                out.push(if l.incoherent {
+                    Node::Incoherent {
+                        medium: l.medium,
+                        thickness_nm,
+                    }
+                } else {
+                    Node::Layer {
+                        medium: l.medium,
+                        thickness_nm,
+                    }
                 });
             }
             Item::Repeat(r) => {

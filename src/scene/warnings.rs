@@ -14,6 +14,11 @@ pub const COARSEST_COLOUR_STEP_NM: f64 = 10.0;
 /// are finer than a spectrometer or the eye resolves (common practice).
 pub const THICKEST_COHERENT_NM: f64 = 50_000.0;
 
+/// Thinnest incoherent layer (nm) without a warning: below 1 µm visible
+/// light keeps its coherence across the layer and fringes are seen (common
+/// practice).
+pub const THINNEST_INCOHERENT_NM: f64 = 1_000.0;
+
 /// The kind of a [`Warning`].
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum WarningKind {
@@ -24,6 +29,8 @@ pub enum WarningKind {
     CoarseStep,
     /// A coherent layer is thicker than [`THICKEST_COHERENT_NM`].
     ThickLayer,
+    /// An incoherent layer is thinner than [`THINNEST_INCOHERENT_NM`].
+    ThinIncoherent,
 }
 
 /// A warning about a valid scene, naming the key it concerns.
@@ -100,12 +107,24 @@ fn coarsest_visible_step(grid: &[f64]) -> Option<f64> {
 fn thick_layers<'a>(items: impl Iterator<Item = &'a Item>, out: &mut Vec<Warning>) {
     for item in items {
         match item {
-            Item::Layer(l) if l.thickness_nm > THICKEST_COHERENT_NM => out.push(Warning {
+            Item::Layer(l) if l.incoherent && l.thickness_nm < THINNEST_INCOHERENT_NM => {
+                out.push(Warning {
+                    kind: WarningKind::ThinIncoherent,
+                    key: format!("{}.incoherent", key_of(&l.pointer)),
+                    message: format!(
+                        "an incoherent layer of {} nm: light stays coherent across layers \
+                         thinner than {} µm, so a coherent layer is likely meant",
+                        l.thickness_nm,
+                        THINNEST_INCOHERENT_NM / 1e3
+                    ),
+                })
+            }
+            Item::Layer(l) if !l.incoherent && l.thickness_nm > THICKEST_COHERENT_NM => out.push(Warning {
                 kind: WarningKind::ThickLayer,
                 key: format!("{}.thickness_nm", key_of(&l.pointer)),
                 message: format!(
                     "{} nm is a coherent layer thicker than {} µm, whose fringes no instrument resolves; \
-                     describe it as an incoherent sheet (\"substrate\": {{\"material\", \"thickness_um\"}})",
+                     mark it \"incoherent\": true (or use a substrate sheet)",
                     l.thickness_nm,
                     THICKEST_COHERENT_NM / 1e3
                 ),
