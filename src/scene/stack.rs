@@ -329,6 +329,33 @@ fn expands(r: &Repeat, jittered: bool) -> bool {
     r.chirp_scale != 1.0 || jittered
 }
 
+/// For each layer node that [`realise`] emits (depth first, a powered
+/// repeat's period once), the number of the layer as written (depth first
+/// over `items`, a layer inside a repeat group counted once), from `next`.
+pub(super) fn written_layers_of_nodes(
+    items: &[Item],
+    jittered: bool,
+    next: &mut usize,
+    out: &mut Vec<usize>,
+) {
+    for item in items {
+        match item {
+            Item::Layer(_) => {
+                out.push(*next);
+                *next += 1;
+            }
+            Item::Repeat(r) => {
+                let start = *next;
+                let periods = if expands(r, jittered) { r.count } else { 1 };
+                for _ in 0..periods {
+                    *next = start;
+                    written_layers_of_nodes(&r.items, jittered, next, out);
+                }
+            }
+        }
+    }
+}
+
 /// One node list per realisation: the ideal design when there is no
 /// disorder, otherwise `realizations` seeded random draws.
 pub fn realise(items: &[Item], disorder: Option<&Disorder>) -> Vec<Vec<Node>> {
