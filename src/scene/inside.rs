@@ -311,9 +311,9 @@ impl Scene {
                     half_trace[pol][a][w] = h[pol].re;
                 }
             }
-            for pol in 0..2 {
+            for (pol, rows) in half_trace.iter().enumerate() {
                 let inside = |x: f64| x.abs() > 1.0;
-                let row = &half_trace[pol][a];
+                let row = &rows[a];
                 // The edge between grid points w and w + 1, by bisection.
                 let edge = |w: usize| -> Result<f64> {
                     let (mut lo, mut hi) = (self.wavelengths_nm[w], self.wavelengths_nm[w + 1]);
