@@ -299,3 +299,31 @@ fn incoherent_items_in_scene_files() {
             && w.message.contains("coherent layer is likely meant"))
     );
 }
+
+/// Beyond the critical angle of a thick lossless layer no light travels in
+/// it: a glass-incident stack with a thick air gap reflects totally, with
+/// every number finite (a regression: the back-face flows divided by
+/// Re η = 0).
+#[test]
+fn a_thick_layer_beyond_its_critical_angle_reflects_everything() {
+    let media = [c(1.5, 0.0), c(2.0, 0.0), c(1.0, 0.0), c(1.5, 0.0)];
+    let s = stack(0, vec![layer(1, 80.0), thick(2, 1e5), layer(1, 80.0)], 3);
+    for deg in [45.0, 60.0, 85.0] {
+        let x = rt_at(&s, &media, 550.0, deg);
+        assert!(finite_unit(&x), "{x:?}");
+        assert!(
+            (x.rs - 1.0).abs() < 1e-12 && (x.rp - 1.0).abs() < 1e-12 && x.ts == 0.0 && x.tp == 0.0,
+            "{x:?}"
+        );
+        let (terms, at) = {
+            let at = lamella::optics::Probe::new(550.0, 1.5, deg);
+            let t: Vec<_> = media
+                .iter()
+                .map(|&n| lamella::optics::MediumTerms::new(n, at.beta()))
+                .collect();
+            (t, at)
+        };
+        let a = s.absorption(&terms, &at);
+        assert!(a.layers.iter().flatten().all(|v| v.abs() < 1e-12), "{a:?}");
+    }
+}

@@ -193,6 +193,11 @@ fn lit_run(
     pol: usize,
     out: &mut [[f64; 2]],
 ) -> (f64, f64, f64) {
+    let (eta_a, _) = admittance(&terms[a], pol);
+    if !(eta_a.re > 0.0) {
+        // No light travels in medium a (beyond its critical angle).
+        return (0.0, 0.0, 0.0);
+    }
     let (eta_b, _) = admittance(&terms[b], pol);
     let mut f = Field::exit(eta_b);
     // Per layer: its number, and the flux at its front and back faces with
@@ -206,7 +211,6 @@ fn lit_run(
         f.renormalise();
         faces.push((leaf, (flux(&f), f.log), back));
     }
-    let (eta_a, _) = admittance(&terms[a], pol);
     let (r, t) = coherent(eta_a, eta_b, &f);
     // Incident flux Re(η₀)|η₀B + C|²/(4|η₀|²), the convention of `coherent`.
     let incident = eta_a.re * (eta_a * f.v[0] + f.v[1]).norm_sqr() / (4.0 * eta_a.norm_sqr());

@@ -330,8 +330,19 @@ fn segment(nodes: &[Node], a: usize, b: usize, terms: &[MediumTerms], at: &Probe
             f.through(mat);
             f
         };
-        let (rf, tf) = coherent(ea, eb, &through(&m, eb));
-        let (rb, tb) = coherent(eb, ea, &through(&m.reversed(), ea));
+        // No light travels in a lossless medium beyond its critical angle
+        // (Re η = 0): nothing arrives from that side (and a thick layer of
+        // it passes nothing, tunnelling through many wavelengths being
+        // negligible).
+        let lit = |from: Complex64, to: Complex64, m: &Mat| {
+            if from.re > 0.0 {
+                coherent(from, to, &through(m, to))
+            } else {
+                (0.0, 0.0)
+            }
+        };
+        let (rf, tf) = lit(ea, eb, &m);
+        let (rb, tb) = lit(eb, ea, &m.reversed());
         Flow { rf, tf, rb, tb }
     };
     [flow(ms, ta.eta_s, tb.eta_s), flow(mp, ta.eta_p, tb.eta_p)]
