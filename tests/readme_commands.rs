@@ -1,0 +1,88 @@
+//! Every `lamella …` command shown in the README's shell blocks runs as
+//! written, from a folder holding the repository's shipped files, and
+//! exits 0 (or 3 for a `match` whose target is not reached, which the
+//! README documents).
+
+use std::path::Path;
+use std::process::Command;
+
+/// The README's shell commands, continuation lines joined, in order.
+fn commands() -> Vec<String> {
+    let readme = include_str!("../README.md");
+    let mut out = Vec::new();
+    let mut in_block = false;
+    let mut pending = String::new();
+    for line in readme.lines() {
+        if line.trim_start().starts_with("```") {
+            in_block = line.trim() == "```sh";
+            continue;
+        }
+        if !in_block {
+            continue;
+        }
+        let line = line.trim();
+        if let Some(head) = line.strip_suffix('\\') {
+            pending.push_str(head);
+            continue;
+        }
+        pending.push_str(line);
+        let command = std::mem::take(&mut pending);
+        // Scheduler scripts (shell variables) show a recipe, not a command.
+        if command.starts_with("lamella ") && !command.contains('$') {
+            out.push(command);
+        }
+    }
+    out
+}
+
+/// Splits a command line on spaces, honouring single quotes.
+fn words(command: &str) -> Vec<String> {
+    let mut out = Vec::new();
+    let (mut word, mut quoted) = (String::new(), false);
+    for ch in command.chars() {
+        match ch {
+            '\'' => quoted = !quoted,
+            ' ' if !quoted => {
+                if !word.is_empty() {
+                    out.push(std::mem::take(&mut word));
+                }
+            }
+            _ => word.push(ch),
+        }
+    }
+    if !word.is_empty() {
+        out.push(word);
+    }
+    out
+}
+
+#[test]
+fn every_readme_command_runs_as_written() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let dir = std::env::temp_dir().join(format!("lamella-readme-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    for shipped in ["scenes", "bench", "tests"] {
+        let link = dir.join(shipped);
+        if !link.exists() {
+            std::os::unix::fs::symlink(root.join(shipped), link).unwrap();
+        }
+    }
+    let commands = commands();
+    assert!(commands.len() >= 10, "{commands:?}");
+    for command in &commands {
+        let args = words(command);
+        let out = Command::new(env!("CARGO_BIN_EXE_lamella"))
+            .args(&args[1..])
+            .current_dir(&dir)
+            .output()
+            .unwrap();
+        let code = out.status.code();
+        let reported = args[1] == "match" && code == Some(3);
+        assert!(
+            code == Some(0) || reported,
+            "`{command}` exited {code:?}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+    }
+    std::fs::remove_dir_all(&dir).unwrap();
+}
