@@ -5,6 +5,7 @@
 //! The method follows Macleod, *Thin-Film Optical Filters* (4th ed., 2010),
 //! ch. 2, and Born & Wolf, *Principles of Optics* (7th ed., 1999), §1.6.
 
+pub mod aniso;
 mod bands;
 mod double_double;
 mod exact;
