@@ -119,7 +119,7 @@ fn uniaxial_slab_with_axis_along_the_normal_decouples_into_closed_forms() {
         }],
         exit: 1,
     };
-    for deg in [0.0, 30.0, 65.0] {
+    for deg in [0.0f64, 30.0, 65.0] {
         for wl in [420.0, 555.0, 700.0] {
             let xi = n0 * deg.to_radians().sin();
             let k0 = 2.0 * PI / wl;
