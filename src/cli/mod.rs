@@ -1,5 +1,6 @@
 //! The command-line front end: argument definitions and glue.
 
+pub mod args;
 pub mod chart;
 pub mod color;
 pub mod design_args;
