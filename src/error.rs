@@ -1,16 +1,36 @@
 //! Typed errors of the engine. The command line adds the file name and maps
 //! every variant to exit code 2 (bad input).
 
+use std::borrow::Cow;
 use std::fmt::Display;
 
 /// Result with the engine's error.
 pub type Result<T> = std::result::Result<T, Error>;
 
-/// What went wrong, always naming the key and the offending value.
+/// `text` with control characters and line separators escaped (`\n`,
+/// `\u{1b}`), so that a message naming a user's key or value is always one
+/// line and cannot drive the terminal.
+pub fn one_line(text: &str) -> Cow<'_, str> {
+    let odd = |c: char| c.is_control() || matches!(c, '\u{2028}' | '\u{2029}');
+    if !text.contains(odd) {
+        return Cow::Borrowed(text);
+    }
+    let escape = |c: char| {
+        if odd(c) {
+            c.escape_default().to_string()
+        } else {
+            c.to_string()
+        }
+    };
+    Cow::Owned(text.chars().map(escape).collect())
+}
+
+/// What went wrong, always naming the key and the offending value (printed
+/// on one line: see [`one_line`]).
 #[derive(Debug, thiserror::Error)]
 pub enum Error {
     /// A value is out of its allowed domain.
-    #[error("{key} = {value}: {why}")]
+    #[error("{} = {}: {}", one_line(.key), one_line(.value), one_line(.why))]
     Invalid {
         /// Dotted path of the key, e.g. `stack[2].thickness_nm`.
         key: String,
@@ -21,7 +41,9 @@ pub enum Error {
     },
     /// A name that is neither in the scene's `materials` nor built in.
     #[error(
-        "{key} = \"{name}\": unknown material (not in `materials` nor built in; see `lamella materials`)"
+        "{} = \"{}\": unknown material (not in `materials` nor built in; see `lamella materials`)",
+        one_line(.key),
+        one_line(.name)
     )]
     UnknownMaterial {
         /// Where the name was used.
@@ -30,7 +52,7 @@ pub enum Error {
         name: String,
     },
     /// Text that is not valid JSON.
-    #[error("malformed JSON at line {line}, column {column}: {message}")]
+    #[error("malformed JSON at line {line}, column {column}: {}", one_line(.message))]
     Syntax {
         /// 1-based line.
         line: usize,
@@ -41,7 +63,8 @@ pub enum Error {
     },
     /// A wavelength outside a tabulated material's data.
     #[error(
-        "{key}: wavelength {wavelength_nm} nm is outside the material's table ({min_nm}–{max_nm} nm)"
+        "{}: wavelength {wavelength_nm} nm is outside the material's table ({min_nm}–{max_nm} nm)",
+        one_line(.key)
     )]
     OutOfRange {
         /// The material's key.
@@ -104,5 +127,26 @@ impl Error {
             },
             other @ Error::Syntax { .. } => other,
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn line_breaks_and_control_characters_in_keys_and_values_are_escaped() {
+        let e = Error::invalid("a\nb", "x\r\u{1b}[2J\u{2028}", "why\n");
+        assert_eq!(e.to_string(), "a\\nb = x\\r\\u{1b}[2J\\u{2028}: why\\n");
+        let e = Error::UnknownMaterial {
+            key: "stack[0]".into(),
+            name: "glass\n".into(),
+        };
+        assert!(
+            e.to_string()
+                .starts_with("stack[0] = \"glass\\n\": unknown"),
+            "{e}"
+        );
+        assert_eq!(one_line("plain ΔE00 ±1"), "plain ΔE00 ±1");
     }
 }

@@ -405,6 +405,9 @@ fn coherent(eta0: Complex64, eta_m: Complex64, f: &Field) -> (f64, f64) {
 /// Katsidis & Siapkas, Applied Optics 41, 3978, 2002):
 /// R = R_f + T_f T_f' R_b α² / (1 − R_f' R_b α²), T = T_f T_b α / (1 − R_f' R_b α²),
 /// with primes for light travelling from the sheet back through the stack.
+/// Beyond a lossless sheet's critical angle no light travels in it (Re η = 0,
+/// T_f = 0): the stack then reflects R_f as on a semi-infinite medium
+/// (tunnelling through a sheet many wavelengths thick is negligible).
 fn incoherent(
     m: &Mat,
     eta0: Complex64,
@@ -418,6 +421,9 @@ fn incoherent(
         f
     };
     let (rf, tf) = coherent(eta0, eta_sheet, &field(m, eta_sheet));
+    if !(eta_sheet.re > 0.0) {
+        return (rf, 0.0);
+    }
     let (rb_stack, tb_stack) = coherent(eta_sheet, eta0, &field(&m.reversed(), eta0));
     let round = r_back * alpha * alpha;
     let den = 1.0 - rb_stack * round;

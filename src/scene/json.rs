@@ -10,8 +10,9 @@ pub struct Obj<'a> {
     pub path: String,
 }
 
-/// `parent.key`, or `key` at the top level.
+/// `parent.key`, or `key` at the top level; an empty key is written `""`.
 pub fn join(parent: &str, key: &str) -> String {
+    let key = if key.is_empty() { "\"\"" } else { key };
     if parent.is_empty() {
         key.to_string()
     } else {
@@ -35,7 +36,10 @@ impl<'a> Obj<'a> {
         let path = path.into();
         match v {
             Value::Object(map) => Ok(Obj { map, path }),
-            other => Err(Error::invalid(path, show(other), "expected a JSON object")),
+            other => {
+                let key = if path.is_empty() { "(document)" } else { &path };
+                Err(Error::invalid(key, show(other), "expected a JSON object"))
+            }
         }
     }
 
