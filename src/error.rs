@@ -25,6 +25,17 @@ pub fn one_line(text: &str) -> Cow<'_, str> {
     Cow::Owned(text.chars().map(escape).collect())
 }
 
+/// A number as written by `{}`, or in exponent form when that would take
+/// more than 24 characters (1e-320, not 320 digits).
+fn compact(x: f64) -> String {
+    let plain = x.to_string();
+    if plain.len() > 24 {
+        format!("{x:e}")
+    } else {
+        plain
+    }
+}
+
 /// What went wrong, always naming the key and the offending value (printed
 /// on one line: see [`one_line`]).
 #[derive(Debug, thiserror::Error)]
@@ -63,8 +74,11 @@ pub enum Error {
     },
     /// A wavelength outside a tabulated material's data.
     #[error(
-        "{}: wavelength {wavelength_nm} nm is outside the material's table ({min_nm}–{max_nm} nm)",
-        one_line(.key)
+        "{}: wavelength {} nm is outside the material's table ({}–{} nm)",
+        one_line(.key),
+        compact(*.wavelength_nm),
+        compact(*.min_nm),
+        compact(*.max_nm)
     )]
     OutOfRange {
         /// The material's key.
@@ -82,11 +96,10 @@ impl Error {
     /// Builds [`Error::Invalid`] from anything printable.
     pub fn invalid(key: impl Into<String>, value: impl Display, why: impl Into<String>) -> Self {
         let mut value = value.to_string();
-        // Very large or small numbers print in exponent form, not 300 digits.
         if value.len() > 24
             && let Ok(x) = value.parse::<f64>()
         {
-            value = format!("{x:e}");
+            value = compact(x);
         }
         Error::Invalid {
             key: key.into(),

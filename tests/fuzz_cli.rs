@@ -80,7 +80,7 @@ fn mutated_command_lines_exit_0_1_or_2() {
     };
     seeds.iter().for_each(|s| run(s));
     let strategy = (0..seeds.len(), mutate::edits());
-    mutate::runner(500)
+    mutate::runner(1500)
         .run(&strategy, |(i, edits)| {
             run(&mutate::apply(&seeds[i], &edits, &fragments));
             Ok(())

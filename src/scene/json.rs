@@ -10,9 +10,16 @@ pub struct Obj<'a> {
     pub path: String,
 }
 
-/// `parent.key`, or `key` at the top level; an empty key is written `""`.
+/// `parent.key`, or `key` at the top level; a key that is empty or starts or
+/// ends with white space is written quoted (`""`, `" glass"`).
 pub fn join(parent: &str, key: &str) -> String {
-    let key = if key.is_empty() { "\"\"" } else { key };
+    let quoted;
+    let key = if key.is_empty() || key.trim() != key {
+        quoted = Value::from(key).to_string();
+        &quoted
+    } else {
+        key
+    };
     if parent.is_empty() {
         key.to_string()
     } else {

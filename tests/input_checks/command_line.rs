@@ -132,7 +132,13 @@ pub const VALUES: &[&str] = &[
 const STDOUT_FILE: &str = "stdout.txt";
 
 /// JSON keys whose value may be `null` by design.
-const NULLABLE: &[&str] = &["flop_index", "scale", "delta_e00_per_sigma_index"];
+const NULLABLE: &[&str] = &[
+    "flop_index",
+    "flop_note",
+    "hue_travel_deg",
+    "scale",
+    "delta_e00_per_sigma_index",
+];
 
 /// The scratch folders of a run.
 pub struct Sandbox {

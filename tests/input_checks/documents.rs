@@ -161,7 +161,12 @@ pub fn check_measured(text: &str, default_angle: f64) {
     assert!(!groups.is_empty());
     for (i, g) in groups.iter().enumerate() {
         assert!(!g.r.is_empty() && g.r.len() == g.wavelengths_nm.len());
-        assert!(g.wavelengths_nm.iter().all(|w| w.is_finite() && *w > 0.0));
+        let shortest = lamella::scene::MIN_WAVELENGTH_NM;
+        assert!(
+            g.wavelengths_nm
+                .iter()
+                .all(|w| w.is_finite() && *w >= shortest)
+        );
         assert!(g.r.iter().all(|r| r.is_finite() && *r >= 0.0));
         match &g.at {
             At::Angle(a) => assert!(a.abs() < 90.0, "angle {a}"),
