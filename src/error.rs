@@ -2,16 +2,47 @@
 //! [`Error::NotComputable`] to exit code 1 and every other variant to exit
 //! code 2 (bad input).
 
+use std::borrow::Cow;
 use std::fmt::Display;
 
 /// Result with the engine's error.
 pub type Result<T> = std::result::Result<T, Error>;
 
-/// What went wrong, always naming the key and the offending value.
+/// `text` with control characters and line separators escaped (`\n`,
+/// `\u{1b}`), so that a message naming a user's key or value is always one
+/// line and cannot drive the terminal.
+pub fn one_line(text: &str) -> Cow<'_, str> {
+    let odd = |c: char| c.is_control() || matches!(c, '\u{2028}' | '\u{2029}');
+    if !text.contains(odd) {
+        return Cow::Borrowed(text);
+    }
+    let escape = |c: char| {
+        if odd(c) {
+            c.escape_default().to_string()
+        } else {
+            c.to_string()
+        }
+    };
+    Cow::Owned(text.chars().map(escape).collect())
+}
+
+/// A number as written by `{}`, or in exponent form when that would take
+/// more than 24 characters (1e-320, not 320 digits).
+fn compact(x: f64) -> String {
+    let plain = x.to_string();
+    if plain.len() > 24 {
+        format!("{x:e}")
+    } else {
+        plain
+    }
+}
+
+/// What went wrong, always naming the key and the offending value (printed
+/// on one line: see [`one_line`]).
 #[derive(Debug, thiserror::Error)]
 pub enum Error {
     /// A value is out of its allowed domain.
-    #[error("{key} = {value}: {why}")]
+    #[error("{} = {}: {}", one_line(.key), one_line(.value), one_line(.why))]
     Invalid {
         /// Dotted path of the key, e.g. `stack[2].thickness_nm`.
         key: String,
@@ -22,7 +53,9 @@ pub enum Error {
     },
     /// A name that is neither in the scene's `materials` nor built in.
     #[error(
-        "{key} = \"{name}\": unknown material (not in `materials` nor built in; see `lamella materials`)"
+        "{} = \"{}\": unknown material (not in `materials` nor built in; see `lamella materials`)",
+        one_line(.key),
+        one_line(.name)
     )]
     UnknownMaterial {
         /// Where the name was used.
@@ -31,7 +64,7 @@ pub enum Error {
         name: String,
     },
     /// Text that is not valid JSON.
-    #[error("malformed JSON at line {line}, column {column}: {message}")]
+    #[error("malformed JSON at line {line}, column {column}: {}", one_line(.message))]
     Syntax {
         /// 1-based line.
         line: usize,
@@ -42,7 +75,11 @@ pub enum Error {
     },
     /// A wavelength outside a tabulated material's data.
     #[error(
-        "{key}: wavelength {wavelength_nm} nm is outside the material's table ({min_nm}–{max_nm} nm)"
+        "{}: wavelength {} nm is outside the material's table ({}–{} nm)",
+        one_line(.key),
+        compact(*.wavelength_nm),
+        compact(*.min_nm),
+        compact(*.max_nm)
     )]
     OutOfRange {
         /// The material's key.
@@ -71,11 +108,10 @@ impl Error {
     /// Builds [`Error::Invalid`] from anything printable.
     pub fn invalid(key: impl Into<String>, value: impl Display, why: impl Into<String>) -> Self {
         let mut value = value.to_string();
-        // Very large or small numbers print in exponent form, not 300 digits.
         if value.len() > 24
             && let Ok(x) = value.parse::<f64>()
         {
-            value = format!("{x:e}");
+            value = compact(x);
         }
         Error::Invalid {
             key: key.into(),
@@ -125,5 +161,26 @@ impl Error {
             },
             other @ (Error::Syntax { .. } | Error::NotComputable { .. }) => other,
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn line_breaks_and_control_characters_in_keys_and_values_are_escaped() {
+        let e = Error::invalid("a\nb", "x\r\u{1b}[2J\u{2028}", "why\n");
+        assert_eq!(e.to_string(), "a\\nb = x\\r\\u{1b}[2J\\u{2028}: why\\n");
+        let e = Error::UnknownMaterial {
+            key: "stack[0]".into(),
+            name: "glass\n".into(),
+        };
+        assert!(
+            e.to_string()
+                .starts_with("stack[0] = \"glass\\n\": unknown"),
+            "{e}"
+        );
+        assert_eq!(one_line("plain ΔE00 ±1"), "plain ΔE00 ±1");
     }
 }

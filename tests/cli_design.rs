@@ -117,11 +117,12 @@ fn infeasible_thickness_limit_exits_2() {
     assert!(o.stdout.is_empty() && !std::path::Path::new(&out_scene).exists());
 }
 
-/// A scene whose colour cannot be computed (an index of 1e200 overflows):
-/// every design command exits 1 with one line naming the angle, and prints
-/// no number.
+/// A scene whose colour could not be computed (an index of 1e200 would
+/// overflow) is refused when it is read: every design command exits 2 with
+/// one line naming the material, and prints no number. (Colours that are not
+/// finite are refused with exit 1 naming the angle: tests/design.rs.)
 #[test]
-fn colour_that_is_not_finite_exits_1() {
+fn unphysical_index_is_refused_by_every_design_tool() {
     let scene = tmp("huge.json");
     std::fs::write(
         &scene,
@@ -164,9 +165,11 @@ fn colour_that_is_not_finite_exits_1() {
     ] {
         let o = lamella(&args);
         let err = String::from_utf8_lossy(&o.stderr);
-        assert_eq!(o.status.code(), Some(1), "{args:?}: {err}");
+        assert_eq!(o.status.code(), Some(2), "{args:?}: {err}");
         assert!(
-            err.contains("angle 0°") && err.trim_end().lines().count() == 1,
+            err.contains("materials.huge")
+                && err.contains("1e200")
+                && err.trim_end().lines().count() == 1,
             "{err}"
         );
         assert!(o.stdout.is_empty(), "{args:?}");

@@ -55,7 +55,7 @@ impl TargetArgs {
     }
 }
 
-/// `L,a,b` → three finite numbers.
+/// `L,a,b` → three numbers within [`LAB_LIMIT`] (L* not negative).
 pub fn parse_lab(text: &str) -> Result<[f64; 3], String> {
     let v: Vec<f64> = text
         .split(',')
@@ -66,10 +66,18 @@ pub fn parse_lab(text: &str) -> Result<[f64; 3], String> {
         })
         .collect::<Result<_, _>>()?;
     match v[..] {
-        [l, a, b] if v.iter().all(|x| x.is_finite()) => Ok([l, a, b]),
+        [l, a, b] if l >= 0.0 && v.iter().all(|x| x.abs() <= LAB_LIMIT) => Ok([l, a, b]),
+        [_, _, _] => Err(format!(
+            "L* must lie from 0 to {LAB_LIMIT} and a*, b* within ±{LAB_LIMIT}"
+        )),
         _ => Err("expected three numbers L,a,b".into()),
     }
 }
+
+/// Bound on target CIELAB values: far beyond any surface colour (L* above
+/// 100 occurs near the specular direction of effect coatings), and small
+/// enough that ΔE00 stays finite.
+pub const LAB_LIMIT: f64 = 1000.0;
 
 /// A progress bar on stderr when it is a terminal; a no-op otherwise.
 pub struct Progress(Option<indicatif::ProgressBar>);

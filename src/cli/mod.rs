@@ -1,5 +1,6 @@
 //! The command-line front end: argument definitions and glue.
 
+pub mod args;
 pub mod chart;
 pub mod color;
 pub mod design_args;
@@ -48,7 +49,7 @@ impl Failure {
     /// Bad input (exit code 2).
     pub fn input(message: impl Into<String>) -> Self {
         Failure {
-            message: message.into(),
+            message: lamella::error::one_line(&message.into()).into_owned(),
             code: 2,
         }
     }
@@ -68,7 +69,8 @@ impl Failure {
     /// An I/O failure writing output (exit code 1).
     pub fn io(path: &Path, e: std::io::Error) -> Self {
         Failure {
-            message: format!("{}: cannot write: {e}", path.display()),
+            message: lamella::error::one_line(&format!("{}: cannot write: {e}", path.display()))
+                .into_owned(),
             code: 1,
         }
     }

@@ -12,7 +12,7 @@ use super::variables::{Variable, varying_in};
 use crate::angle_colour::{Polarization, Side};
 use crate::error::{Error, Result};
 use crate::pigment::parse_name;
-use crate::scene::Scene;
+use crate::scene::{MIN_WAVELENGTH_NM, Scene};
 
 /// Measured reflectance at one angle, or reflectance factor at one geometry.
 #[derive(Debug, Clone, PartialEq)]
@@ -103,11 +103,11 @@ pub fn parse_measured(text: &str, default_angle: f64) -> Result<Vec<Measured>> {
             }
             None => At::Angle(angle.map_or(Ok(default_angle), |c| num(c, "angle_deg"))?),
         };
-        if w <= 0.0 || rv < 0.0 || at.angle_deg().is_some_and(|a| !(a.abs() < 90.0)) {
+        if w < MIN_WAVELENGTH_NM || rv < 0.0 || at.angle_deg().is_some_and(|a| !(a.abs() < 90.0)) {
             return Err(Error::invalid(
                 key,
                 line,
-                "needs wavelength > 0, R ≥ 0 and |angle| < 90°",
+                format!("needs wavelength ≥ {MIN_WAVELENGTH_NM} nm, R ≥ 0 and |angle| < 90°"),
             ));
         }
         match groups.iter_mut().find(|g| g.at == at) {

@@ -155,7 +155,15 @@ impl Dd {
     /// *Software Manual for the Elementary Functions*, 1980, ch. 8), then the
     /// Taylor series of sin is summed to below 2⁻¹⁰⁸ of its value on
     /// |r| ≤ π/4, where cos = √(1 − sin²) ≥ 1/√2 is well conditioned.
+    /// Beyond 2⁵⁰ rad (layers kilometres thick) the multiple k of π/2 is no
+    /// longer exact, and the f64 rounding of the thickness alone leaves the
+    /// phase uncertain by a tenth of a radian: the library routine on the
+    /// leading part is then as good as it gets (and NaN stays NaN).
     pub fn sin_cos(self) -> (Dd, Dd) {
+        if !(self.hi.abs() < 1.125_899_906_842_624e15) {
+            let (s, c) = self.hi.sin_cos();
+            return (Dd::from_f64(s), Dd::from_f64(c));
+        }
         let k = (self.hi / FRAC_PI_2[0]).round();
         let mut r = self;
         for part in FRAC_PI_2 {
@@ -378,6 +386,16 @@ impl Div for Cdd {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn sin_cos_of_huge_and_nan_phases_returns_at_once() {
+        for x in [1e15, 1e78, f64::MAX] {
+            let (s, c) = Dd::from_f64(x).sin_cos();
+            assert_eq!((s.hi, c.hi), x.sin_cos(), "{x}");
+        }
+        let (s, c) = Dd::from_f64(f64::NAN).sin_cos();
+        assert!(s.hi.is_nan() && c.hi.is_nan());
+    }
 
     /// Reference values from mpmath 1.3.0 at 40 digits (`mp.sin(1)` and so
     /// on), split into two doubles: hi = float(v), lo = float(v − hi).

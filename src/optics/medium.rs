@@ -138,6 +138,13 @@ impl MediumTerms {
         if q.im < 0.0 || (q.im == 0.0 && q.re < 0.0) {
             q = -q;
         }
+        if q == Complex64::ZERO {
+            // Exactly at a lossless medium's critical angle q = 0 would make
+            // η_p and 1/η_s infinite. Take the limit from the evanescent side,
+            // one rounding step of n² − β² away: an exit medium then reflects
+            // everything, the value R tends to at the critical angle.
+            q = Complex64::new(0.0, (n2.re * f64::EPSILON).sqrt());
+        }
         let real = n.im == 0.0 && q.im == 0.0;
         let eta_p = n2 / q;
         MediumTerms {

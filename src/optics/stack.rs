@@ -95,7 +95,7 @@ impl Stack {
     /// [`Stack::rt`] for `LANES` (four) wavelengths at once (`terms[l]` and `at[l]`
     /// per lane, all at the same angle). Lossless layers that propagate on
     /// every lane run in structure-of-arrays form, and so do lossless repeat
-    /// groups shorter than [`EXACT_FROM`] periods; anything else (absorbing or
+    /// groups shorter than 64 periods; anything else (absorbing or
     /// evanescent layers, long repeat groups, an incoherent sheet) goes lane
     /// by lane through the same code as [`Stack::rt`].
     pub fn rt_lanes(&self, terms: [&[MediumTerms]; LANES], at: &[Probe; LANES]) -> [Rt; LANES] {

@@ -5,7 +5,7 @@
 use std::f32::consts::{PI, TAU};
 use std::io::BufReader;
 
-use glam::{Vec2, Vec3};
+use glam::{DVec3, Vec2, Vec3};
 
 use crate::error::{Error, Result};
 
@@ -192,13 +192,18 @@ impl Mesh {
             for face in m.indices.chunks_exact(3) {
                 let face = [face[0], face[1], face[2]];
                 let p = face.map(|i| point(i as usize, &m.positions));
-                let flat = (p[1] - p[0]).cross(p[2] - p[0]).normalize_or_zero();
+                // In f64, so that neither huge nor tiny faces lose their normal.
+                let q = p.map(Vec3::as_dvec3);
+                let flat = (q[1] - q[0]).cross(q[2] - q[0]).normalize_or_zero();
                 let base = mesh.positions.len() as u32;
                 for (k, &i) in face.iter().enumerate() {
                     let normal = if smooth {
-                        point(i as usize, &m.normals).normalize_or(flat)
+                        point(i as usize, &m.normals)
+                            .as_dvec3()
+                            .normalize_or(flat)
+                            .as_vec3()
                     } else {
-                        flat
+                        flat.as_vec3()
                     };
                     mesh.positions.push(p[k]);
                     mesh.normals.push(normal);
@@ -219,19 +224,21 @@ impl Mesh {
     }
 
     /// Centred on its bounding box and scaled to a bounding sphere of radius 1.
+    /// Worked in f64, where the squares of any f32 coordinates neither
+    /// overflow (1e30) nor underflow (1e-30).
     fn framed(mut self) -> Mesh {
         let (lo, hi) = self.positions.iter().fold(
-            (Vec3::splat(f32::INFINITY), Vec3::splat(f32::NEG_INFINITY)),
-            |(lo, hi), &p| (lo.min(p), hi.max(p)),
+            (DVec3::splat(f64::INFINITY), DVec3::splat(f64::NEG_INFINITY)),
+            |(lo, hi), &p| (lo.min(p.as_dvec3()), hi.max(p.as_dvec3())),
         );
         let centre = 0.5 * (lo + hi);
         let radius = self
             .positions
             .iter()
-            .map(|&p| (p - centre).length())
-            .fold(0.0, f32::max);
+            .map(|&p| (p.as_dvec3() - centre).length())
+            .fold(0.0, f64::max);
         for p in &mut self.positions {
-            *p = (*p - centre) / radius;
+            *p = ((p.as_dvec3() - centre) / radius).as_vec3();
         }
         self
     }
@@ -323,6 +330,24 @@ mod tests {
                 .iter()
                 .all(|p| (p.length() - 1.0).abs() < 1e-6)
         );
+    }
+
+    #[test]
+    fn obj_with_huge_or_tiny_coordinates_keeps_its_frame_and_normals() {
+        // Squared lengths of these overflow (1e30) or underflow (1e-30) in f32.
+        for scale in ["1e30", "1e-30"] {
+            let text = format!("v 0 0 0\nv {scale} 0 0\nv 0 {scale} 0\nf 1 2 3\n");
+            let mesh = Mesh::from_obj("x.obj", text.as_bytes()).unwrap();
+            let r = mesh
+                .positions
+                .iter()
+                .map(|p| p.length())
+                .fold(0.0, f32::max);
+            assert!((r - 1.0).abs() < 1e-6, "{scale}: radius {r}");
+            for n in &mesh.normals {
+                assert!((*n - Vec3::Z).length() < 1e-6, "{scale}: normal {n}");
+            }
+        }
     }
 
     #[test]

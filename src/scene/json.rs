@@ -129,8 +129,16 @@ pub struct Obj<'a> {
     pub path: String,
 }
 
-/// `parent.key`, or `key` at the top level.
+/// `parent.key`, or `key` at the top level; a key that is empty or starts or
+/// ends with white space is written quoted (`""`, `" glass"`).
 pub fn join(parent: &str, key: &str) -> String {
+    let quoted;
+    let key = if key.is_empty() || key.trim() != key {
+        quoted = Value::from(key).to_string();
+        &quoted
+    } else {
+        key
+    };
     if parent.is_empty() {
         key.to_string()
     } else {
@@ -154,12 +162,10 @@ impl<'a> Obj<'a> {
         let path = path.into();
         match v {
             Value::Object(map) => Ok(Obj { map, path }),
-            other if path.is_empty() => Err(Error::invalid(
-                "(the scene)",
-                show(other),
-                "expected a JSON object",
-            )),
-            other => Err(Error::invalid(path, show(other), "expected a JSON object")),
+            other => {
+                let key = if path.is_empty() { "(document)" } else { &path };
+                Err(Error::invalid(key, show(other), "expected a JSON object"))
+            }
         }
     }
 

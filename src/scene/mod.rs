@@ -47,6 +47,16 @@ pub const MAX_GRID_BYTES: u64 = 4 << 30;
 /// f64), with room for what is derived from them.
 pub const GRID_BYTES_PER_POINT: u64 = 48;
 
+/// Largest magnitude |n + ik| of a refractive index (its inverse is the
+/// smallest): far beyond any material (metals in the far infrared reach a
+/// few hundred, from memory), and close enough to 1 that every admittance
+/// product stays within floating-point range.
+pub const MAX_INDEX: f64 = 1e6;
+
+/// Shortest wavelength a scene or a measurement may hold, in nm: below it no
+/// optical-constant model here applies, and far below it 2π/λ overflows.
+pub const MIN_WAVELENGTH_NM: f64 = 1.0;
+
 /// Ensemble settings for thickness disorder.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Disorder {
@@ -196,11 +206,11 @@ impl Scene {
                 step: 1.0,
             },
         )?;
-        if let Some(&w) = wavelengths_nm.iter().find(|&&w| w <= 0.0) {
+        if let Some(&w) = wavelengths_nm.iter().find(|&&w| w < MIN_WAVELENGTH_NM) {
             return Err(Error::invalid(
                 "wavelengths_nm.from",
                 w,
-                "wavelengths must be greater than zero",
+                format!("wavelengths must be at least {MIN_WAVELENGTH_NM} nm"),
             ));
         }
         let angles_deg = grid(
@@ -322,11 +332,19 @@ impl Scene {
                     .iter()
                     .map(|&w| {
                         let n = m.dispersion.index(w).map_err(|e| e.within(&m.key))?;
-                        if !(n.re.is_finite() && n.im.is_finite() && n.re > 0.0 && n.im >= 0.0) {
+                        let size = n.norm();
+                        if !(n.re > 0.0
+                            && n.im >= 0.0
+                            && (1.0 / MAX_INDEX..=MAX_INDEX).contains(&size))
+                        {
                             return Err(Error::invalid(
                                 &m.key,
-                                format!("n = {n} at {w} nm"),
-                                "the model gives an unphysical index",
+                                format!("n = {} at {w} nm", compact(n)),
+                                format!(
+                                    "the model gives an unphysical index (needs n > 0, k ≥ 0 \
+                                     and |n + ik| from {:e} to {MAX_INDEX:e})",
+                                    1.0 / MAX_INDEX
+                                ),
                             ));
                         }
                         Ok(n)
@@ -544,4 +562,21 @@ fn grid(top: &Obj, key: &str, default: Range) -> Result<Vec<f64>> {
         }
     };
     range.points(key)
+}
+
+/// A complex index printed briefly: extreme parts in exponent form.
+fn compact(n: Complex64) -> String {
+    let part = |x: f64| {
+        if x != 0.0 && !(1e-4..1e6).contains(&x.abs()) {
+            format!("{x:e}")
+        } else {
+            format!("{x}")
+        }
+    };
+    format!(
+        "{}{}{}i",
+        part(n.re),
+        if n.im < 0.0 { "" } else { "+" },
+        part(n.im)
+    )
 }
