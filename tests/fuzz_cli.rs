@@ -1,6 +1,7 @@
 //! The command line under seeded mutations of real command lines, in
-//! process: every argument list exits 0, 1 or 2 (clap's refusals 2), a
-//! failing command says why in one line, and a successful one writes no NaN
+//! process: every argument list exits 0, 1 or 2 (clap's refusals 2; 3 from
+//! a `match` that misses its target), a failing command says why in one
+//! line, and a successful one writes no NaN
 //! or infinity. The same check runs under libFuzzer in `fuzz/` (see
 //! `fuzz/README.md`); here a fixed seed and a bounded number of cases keep
 //! it in CI. This file is its own test binary because the check moves the

@@ -108,7 +108,7 @@ impl ThicknessAngle {
 
     /// Computes `steps` thickness samples over the variation (plus the design
     /// value), each at the scene's angles subdivided to about 31; `progress`
-    /// is called after each thickness.
+    /// is called after each thickness (it may panic to abandon the chart).
     pub fn compute(
         scene: &Scene,
         viewing: &Viewing,
@@ -182,8 +182,11 @@ impl ThicknessAngle {
         }
         let angles = subdivide(&scene.angles_deg);
         let index = scene.indices(&scene.wavelengths_nm)?;
+        // `progress` may panic to abandon the chart; the fuse then stops the
+        // other threads at once.
         let cells = values
             .par_iter()
+            .panic_fuse()
             .map(|&v| {
                 let items = map_layers(&scene.stack, &mut 0, &|n, l| match *variation {
                     Variation::Layer { layer, .. } if n == layer => v,

@@ -78,15 +78,6 @@ pub fn parse_measured(text: &str, default_angle: f64) -> Result<Vec<Measured>> {
         };
         let (w, rv) = (num(wl, "wavelength_nm")?, num(r, "R")?);
         let key = format!("measured line {}", i + 1);
-        if rv > MAX_MEASURED_R {
-            return Err(Error::invalid(
-                key,
-                format!("R {}", cells[r]),
-                format!(
-                    "R is a fraction and this is above {MAX_MEASURED_R}: looks like percent: divide by 100"
-                ),
-            ));
-        }
         let at = match geometry {
             Some(c) => {
                 let name = cells.get(c).copied().unwrap_or("");
@@ -103,29 +94,87 @@ pub fn parse_measured(text: &str, default_angle: f64) -> Result<Vec<Measured>> {
             }
             None => At::Angle(angle.map_or(Ok(default_angle), |c| num(c, "angle_deg"))?),
         };
-        if w < MIN_WAVELENGTH_NM || rv < 0.0 || at.angle_deg().is_some_and(|a| !(a.abs() < 90.0)) {
-            return Err(Error::invalid(
-                key,
-                line,
-                format!("needs wavelength ≥ {MIN_WAVELENGTH_NM} nm, R ≥ 0 and |angle| < 90°"),
-            ));
-        }
-        match groups.iter_mut().find(|g| g.at == at) {
-            Some(g) => {
-                g.wavelengths_nm.push(w);
-                g.r.push(rv);
-            }
-            None => groups.push(Measured {
-                at,
-                wavelengths_nm: vec![w],
-                r: vec![rv],
-            }),
-        }
+        add_point(&mut groups, &key, (cells[r], line), w, rv, at)?;
     }
     if groups.is_empty() {
         return Err(Error::invalid("measured", "(no rows)", "no data rows"));
     }
     Ok(groups)
+}
+
+/// Measured points given as columns (wavelength, R and the point of each),
+/// checked as [`parse_measured`] checks a file's rows; errors name the row
+/// as `measured[i]`.
+pub fn measured_from_columns(
+    wavelengths_nm: &[f64],
+    r: &[f64],
+    at: &[At],
+) -> Result<Vec<Measured>> {
+    if wavelengths_nm.len() != r.len() || at.len() != r.len() {
+        return Err(Error::invalid(
+            "measured",
+            format!(
+                "{} wavelengths, {} R, {} points",
+                wavelengths_nm.len(),
+                r.len(),
+                at.len()
+            ),
+            "the columns must have one value per row",
+        ));
+    }
+    let mut groups: Vec<Measured> = Vec::new();
+    for (i, ((&w, &rv), p)) in wavelengths_nm.iter().zip(r).zip(at).enumerate() {
+        let key = format!("measured[{i}]");
+        let row = format!("wavelength_nm {w}, R {rv}, {}", p.describe());
+        if !(w.is_finite() && rv.is_finite()) {
+            return Err(Error::invalid(&key, row, "not a finite number"));
+        }
+        add_point(&mut groups, &key, (&rv.to_string(), &row), w, rv, p.clone())?;
+    }
+    if groups.is_empty() {
+        return Err(Error::invalid("measured", "(no rows)", "no data rows"));
+    }
+    Ok(groups)
+}
+
+/// Checks one measured point (`shown`: its R and its whole row as written,
+/// for messages) and adds it to the group of its angle or geometry.
+fn add_point(
+    groups: &mut Vec<Measured>,
+    key: &str,
+    shown: (&str, &str),
+    w: f64,
+    rv: f64,
+    at: At,
+) -> Result<()> {
+    if rv > MAX_MEASURED_R {
+        return Err(Error::invalid(
+            key,
+            format!("R {}", shown.0),
+            format!(
+                "R is a fraction and this is above {MAX_MEASURED_R}: looks like percent: divide by 100"
+            ),
+        ));
+    }
+    if w < MIN_WAVELENGTH_NM || rv < 0.0 || at.angle_deg().is_some_and(|a| !(a.abs() < 90.0)) {
+        return Err(Error::invalid(
+            key,
+            shown.1,
+            format!("needs wavelength ≥ {MIN_WAVELENGTH_NM} nm, R ≥ 0 and |angle| < 90°"),
+        ));
+    }
+    match groups.iter_mut().find(|g| g.at == at) {
+        Some(g) => {
+            g.wavelengths_nm.push(w);
+            g.r.push(rv);
+        }
+        None => groups.push(Measured {
+            at,
+            wavelengths_nm: vec![w],
+            r: vec![rv],
+        }),
+    }
+    Ok(())
 }
 
 /// How to fit.
@@ -245,6 +294,19 @@ fn coating_model<'a>(
 /// reflectance at angles; when the scene has a `coating`, the platelet's
 /// `vary_nm` layers to reflectance factors at geometries).
 pub fn fit(scene: &Scene, measured: &[Measured], settings: &FitSettings) -> Result<FitOutcome> {
+    fit_with_progress(scene, measured, settings, &|_, _| {})
+}
+
+/// [`fit`], calling `progress(evaluations, best rms)` after every
+/// generation and local refinement of the global search, and at least every
+/// 0.1 s while models are evaluated (the refinement included). It may panic
+/// to abandon the fit.
+pub fn fit_with_progress(
+    scene: &Scene,
+    measured: &[Measured],
+    settings: &FitSettings,
+    progress: &(dyn Fn(usize, f64) + Sync),
+) -> Result<FitOutcome> {
     let (scene, coating) = with_coating(scene)?;
     let vars = varying_in(&scene, design_items(&scene, coating.as_ref()));
     if vars.is_empty() {
@@ -299,11 +361,14 @@ pub fn fit(scene: &Scene, measured: &[Measured], settings: &FitSettings) -> Resu
         let r = model(&to_x(u));
         (sse(&r, best_scale(&r)) / points as f64).sqrt()
     };
-    let found = search::minimise(&rms_at, vars.len(), settings.budget, &|_| false, &|_, _| {});
-    // Levenberg–Marquardt on (thicknesses, scale).
+    let found = search::minimise(&rms_at, vars.len(), settings.budget, &|_| false, progress);
+    // Levenberg–Marquardt on (thicknesses, scale), still reporting progress.
     let mut p = to_x(&found.u);
     p.push(best_scale(&model(&p)));
+    let pulse = search::Pulse::new(progress);
+    pulse.seen(found.cost);
     let lm = levenberg_marquardt(&vars, settings.fit_scale, p, &|p: &[f64]| {
+        pulse.before(count.load(std::sync::atomic::Ordering::Relaxed));
         let r = model(&p[..vars.len()]);
         r.iter()
             .zip(&data)

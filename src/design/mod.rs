@@ -9,6 +9,7 @@ pub mod evaluator;
 pub mod finite;
 pub mod fit;
 pub mod matching;
+pub mod report;
 pub mod search;
 pub mod sweep;
 pub mod tolerance;

@@ -5,7 +5,10 @@
 //! met, [`PATIENCE_ROUNDS`] restarts in a row bring no progress, or the
 //! budget is spent.
 
-use std::sync::atomic::{AtomicUsize, Ordering};
+use std::panic::{AssertUnwindSafe, catch_unwind, resume_unwind};
+use std::sync::Mutex;
+use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
+use std::time::{Duration, Instant};
 
 use argmin::core::{CostFunction, Executor, State};
 use argmin::solver::neldermead::NelderMead;
@@ -79,17 +82,80 @@ pub struct Found {
     pub stopped: Stopped,
 }
 
+/// While evaluations run, progress is reported at least this often (as
+/// well as after every generation and refinement), so that a caller hears
+/// from a search whose evaluations are slow.
+const PULSE: Duration = Duration::from_millis(100);
+
+/// Reports progress from inside the evaluations, at most every [`PULSE`].
+/// A progress callback may panic to abandon the search: the panic is passed
+/// on, and the evaluations still queued (in parallel, by the global stage)
+/// are skipped, so that it reaches the caller promptly.
+pub(super) struct Pulse<'p> {
+    progress: &'p (dyn Fn(usize, f64) + Sync),
+    /// Time of the last report and the best cost seen.
+    state: Mutex<(Instant, f64)>,
+    abandoned: AtomicBool,
+}
+
+impl<'p> Pulse<'p> {
+    pub(super) fn new(progress: &'p (dyn Fn(usize, f64) + Sync)) -> Self {
+        Pulse {
+            progress,
+            state: Mutex::new((Instant::now(), f64::INFINITY)),
+            abandoned: AtomicBool::new(false),
+        }
+    }
+
+    /// Before an evaluation: reports progress when a report is due. False
+    /// once a report has panicked: the evaluation is to be skipped.
+    pub(super) fn before(&self, evaluations: usize) -> bool {
+        if self.abandoned.load(Ordering::Relaxed) {
+            return false;
+        }
+        let best = {
+            let Ok(mut state) = self.state.try_lock() else {
+                return true;
+            };
+            if state.0.elapsed() < PULSE {
+                return true;
+            }
+            state.0 = Instant::now();
+            state.1
+        };
+        if let Err(payload) = catch_unwind(AssertUnwindSafe(|| (self.progress)(evaluations, best)))
+        {
+            self.abandoned.store(true, Ordering::Relaxed);
+            resume_unwind(payload);
+        }
+        true
+    }
+
+    /// After an evaluation: keeps the best cost seen for the reports.
+    pub(super) fn seen(&self, cost: f64) {
+        if let Ok(mut state) = self.state.try_lock() {
+            state.1 = state.1.min(cost);
+        }
+    }
+}
+
 struct Counted<'a, 'c> {
     cost: &'c Cost<'a>,
     count: &'c AtomicUsize,
     bounds: Vec<[f64; 2]>,
+    pulse: &'c Pulse<'c>,
 }
 
 impl Counted<'_, '_> {
     fn at(&self, u: &[f64]) -> f64 {
-        self.count.fetch_add(1, Ordering::Relaxed);
+        let n = self.count.fetch_add(1, Ordering::Relaxed) + 1;
+        if !self.pulse.before(n) {
+            return f64::INFINITY;
+        }
         let c = (self.cost)(u);
-        if c.is_nan() { f64::INFINITY } else { c }
+        let c = if c.is_nan() { f64::INFINITY } else { c };
+        self.pulse.seen(c);
+        c
     }
 }
 
@@ -122,7 +188,10 @@ impl CostFunction for Unbounded<'_, '_, '_> {
 /// Minimises `cost` over [0, 1]^dim. `met(u)` says whether the caller's goal
 /// is met at the best point; it is asked after each local refinement that
 /// lowers the best cost. `progress(evaluations, best)` is called after every
-/// generation of the global stage and every local refinement.
+/// generation of the global stage and every local refinement, and at least
+/// every 0.1 s while evaluations run (with the best cost seen so far). It
+/// may panic to abandon the search: the evaluations still queued are then
+/// skipped, so that the panic reaches the caller promptly.
 pub fn minimise(
     cost: &Cost,
     dim: usize,
@@ -131,10 +200,12 @@ pub fn minimise(
     progress: &(dyn Fn(usize, f64) + Sync),
 ) -> Found {
     let count = AtomicUsize::new(0);
+    let pulse = Pulse::new(progress);
     let f = Counted {
         cost,
         count: &count,
         bounds: vec![[0.0, 1.0]; dim],
+        pulse: &pulse,
     };
     let evals = || count.load(Ordering::Relaxed);
     if dim == 0 {

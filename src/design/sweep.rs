@@ -107,6 +107,55 @@ pub fn shard(total: u64, index: u64, count: u64) -> Result<std::ops::Range<u64>>
 /// Designs per formatted chunk.
 const CHUNK: u64 = 4096;
 
+/// One evaluated design of a sweep.
+#[derive(Debug, Clone, Copy)]
+pub struct Design<'a> {
+    /// The design's number in the whole sweep.
+    pub index: u64,
+    /// Thickness of each variable, nm (the evaluator's variable order).
+    pub thicknesses_nm: &'a [f64],
+    /// Its colour at the evaluator's angle.
+    pub colour: &'a Colour,
+    /// CIEDE2000 to the target, when one is given.
+    pub delta_e00: Option<f64>,
+}
+
+/// Evaluates designs `range` of `plan` with `eval` (a colour evaluator at one
+/// angle) in order on this thread, handing each to `visit`; a design whose
+/// colour is not finite is an error naming it. [`lines`] and other callers
+/// that want the numbers rather than text share it.
+pub fn evaluate(
+    eval: &Evaluator,
+    plan: Plan,
+    range: std::ops::Range<u64>,
+    target: Option<[f64; 3]>,
+    mut visit: impl FnMut(Design),
+) -> Result<()> {
+    let (white, options) = eval.white().expect("a colour evaluator");
+    let at = At::Angle(eval.angles_deg()[0]);
+    let vars = eval.variables();
+    let dim = vars.len();
+    let (mut u, mut x) = (vec![0.0; dim], vec![0.0; dim]);
+    let mut ws = eval.workspace();
+    for i in range {
+        plan.unit(i, dim, &mut u);
+        for ((x, u), v) in x.iter_mut().zip(&u).zip(vars) {
+            *x = v.low_nm + u * (v.high_nm - v.low_nm);
+        }
+        let c = eval.eval_in(&mut ws, &x, None, |o| {
+            Colour::new(o.xyz[0], white, &options)
+        });
+        check_finite(&c.lab, &at, &format!("design {i}, "), "the colour")?;
+        visit(Design {
+            index: i,
+            thicknesses_nm: &x,
+            colour: &c,
+            delta_e00: target.map(|t| delta_e2000(t, c.lab)),
+        });
+    }
+    Ok(())
+}
+
 /// Evaluates designs `range` of `plan` with `eval` (a colour evaluator at one
 /// angle) and returns their JSON lines in chunks, in order; a design whose
 /// colour is not finite is an error naming it.
@@ -116,10 +165,7 @@ pub fn lines(
     range: std::ops::Range<u64>,
     target: Option<[f64; 3]>,
 ) -> Result<Vec<Vec<u8>>> {
-    let (white, options) = eval.white().expect("a colour evaluator");
-    let at = At::Angle(eval.angles_deg()[0]);
-    let vars = eval.variables();
-    let dim = vars.len();
+    let dim = eval.variables().len();
     let chunks: Vec<u64> = (range.start..range.end).step_by(CHUNK as usize).collect();
     chunks
         .into_par_iter()
@@ -127,21 +173,12 @@ pub fn lines(
             let end = (start + CHUNK).min(range.end);
             let mut out = Vec::with_capacity((end - start) as usize * (120 + 24 * dim));
             let mut num = zmij::Buffer::new();
-            let (mut u, mut x) = (vec![0.0; dim], vec![0.0; dim]);
-            let mut ws = eval.workspace();
-            for i in start..end {
-                plan.unit(i, dim, &mut u);
-                for ((x, u), v) in x.iter_mut().zip(&u).zip(vars) {
-                    *x = v.low_nm + u * (v.high_nm - v.low_nm);
-                }
-                let c = eval.eval_in(&mut ws, &x, None, |o| {
-                    Colour::new(o.xyz[0], white, &options)
-                });
-                check_finite(&c.lab, &at, &format!("design {i}, "), "the colour")?;
+            evaluate(eval, plan, start..end, target, |d| {
+                let c = d.colour;
                 out.extend_from_slice(b"{\"index\":");
-                out.extend_from_slice(i.to_string().as_bytes());
+                out.extend_from_slice(d.index.to_string().as_bytes());
                 out.extend_from_slice(b",\"thicknesses_nm\":[");
-                for (k, t) in x.iter().enumerate() {
+                for (k, t) in d.thicknesses_nm.iter().enumerate() {
                     if k > 0 {
                         out.push(b',');
                     }
@@ -166,12 +203,12 @@ pub fn lines(
                 out.extend_from_slice(b"],\"hex\":\"");
                 out.extend_from_slice(c.hex.as_bytes());
                 out.push(b'"');
-                if let Some(t) = target {
+                if let Some(de) = d.delta_e00 {
                     out.extend_from_slice(b",\"delta_e00\":");
-                    out.extend_from_slice(num.format(delta_e2000(t, c.lab)).as_bytes());
+                    out.extend_from_slice(num.format(de).as_bytes());
                 }
                 out.extend_from_slice(b"}\n");
-            }
+            })?;
             Ok(out)
         })
         .collect()

@@ -183,6 +183,17 @@ pub fn tolerance(
     viewing: &Viewing,
     settings: &ToleranceSettings,
 ) -> Result<ToleranceOutcome> {
+    tolerance_with_progress(scene, viewing, settings, &|_| {})
+}
+
+/// [`tolerance`], calling `progress(samples done)` from worker threads as
+/// the Monte Carlo samples finish (in no particular order).
+pub fn tolerance_with_progress(
+    scene: &Scene,
+    viewing: &Viewing,
+    settings: &ToleranceSettings,
+    progress: &(dyn Fn(usize) + Sync),
+) -> Result<ToleranceOutcome> {
     if settings.samples == 0 {
         return Err(Error::invalid("samples", 0, "need at least one sample"));
     }
@@ -284,9 +295,14 @@ pub fn tolerance(
     let with_index = settings.sigma_n > 0.0;
     // Sample i draws from its own seeded stream, so results do not depend on
     // the thread count.
+    let done = std::sync::atomic::AtomicUsize::new(0);
+    // `progress` may panic to abandon the analysis; the fuse then stops the
+    // other threads at once.
     let samples: Vec<Vec<f64>> = (0..settings.samples)
         .into_par_iter()
+        .panic_fuse()
         .map(|i| {
+            progress(done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1);
             let mut rng = StdRng::seed_from_u64(
                 settings.seed ^ (i as u64).wrapping_mul(0x9E37_79B9_7F4A_7C15),
             );

@@ -22,4 +22,4 @@ pub use field::FieldPoint;
 pub use flux::Absorption;
 pub use medium::{MediumTerms, Probe, Sine, Wavenumber};
 pub use spectra::{Rows, Spectra, compute};
-pub use stack::{Behind, Exit, Node, Rt, Stack};
+pub use stack::{Behind, Exit, LANES, Node, Rt, Stack};

@@ -84,7 +84,8 @@ impl<'a> Preview<'a> {
     }
 
     /// Renders frame `index`; `progress` is told the number of image rows
-    /// finished, band by band, from worker threads.
+    /// finished, band by band, from worker threads (it may panic to abandon
+    /// the render).
     pub fn render(&self, index: u32, progress: &(dyn Fn(usize) + Sync)) -> Image {
         let s = &self.settings;
         let (w, h, k) = (s.width as usize, s.height as usize, s.ssaa as usize);
@@ -93,8 +94,11 @@ impl<'a> Preview<'a> {
         let frame = self.shader.frame(&camera);
         let (exposure, tone) = (s.exposure as f32, s.tone);
         let per_pixel = 1.0 / (k * k) as f32;
+        // `progress` may panic to abandon the render; the fuse then stops the
+        // other threads at once.
         let bands: Vec<(Vec<u8>, Vec<f32>)> = (0..raster.bands())
             .into_par_iter()
+            .panic_fuse()
             .map(|b| {
                 let surfaces = raster.band(b);
                 let rows = raster.rows(b);

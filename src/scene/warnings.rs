@@ -29,7 +29,7 @@ pub enum WarningKind {
     CoarseStep,
     /// A coherent layer is thicker than [`THICKEST_COHERENT_NM`].
     ThickLayer,
-    /// An incoherent layer is thinner than [`THINNEST_INCOHERENT_NM`].
+    /// An incoherent layer is thinner than `THINNEST_INCOHERENT_NM` (1 µm).
     ThinIncoherent,
 }
 

@@ -1,0 +1,310 @@
+//! `reflectance_batch`: R and T of many designs that share a layer sequence,
+//! for inverse design and machine learning. Each design goes through the
+//! engine's four-wavelength kernel (`Stack::rt_lanes`) in the blocks the
+//! grid driver uses, with the per-medium terms computed once per (angle,
+//! wavelength) when the media are shared, so a design costs only its layers.
+
+use lamella::optics::{Exit, LANES, MediumTerms, Node, Probe, Rt, Stack};
+use num_complex::Complex64;
+use numpy::{AllowTypeChange, PyArrayLikeDyn};
+use pyo3::prelude::*;
+use pyo3::types::PyDict;
+use rayon::prelude::*;
+
+use crate::convert::{array1, array3, floats};
+use crate::errors::{Failure, Outcome};
+use crate::interrupt::{Stop, run};
+
+/// Designs per piece of parallel work (and between checks for Ctrl-C).
+const DESIGNS_PER_PIECE: usize = 64;
+
+/// Media of the batch: one index table for every design, or one per design.
+struct Media {
+    /// `n[(d * nw + w) * m + j]` (d = 0 when shared).
+    n: Vec<Complex64>,
+    /// Whether each design has its own table.
+    per_design: bool,
+    /// Media per design: incident, layers, exit.
+    m: usize,
+}
+
+/// The evaluation points and medium terms of one media table.
+struct Terms {
+    /// Angle-major, then wavelength.
+    probes: Vec<Probe>,
+    /// `terms[(a * nw + w) * m + j]`.
+    terms: Vec<MediumTerms>,
+}
+
+fn terms(n: &[Complex64], m: usize, wavelengths: &[f64], angles: &[f64]) -> Terms {
+    let nw = wavelengths.len();
+    let mut probes = Vec::with_capacity(angles.len() * nw);
+    let mut terms = Vec::with_capacity(angles.len() * nw * m);
+    for &a in angles {
+        let sine = Probe::sine(a);
+        for (w, &wavelength) in wavelengths.iter().enumerate() {
+            let at = Probe::of(Probe::wavenumber(wavelength), n[w * m].re, sine);
+            probes.push(at);
+            terms.extend(
+                n[w * m..(w + 1) * m]
+                    .iter()
+                    .map(|&z| MediumTerms::new(z, at.beta())),
+            );
+        }
+    }
+    Terms { probes, terms }
+}
+
+/// R and T of `stack` at every (angle, wavelength), angle-major, in the
+/// four-wavelength blocks of the engine's grid driver (a short last block
+/// repeats its final wavelength).
+fn evaluate(stack: &Stack, t: &Terms, m: usize, nw: usize, na: usize, out: &mut [Rt]) {
+    for a in 0..na {
+        for first in (0..nw).step_by(LANES) {
+            let last = (first + LANES).min(nw) - 1;
+            let ws: [usize; LANES] = std::array::from_fn(|l| (first + l).min(last));
+            let point = |l: usize| a * nw + ws[l];
+            let lanes: [&[MediumTerms]; LANES] =
+                std::array::from_fn(|l| &t.terms[point(l) * m..(point(l) + 1) * m]);
+            let at: [Probe; LANES] = std::array::from_fn(|l| t.probes[point(l)]);
+            let rt = stack.rt_lanes(lanes, &at);
+            for (l, x) in rt.iter().enumerate().take(last + 1 - first) {
+                out[a * nw + first + l] = *x;
+            }
+        }
+    }
+}
+
+/// Reads and checks the media argument: shape (W, M) or (D, W, M).
+fn read_media(obj: &Bound<'_, PyAny>, designs: usize, nw: usize, layers: usize) -> Outcome<Media> {
+    let arr = obj
+        .extract::<PyArrayLikeDyn<'_, Complex64, AllowTypeChange>>()
+        .map_err(|_| {
+            Failure::input("media: expected complex indices n + ik, shape (W, L+2) or (D, W, L+2)")
+        })?;
+    let view = arr.as_array();
+    let shape = view.shape().to_vec();
+    let m = layers + 2;
+    let per_design = match shape[..] {
+        [w, mm] if w == nw && mm == m => false,
+        [d, w, mm] if d == designs && w == nw && mm == m => true,
+        _ => {
+            return Err(Failure::input(format!(
+                "media: shape {shape:?}: expected (W, L+2) = ({nw}, {m}) or (D, W, L+2) = ({designs}, {nw}, {m}) \
+                 for {designs} designs of {layers} layers on {nw} wavelengths (incident medium, layers, substrate)"
+            )));
+        }
+    };
+    let n: Vec<Complex64> = view.iter().copied().collect();
+    for (i, z) in n.iter().enumerate() {
+        let (j, w, d) = (i % m, (i / m) % nw, i / (m * nw));
+        let key = if per_design {
+            format!("media[{d}, {w}, {j}]")
+        } else {
+            format!("media[{w}, {j}]")
+        };
+        if !(z.re.is_finite() && z.im.is_finite() && z.re > 0.0 && z.im >= 0.0) {
+            return Err(Failure::input(format!(
+                "{key} = {z}: needs a finite index with n > 0 and k ≥ 0"
+            )));
+        }
+        if j == 0 && z.im != 0.0 {
+            return Err(Failure::input(format!(
+                "{key} = {z}: the incident medium (column 0) must be lossless (k = 0)"
+            )));
+        }
+    }
+    Ok(Media { n, per_design, m })
+}
+
+/// reflectance_batch(media, thicknesses_nm, wavelengths_nm, angles_deg=(0,)) -> dict
+///
+/// R and T of D designs that share one layer sequence, each with its own
+/// thicknesses, by the engine's transfer-matrix kernel (the code path of
+/// `Scene.spectrum`, to which it agrees to rounding).
+///
+/// - media: complex refractive indices n + ik, shape (W, L+2) for media
+///   shared by every design, or (D, W, L+2) per design: column 0 is the
+///   incident medium (lossless), columns 1..L the layers from the incident
+///   side, column L+1 the semi-infinite substrate.
+/// - thicknesses_nm: (D, L) physical thicknesses in nm (≥ 0); a 1-D (L,)
+///   array is one design.
+/// - wavelengths_nm: (W,) vacuum wavelengths in nm (> 0).
+/// - angles_deg: (A,) angles of incidence in degrees (|θ| < 90); default 0.
+///
+/// Returns a dict of float64 arrays of shape (D, A, W): `R_s`, `R_p`, `T_s`,
+/// `T_p` and the unpolarized means `R`, `T`, plus `wavelength_nm` and
+/// `angle_deg`. Raises `SceneError` naming the argument and index of a bad
+/// value. Releases the GIL and runs on every core; Ctrl-C stops it.
+#[pyfunction]
+#[pyo3(signature = (media, thicknesses_nm, wavelengths_nm, angles_deg=None))]
+pub fn reflectance_batch<'py>(
+    py: Python<'py>,
+    media: &Bound<'py, PyAny>,
+    thicknesses_nm: &Bound<'py, PyAny>,
+    wavelengths_nm: &Bound<'py, PyAny>,
+    angles_deg: Option<&Bound<'py, PyAny>>,
+) -> PyResult<Bound<'py, PyDict>> {
+    let wavelengths = floats(wavelengths_nm, "wavelengths_nm")?;
+    let angles = match angles_deg {
+        Some(a) => floats(a, "angles_deg")?,
+        None => vec![0.0],
+    };
+    if let Some((i, w)) = wavelengths.iter().enumerate().find(|(_, w)| !(**w > 0.0)) {
+        return Err(Failure::input(format!(
+            "wavelengths_nm[{i}] = {w}: must be greater than zero"
+        ))
+        .into());
+    }
+    if let Some((i, a)) = angles.iter().enumerate().find(|(_, a)| !(a.abs() < 90.0)) {
+        return Err(Failure::input(format!(
+            "angles_deg[{i}] = {a}: angles of incidence must lie below 90°"
+        ))
+        .into());
+    }
+    let t = thicknesses_nm
+        .extract::<PyArrayLikeDyn<'_, f64, AllowTypeChange>>()
+        .map_err(|_| Failure::input("thicknesses_nm: expected numbers, shape (D, L)"))?;
+    let view = t.as_array();
+    let (designs, layers) = match view.shape() {
+        [l] => (1, *l),
+        [d, l] => (*d, *l),
+        s => {
+            return Err(
+                Failure::input(format!("thicknesses_nm: shape {s:?}: expected (D, L)")).into(),
+            );
+        }
+    };
+    let thick: Vec<f64> = view.iter().copied().collect();
+    if let Some((i, x)) = thick
+        .iter()
+        .enumerate()
+        .find(|(_, x)| !(x.is_finite() && **x >= 0.0))
+    {
+        let (d, l) = (i / layers.max(1), i % layers.max(1));
+        return Err(Failure::input(format!(
+            "thicknesses_nm[{d}, {l}] = {x}: must be a finite thickness ≥ 0"
+        ))
+        .into());
+    }
+    let (nw, na) = (wavelengths.len(), angles.len());
+    let media = read_media(media, designs, nw, layers)?;
+    let per = na * nw;
+    let total = designs
+        .checked_mul(per)
+        .filter(|n| *n as u64 * 48 <= lamella::scene::MAX_GRID_BYTES);
+    let Some(total) = total else {
+        return Err(Failure::input(format!(
+            "thicknesses_nm: {designs} designs × {na} angles × {nw} wavelengths would need more than {} GiB",
+            lamella::scene::MAX_GRID_BYTES >> 30
+        ))
+        .into());
+    };
+    let large = total * (layers + 2) > crate::spectrum::SMALL_WORK;
+    let (rs, rp, ts, tp) = run(py, large, |stop| {
+        compute(&media, &thick, designs, layers, &wavelengths, &angles, stop)
+    })?;
+    let r: Vec<f64> = rs.par_iter().zip(&rp).map(|(s, p)| 0.5 * (s + p)).collect();
+    let t: Vec<f64> = ts.par_iter().zip(&tp).map(|(s, p)| 0.5 * (s + p)).collect();
+    let out = PyDict::new(py);
+    let shape = (designs, na, nw);
+    for (k, v) in [
+        ("R_s", rs),
+        ("R_p", rp),
+        ("R", r),
+        ("T_s", ts),
+        ("T_p", tp),
+        ("T", t),
+    ] {
+        out.set_item(k, array3(py, shape, v)?)?;
+    }
+    out.set_item("wavelength_nm", array1(py, wavelengths))?;
+    out.set_item("angle_deg", array1(py, angles))?;
+    Ok(out)
+}
+
+type Columns = (Vec<f64>, Vec<f64>, Vec<f64>, Vec<f64>);
+
+fn compute(
+    media: &Media,
+    thick: &[f64],
+    designs: usize,
+    layers: usize,
+    wavelengths: &[f64],
+    angles: &[f64],
+    stop: &Stop,
+) -> Outcome<Columns> {
+    let (nw, na, m) = (wavelengths.len(), angles.len(), media.m);
+    let per = na * nw;
+    let shared = (!media.per_design).then(|| terms(&media.n, m, wavelengths, angles));
+    let template = Stack {
+        incident: 0,
+        nodes: (1..=layers)
+            .map(|j| Node::Layer {
+                medium: j,
+                thickness_nm: 0.0,
+            })
+            .collect(),
+        exit: Exit::Medium(layers + 1),
+    };
+    let mut rs = vec![0.0; designs * per];
+    let mut rp = vec![0.0; designs * per];
+    let mut ts = vec![0.0; designs * per];
+    let mut tp = vec![0.0; designs * per];
+    let piece = DESIGNS_PER_PIECE * per;
+    rs.par_chunks_mut(piece.max(1))
+        .zip(rp.par_chunks_mut(piece.max(1)))
+        .zip(ts.par_chunks_mut(piece.max(1)))
+        .zip(tp.par_chunks_mut(piece.max(1)))
+        .enumerate()
+        .try_for_each_init(
+            || (template.clone(), vec![Rt::default(); per]),
+            |(stack, out), (p, (((rs, rp), ts), tp))| {
+                stop.check()?;
+                let first = p * DESIGNS_PER_PIECE;
+                for k in 0..rs.len() / per.max(1) {
+                    let d = first + k;
+                    for (node, &x) in stack
+                        .nodes
+                        .iter_mut()
+                        .zip(&thick[d * layers..(d + 1) * layers])
+                    {
+                        if let Node::Layer { thickness_nm, .. } = node {
+                            *thickness_nm = x;
+                        }
+                    }
+                    let own;
+                    let t = match &shared {
+                        Some(t) => t,
+                        None => {
+                            own = terms(
+                                &media.n[d * nw * m..(d + 1) * nw * m],
+                                m,
+                                wavelengths,
+                                angles,
+                            );
+                            &own
+                        }
+                    };
+                    evaluate(stack, t, m, nw, na, out);
+                    if let Some(i) = out
+                        .iter()
+                        .position(|x| !(x.rs + x.rp + x.ts + x.tp).is_finite())
+                    {
+                        let x = &out[i];
+                        lamella::scene::check_point(x, wavelengths[i % nw], angles[i / nw])
+                            .map_err(|e| Failure::NotComputable(format!("design {d}: {e}")))?;
+                    }
+                    let at = k * per..(k + 1) * per;
+                    for (i, x) in at.zip(out.iter()) {
+                        rs[i] = x.rs;
+                        rp[i] = x.rp;
+                        ts[i] = x.ts;
+                        tp[i] = x.tp;
+                    }
+                }
+                Ok(())
+            },
+        )?;
+    Ok((rs, rp, ts, tp))
+}
