@@ -1,7 +1,8 @@
-//! Every `lamella …` command shown in the README's shell blocks runs as
-//! written, from a folder holding the repository's shipped files, and
-//! exits 0 (or 3 for a `match` whose target is not reached, which the
-//! README documents).
+//! Every `lamella …` command shown in the README's shell blocks and in the
+//! worked examples of `--help` runs as written, from a folder holding the
+//! repository's shipped files, and exits 0 (or 3 for a `match` whose target
+//! is not reached, which the README documents). Every subcommand's help
+//! opens with what it does and ends with an example.
 
 use std::path::Path;
 use std::process::Command;
@@ -56,10 +57,32 @@ fn words(command: &str) -> Vec<String> {
     out
 }
 
-#[test]
-fn every_readme_command_runs_as_written() {
+/// The subcommands `lamella --help` lists.
+fn subcommands() -> Vec<String> {
+    let help = run_lamella(&["--help"]);
+    help.lines()
+        .skip_while(|l| !l.starts_with("Commands:"))
+        .skip(1)
+        .take_while(|l| l.starts_with("  "))
+        .filter_map(|l| l.split_whitespace().next())
+        .filter(|&c| c != "help")
+        .map(str::to_owned)
+        .collect()
+}
+
+fn run_lamella(args: &[&str]) -> String {
+    let out = Command::new(env!("CARGO_BIN_EXE_lamella"))
+        .args(args)
+        .output()
+        .unwrap();
+    assert!(out.status.success(), "{args:?}");
+    String::from_utf8(out.stdout).unwrap()
+}
+
+/// Runs `commands` from a scratch folder linked to the shipped files.
+fn run_all(commands: &[String], label: &str) {
     let root = Path::new(env!("CARGO_MANIFEST_DIR"));
-    let dir = std::env::temp_dir().join(format!("lamella-readme-{}", std::process::id()));
+    let dir = std::env::temp_dir().join(format!("lamella-{label}-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     for shipped in ["scenes", "bench", "tests"] {
         let link = dir.join(shipped);
@@ -67,9 +90,7 @@ fn every_readme_command_runs_as_written() {
             std::os::unix::fs::symlink(root.join(shipped), link).unwrap();
         }
     }
-    let commands = commands();
-    assert!(commands.len() >= 10, "{commands:?}");
-    for command in &commands {
+    for command in commands {
         let args = words(command);
         let out = Command::new(env!("CARGO_BIN_EXE_lamella"))
             .args(&args[1..])
@@ -85,4 +106,42 @@ fn every_readme_command_runs_as_written() {
         );
     }
     std::fs::remove_dir_all(&dir).unwrap();
+}
+
+#[test]
+fn every_readme_command_runs_as_written() {
+    let commands = commands();
+    assert!(commands.len() >= 10, "{commands:?}");
+    run_all(&commands, "readme");
+}
+
+#[test]
+fn every_help_opens_with_what_it_does_and_its_example_runs() {
+    let top = run_lamella(&["--help"]);
+    assert!(top.contains("Exit codes") && top.contains("143"), "{top}");
+    let names = subcommands();
+    assert!(names.len() >= 11, "{names:?}");
+    let mut examples = Vec::new();
+    for name in &names {
+        let help = run_lamella(&[name, "--help"]);
+        let first = help.lines().next().unwrap_or("");
+        assert!(
+            !first.starts_with("Flags") && first.split_whitespace().count() >= 4,
+            "`lamella {name} --help` opens with {first:?}"
+        );
+        let tail: Vec<&str> = help
+            .lines()
+            .rev()
+            .take_while(|l| l.starts_with("  lamella "))
+            .collect();
+        assert!(
+            !tail.is_empty()
+                && tail
+                    .iter()
+                    .all(|l| l.trim().starts_with(&format!("lamella {name}"))),
+            "`lamella {name} --help` does not end with an example of itself"
+        );
+        examples.extend(tail.iter().map(|l| l.trim().to_owned()));
+    }
+    run_all(&examples, "help");
 }

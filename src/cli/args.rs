@@ -6,22 +6,27 @@ use clap::{Parser, Subcommand};
 
 use crate::cli;
 use crate::cli::CliResult;
+use crate::cli::help;
 
 /// Structural colour design: thin-film spectra, colour and design tools.
 #[derive(Parser)]
-#[command(name = "lamella", version, about, long_about = None)]
+#[command(name = "lamella", version, about, long_about = None, after_help = help::EXIT_CODES)]
 pub struct Args {
     /// The subcommand and its arguments.
     #[command(subcommand)]
     pub command: Command,
 }
 
+/// The subcommands. Each one's doc comment is its `--help` (first line: what
+/// it does) and its `after_help` ends with a worked example.
 #[derive(Subcommand)]
-// Each subcommand's arguments are defined only when it is the one invoked.
-#[command(defer = true)]
 pub enum Command {
     /// Reflectance, transmittance and absorptance per polarization for every
     /// angle and wavelength of a scene.
+    ///
+    /// Columns: wavelength_nm, angle_deg, R_s, R_p, R, T_s, T_p, T and A
+    /// (unpolarized R, T and A are the means of s and p).
+    #[command(after_help = help::SPECTRUM)]
     Spectrum {
         /// Scene file (JSON).
         scene: PathBuf,
@@ -34,6 +39,11 @@ pub enum Command {
     },
     /// CIE XYZ, xy, CIELAB, LCh, sRGB and hex at every angle of a scene, with
     /// the colour travel between angles.
+    ///
+    /// The light and observer come from the scene (default D65 and the CIE
+    /// 1964 10° observer) unless given here. Colours outside sRGB are marked
+    /// (`in_gamut` false, `≈` before the hex code in the table).
+    #[command(after_help = help::COLOR)]
     Color {
         /// Scene file (JSON).
         scene: PathBuf,
@@ -57,7 +67,7 @@ pub enum Command {
     /// `45as15` is illumination at 45° and detection 15° from the specular
     /// direction toward the normal. Per geometry: reflectance factor, XYZ,
     /// CIELAB, C*, h, sRGB, hex and gamut.
-    #[command(after_help = cli::multiangle::HELP)]
+    #[command(after_help = help::MULTIANGLE)]
     Multiangle {
         /// Scene file (JSON) with a `coating` section.
         scene: PathBuf,
@@ -72,23 +82,68 @@ pub enum Command {
     },
     /// Optimise the `vary_nm` thicknesses toward a target colour (ΔE00) at
     /// one or more angles; writes the optimised scene and a JSON report.
+    ///
+    /// With a `coating` section the platelet's layers are optimised and the
+    /// goals are given at geometries (--geometry, --goal 45as110:L,a,b).
+    #[command(after_help = help::MATCH)]
     Match(Box<cli::matching::MatchArgs>),
     /// Monte Carlo tolerance of a design: ΔE00 percentiles, yield and the
     /// layers the colour is most sensitive to.
+    ///
+    /// Every layer as written in the scene draws an independent Gaussian
+    /// thickness error (a layer in a repeat group carries the same error into
+    /// each period, unless --per-period) and, with --sigma-n, an independent
+    /// error in its real index. The report gives ΔE00 from the nominal colour
+    /// at each scene angle (median, 95th percentile, maximum, yield within
+    /// --limit) and overall (each sample's worst angle among those that
+    /// count, all unless --yield-angles). Sensitivity: each layer as written
+    /// alone is moved by +1σ and −1σ (in every period of its group); its
+    /// ΔE00 (worst counted angle, mean of the two) ranks the layers, largest
+    /// first (combined with the index effect when --sigma-n is given). With
+    /// a `coating` section the layers are the platelet's (each error shared
+    /// by every platelet of the batch) and the colour is judged at each of
+    /// the coating's geometries instead of angles (report key `geometries`;
+    /// --yield-geometries chooses among them).
+    #[command(after_help = help::TOLERANCE)]
     Tolerance(Box<cli::tolerance::ToleranceArgs>),
     /// Fit the `vary_nm` thicknesses to a measured reflectance spectrum.
+    ///
+    /// The measured CSV has columns wavelength_nm and R (0–1), and angle_deg
+    /// or geometry for readings at several angles or geometries; the fitted
+    /// scene is written to --out-scene and the report (rms, thicknesses,
+    /// their uncertainties where the data determine them) to stdout.
+    #[command(after_help = help::FIT)]
     Fit(Box<cli::fit::FitArgs>),
     /// Evaluate many designs over the `vary_nm` ranges as JSON lines.
+    ///
+    /// Each line: `index` (the design's number in the whole sweep),
+    /// `thicknesses_nm` (one per `vary_nm` layer, document order), `L`, `a`,
+    /// `b`, `srgb`, `hex`, and `delta_e00` to the target when one is given.
+    /// Design i is the same in every run (grid order, or the seeded stream),
+    /// so `--shard I/N` (I from 1 to N) evaluates the I-th of N contiguous
+    /// shares and the shard files concatenated in order equal the whole
+    /// sweep.
+    #[command(after_help = help::SWEEP)]
     Sweep(Box<cli::sweep::SweepArgs>),
     /// A preview image of an object (sphere, cylinder, torus, bottle, wavy
     /// sheet or OBJ mesh) wearing the coating, shaded from the real spectra.
+    ///
+    /// Each flag overrides the same key of the scene's `preview` object.
+    #[command(after_help = help::RENDER)]
     Render(cli::render::RenderArgs),
     /// List the built-in materials: model, valid range, n and k at 550 nm, source.
+    #[command(after_help = help::MATERIALS)]
     Materials,
     /// Draw a chart of colour against angle as PNG or SVG (format from the
     /// -o extension).
+    #[command(after_help = help::CHART)]
     Chart(cli::chart::Args),
     /// Write every chart of a scene and an HTML report into a folder.
+    ///
+    /// The report (index.html) holds the stack, the colour per angle, the
+    /// travel summary, gamut warnings, the cautions on using computed colour,
+    /// the lamella version, the date and the command that made it.
+    #[command(after_help = help::REPORT)]
     Report(cli::report::Args),
 }
 

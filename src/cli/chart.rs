@@ -10,6 +10,7 @@ use lamella::chart::{
 };
 use lamella::scene::Scene;
 
+use super::choices::PolarizationChoice;
 use super::color::ViewArgs;
 use super::design_args::Progress;
 use super::{CliResult, Failure, film_scene, load_scene, write_out};
@@ -44,7 +45,7 @@ impl Kind {
     }
 }
 
-/// Flags of `lamella chart`.
+/// Flags of `lamella chart` (the command is described in `cli::args`).
 #[derive(Debug, Clone, clap::Args)]
 pub struct Args {
     /// Scene files (JSON). Several only for spectra, chromaticity and ab-travel.
@@ -72,9 +73,13 @@ pub struct Args {
     #[arg(long, value_delimiter = ',', default_value = "0,30,60")]
     pub angles: Vec<f64>,
     /// spectra: polarizations drawn (unpolarized solid, s dashed, p dotted).
-    #[arg(long, value_delimiter = ',', default_value = "unpolarized,s,p",
-          value_parser = ["unpolarized", "s", "p"])]
-    pub curves: Vec<String>,
+    #[arg(
+        long,
+        value_enum,
+        value_delimiter = ',',
+        default_value = "unpolarized,s,p"
+    )]
+    pub curves: Vec<PolarizationChoice>,
     /// spectra: also draw transmittance, in a second panel.
     #[arg(long)]
     pub transmittance: bool,
@@ -148,10 +153,10 @@ pub fn load_all(paths: &[PathBuf], view: &ViewArgs) -> Result<Vec<(Scene, Viewin
     Ok(out)
 }
 
-fn polarizations(names: &[String]) -> Vec<Polarization> {
+fn polarizations(choices: &[PolarizationChoice]) -> Vec<Polarization> {
     let mut out: Vec<Polarization> = Vec::new();
-    for n in names {
-        let p = n.parse().expect("clap checked the value");
+    for &c in choices {
+        let p = c.into();
         if !out.contains(&p) {
             out.push(p);
         }

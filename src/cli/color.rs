@@ -3,20 +3,20 @@
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 
-use lamella::angle_colour::{Polarization, Side, Viewing, angle_colours};
-use lamella::colorimetry::{
-    Colour, ColourOptions, GamutMapping, Illuminant, RgbSpace, travel, travel_points,
-};
+use lamella::angle_colour::{Viewing, angle_colours};
+use lamella::colorimetry::{Colour, ColourOptions, Illuminant, RgbSpace, travel, travel_points};
 use serde_json::{Value, json};
 
+use super::choices::{GamutChoice, PolarizationChoice, SideChoice};
 use super::{CliResult, Failure, RecordFormat, film_scene, load_scene, write_out};
 
-/// Flags shared by every command that turns spectra into colour.
+/// Flags shared by every command that turns spectra into colour (flattened
+/// into each; the commands are described in `cli::args`).
 #[derive(Debug, Clone, clap::Args)]
 pub struct ViewArgs {
     /// Reflected or transmitted light.
-    #[arg(long, default_value = "reflect", value_parser = ["reflect", "transmit"])]
-    pub side: String,
+    #[arg(long, value_enum, default_value_t = SideChoice::Reflect)]
+    pub side: SideChoice,
     /// Illuminant name (D65, D50, A, E, F2, F7, F11, LED-B1…LED-V2) or a
     /// `wavelength_nm,power` CSV file; overrides the scene.
     #[arg(long)]
@@ -25,12 +25,12 @@ pub struct ViewArgs {
     #[arg(long)]
     pub observer: Option<String>,
     /// Polarization of the light.
-    #[arg(long, default_value = "unpolarized", value_parser = ["unpolarized", "s", "p"])]
-    pub polarization: String,
+    #[arg(long, value_enum, default_value_t = PolarizationChoice::Unpolarized)]
+    pub polarization: PolarizationChoice,
     /// Out-of-gamut colours: clip each channel, or reduce chroma at constant
     /// CIELAB lightness and hue.
-    #[arg(long, default_value = "clip", value_parser = ["clip", "chroma"])]
-    pub gamut: String,
+    #[arg(long, value_enum, default_value_t = GamutChoice::Clip)]
+    pub gamut: GamutChoice,
 }
 
 impl ViewArgs {
@@ -58,11 +58,11 @@ impl ViewArgs {
                 .parse()
                 .map_err(|e| Failure::input(format!("--observer: {e}")))?;
         }
-        v.side = self.side.parse::<Side>().map_err(bad)?;
-        v.polarization = self.polarization.parse::<Polarization>().map_err(bad)?;
+        v.side = self.side.into();
+        v.polarization = self.polarization.into();
         v.options = ColourOptions {
             space: RgbSpace::Srgb,
-            gamut: self.gamut.parse::<GamutMapping>().map_err(bad)?,
+            gamut: self.gamut.into(),
         };
         Ok(v)
     }

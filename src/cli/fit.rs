@@ -13,7 +13,7 @@ use super::design_args::{Format, json_bytes};
 use super::matching::point_json;
 use super::{CliResult, Failure, load_scene, write_out};
 
-/// Flags of `lamella fit`.
+/// Flags of `lamella fit` (the command is described in `cli::args`).
 #[derive(Debug, Clone, clap::Args)]
 pub struct FitArgs {
     /// Scene file (JSON); layers with `vary_nm: [low, high]` are fitted (with

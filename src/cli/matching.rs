@@ -17,31 +17,8 @@ use super::color::ViewArgs;
 use super::design_args::{Format, Progress, TargetArgs, json_bytes, parse_lab};
 use super::{CliResult, Failure, load_scene, write_out};
 
-/// How the search ends and what the exit code says, for `--help`.
-pub const HELP: &str = "\
-Stopping: the search (differential evolution until its best has not fallen
-by 1 % for 10 generations, then Nelder-Mead from the best few candidates,
-restarted with fresh seeds) ends at the first of:
-  reached         every goal within ΔE00 1 after a local refinement (and the
-                  thickness limit held); not with --brightness-weight > 0,
-                  which always leaves brightness to gain
-  no_improvement  4 restarts in a row did not lower the best cost (the sum
-                  of the goals' ΔE00, plus the brightness and limit terms)
-                  by 0.05
-  budget          --max-evals evaluations spent
-The report's `stopped` says which, `evaluations` how many were spent.
-Limits no design can meet are refused before the search: --max-total-nm
-below the smallest total the vary_nm bounds allow (each variable in a repeat
-group counted once per period), or a film target with L* outside 0-100.
-
-Exit codes: 0 the target was reached; 3 it was not (the closest design is
-still written to --out-scene and reported, with `reachable` false); 2 bad
-input or a limit that cannot be met; 1 a colour that cannot be computed or a
-file that cannot be written.";
-
-/// Flags of `lamella match`.
+/// Flags of `lamella match` (the command is described in `cli::args`).
 #[derive(Debug, Clone, clap::Args)]
-#[command(after_help = HELP)]
 pub struct MatchArgs {
     /// Scene file (JSON); layers with `vary_nm: [low, high]` are optimised
     /// (a layer in a repeat group is one variable for all its periods). With

@@ -2,9 +2,11 @@
 
 pub mod args;
 pub mod chart;
+pub mod choices;
 pub mod color;
 pub mod design_args;
 pub mod fit;
+pub mod help;
 pub mod matching;
 pub mod materials;
 pub mod multiangle;

@@ -8,47 +8,11 @@ use lamella::pigment::{Coating, Measurement, Model, TABLE_STEP_DEG, measure, par
 use lamella::scene::GRID_BYTES_PER_POINT;
 use serde_json::{Value, json};
 
+use super::choices::{GamutChoice, PolarizationChoice, SideChoice};
 use super::color::ViewArgs;
 use super::{CliResult, Failure, RecordFormat, load_scene, write_out};
 
-/// The scene's `coating` keys and the output keys, shown by `--help`.
-pub const HELP: &str = "\
-Scene `coating` keys:
-  binder             material name of the clear binder (lossless, n ≥ 1; e.g. define
-                     {\"n\": 1.5} under `materials`)
-  platelet           the platelet's layers, same syntax as `stack` (repeat, vary_nm,
-                     sigma_nm / sigma_pct for an uneven core)
-  disorder           {realizations, seed, sigma_nm | sigma_pct} for the platelet layers
-  tilt_sigma_deg     Gaussian spread of platelet normals (density per solid angle
-                     ∝ exp(−tilt²/2σ²)), 0.05–60; default 10
-  tilt_density       instead: [[tilt_deg, weight], …] density per solid angle from 0°
-  platelet_coverage  platelet area per unit coating area, 0–20; default 1
-  background         \"black\" (default), \"white\", {\"reflectance\": 0–1} or
-                     {\"reflectance\": [[nm, R], …]} (Lambertian)
-  geometries         \"45\" (default: 45as-15, 45as15, 45as25, 45as45, 45as75, 45as110, the
-                     in-plane set of ASTM E2194 and DIN 6175-2), a name
-                     ILLUMINATIONasASPECULAR such as 45as15 or 25as40, or your own list of
-                     names and objects, in order: {illumination_deg, aspecular_deg, name?}
-                     (in-plane) or {illumination_deg, detection_deg,
-                     detection_azimuth_deg, name?} (any pair; azimuth 0 = specular side,
-                     180 = illumination side), e.g.
-                     [\"45as15\", \"25as40\", {\"illumination_deg\": 45,
-                      \"detection_deg\": 30, \"detection_azimuth_deg\": 90, \"name\": \"side\"}]
-  notes              free text
-Geometry names: 45as15 = illumination 45° from the normal, detection 15° from the
-specular direction toward the normal (30° on the specular side); 45as-15 detects at
-60°; 45as110 at 65° on the illumination side; 25as40 lights at 25° and detects at
-15° on the illumination side. \"45\" is the only named set: list any other geometries.
-Output per geometry: name, illumination_deg, aspecular_deg, in_plane, X, Y, Z, L, a, b,
-C, h, srgb, hex, in_gamut, reflectance_factor (with --spectra). Also flop_index =
-2.69 (L*15 − L*110)^1.11 / (L*45)^0.86 from 45as15, 45as45, 45as110 (left out,
-with flop_note saying why, otherwise), hue_travel_deg (net hue change along the
-listed geometries; left out for a single geometry) and
-surface_gloss_Y (the binder surface's mirror reflection, excluded from every geometry).
-Reflectance factor: radiance relative to a perfect white diffuser under the same
-geometry (Y = 100 for the perfect diffuser).";
-
-/// Flags of the command.
+/// Flags of `lamella multiangle` (the command is described in `cli::args`).
 #[derive(Debug, Clone, clap::Args)]
 pub struct Args {
     /// Include the reflectance factor spectrum of each geometry (JSON key
@@ -70,8 +34,8 @@ pub struct Args {
     pub observer: Option<String>,
     /// Out-of-gamut colours: clip each channel, or reduce chroma at constant
     /// CIELAB lightness and hue.
-    #[arg(long, default_value = "clip", value_parser = ["clip", "chroma"])]
-    pub gamut: String,
+    #[arg(long, value_enum, default_value_t = GamutChoice::Clip)]
+    pub gamut: GamutChoice,
 }
 
 /// Runs the command.
@@ -101,11 +65,11 @@ pub fn run(
             .concat();
     }
     let view = ViewArgs {
-        side: "reflect".into(),
+        side: SideChoice::Reflect,
         illuminant: args.illuminant.clone(),
         observer: args.observer.clone(),
-        polarization: "unpolarized".into(),
-        gamut: args.gamut.clone(),
+        polarization: PolarizationChoice::Unpolarized,
+        gamut: args.gamut,
     };
     let viewing = view.viewing(&scene, scene_path)?;
     let weights = viewing.weights(&scene.wavelengths_nm).map_err(bad)?;

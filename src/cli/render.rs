@@ -11,8 +11,7 @@ use lamella::scene::Scene;
 
 use super::{CliResult, Failure, load_scene, write_out};
 
-/// Flags of `lamella render`; each overrides the same key of the scene's
-/// `preview` object.
+/// Flags of `lamella render` (the command is described in `cli::args`).
 #[derive(Debug, Clone, clap::Args)]
 pub struct RenderArgs {
     /// Scene file (JSON); its optional `preview` object holds defaults for

@@ -19,7 +19,7 @@ use super::color::ViewArgs;
 use super::design_args::Progress;
 use super::{CliResult, Failure, load_scene, write_out};
 
-/// Flags of `lamella report`.
+/// Flags of `lamella report` (the command is described in `cli::args`).
 #[derive(Debug, Clone, clap::Args)]
 pub struct Args {
     /// Scene file (JSON).

@@ -11,14 +11,7 @@ use super::color::ViewArgs;
 use super::design_args::TargetArgs;
 use super::{CliResult, Failure, load_scene, output};
 
-/// Flags of `lamella sweep`.
-///
-/// Each line: `index` (the design's number in the whole sweep),
-/// `thicknesses_nm` (one per `vary_nm` layer, document order), `L`, `a`,
-/// `b`, `srgb`, `hex`, and `delta_e00` to the target when one is given.
-/// Design i is the same in every run (grid order, or the seeded stream), so
-/// `--shard I/N` (I from 1 to N) evaluates the I-th of N contiguous shares
-/// and the shard files concatenated in order equal the whole sweep.
+/// Flags of `lamella sweep` (the command is described in `cli::args`).
 #[derive(Debug, Clone, clap::Args)]
 #[command(group(clap::ArgGroup::new("plan").required(true).args(["samples", "grid"])))]
 pub struct SweepArgs {

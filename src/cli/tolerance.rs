@@ -13,25 +13,7 @@ use super::design_args::{Format, json_bytes};
 use super::matching::point_json;
 use super::{CliResult, Failure, load_scene, write_out};
 
-/// Flags of `lamella tolerance`.
-///
-/// Every layer as written in the scene draws an independent Gaussian
-/// thickness error (a layer in a repeat group carries the same error into
-/// each period, unless --per-period) and, with --sigma-n, an independent
-/// error in its real index. The report gives ΔE00 from the nominal colour at
-/// each scene angle (median, 95th percentile, maximum, yield within --limit)
-/// and overall (each sample's worst angle among those that count, all unless
-/// --yield-angles). Sensitivity: each layer as written alone is moved by +1σ
-/// and −1σ (in every period of its group); its ΔE00 (worst counted angle,
-/// mean of the two) ranks the layers, largest first (combined with the index
-/// effect when --sigma-n is given). With a `coating` section the layers are
-/// the platelet's (each error shared by every platelet of the batch) and the
-/// colour is judged at each of the coating's geometries instead of angles
-/// (report key `geometries`; --yield-geometries chooses among them).
-///
-/// Exit codes: 0 done; 2 bad input; 1 a colour that cannot be computed (the
-/// message names the sample and the angle or geometry) or a file that cannot
-/// be written.
+/// Flags of `lamella tolerance` (the command is described in `cli::args`).
 #[derive(Debug, Clone, clap::Args)]
 #[command(group(clap::ArgGroup::new("sigma").required(true).args(["sigma_nm", "sigma_pct"])))]
 pub struct ToleranceArgs {

@@ -1,0 +1,132 @@
+//! Worked examples and exit codes shown at the end of `--help`. Every
+//! example runs as written from the repository root (a test runs them all).
+
+/// Exit codes, for `lamella --help`.
+pub const EXIT_CODES: &str = "\
+Exit codes, for every command:
+  0    done
+  1    a value that cannot be computed (the message names the point) or a
+       file that cannot be written
+  2    bad input (the message names the file, the key and the value)
+  3    `match` ran but did not reach its target (the design and report are
+       still written)
+  130  stopped by Ctrl-C; 143 stopped by SIGTERM (temporary output files are
+       removed)
+
+Example:
+  lamella color scenes/teal_label_foil.json";
+
+/// `lamella spectrum`.
+pub const SPECTRUM: &str = "\
+Example:
+  lamella spectrum scenes/teal_label_foil.json -o foil-spectrum.csv";
+
+/// `lamella color`.
+pub const COLOR: &str = "\
+Example (colour seen through the film, under D50, as JSON):
+  lamella color scenes/violet_window_filter.json --side transmit --illuminant D50 --format json";
+
+/// `lamella multiangle`: the scene's `coating` keys and the output keys.
+pub const MULTIANGLE: &str = "\
+Scene `coating` keys:
+  binder             material name of the clear binder (lossless, n ≥ 1; e.g. define
+                     {\"n\": 1.5} under `materials`)
+  platelet           the platelet's layers, same syntax as `stack` (repeat, vary_nm,
+                     sigma_nm / sigma_pct for an uneven core)
+  disorder           {realizations, seed, sigma_nm | sigma_pct} for the platelet layers
+  tilt_sigma_deg     Gaussian spread of platelet normals (density per solid angle
+                     ∝ exp(−tilt²/2σ²)), 0.05–60; default 10
+  tilt_density       instead: [[tilt_deg, weight], …] density per solid angle from 0°
+  platelet_coverage  platelet area per unit coating area, 0–20; default 1
+  background         \"black\" (default), \"white\", {\"reflectance\": 0–1} or
+                     {\"reflectance\": [[nm, R], …]} (Lambertian)
+  geometries         \"45\" (default: 45as-15, 45as15, 45as25, 45as45, 45as75, 45as110, the
+                     in-plane set of ASTM E2194 and DIN 6175-2), a name
+                     ILLUMINATIONasASPECULAR such as 45as15 or 25as40, or your own list of
+                     names and objects, in order: {illumination_deg, aspecular_deg, name?}
+                     (in-plane) or {illumination_deg, detection_deg,
+                     detection_azimuth_deg, name?} (any pair; azimuth 0 = specular side,
+                     180 = illumination side), e.g.
+                     [\"45as15\", \"25as40\", {\"illumination_deg\": 45,
+                      \"detection_deg\": 30, \"detection_azimuth_deg\": 90, \"name\": \"side\"}]
+  notes              free text
+Geometry names: 45as15 = illumination 45° from the normal, detection 15° from the
+specular direction toward the normal (30° on the specular side); 45as-15 detects at
+60°; 45as110 at 65° on the illumination side; 25as40 lights at 25° and detects at
+15° on the illumination side. \"45\" is the only named set: list any other geometries.
+Output per geometry: name, illumination_deg, aspecular_deg, in_plane, X, Y, Z, L, a, b,
+C, h, srgb, hex, in_gamut, reflectance_factor (with --spectra). Also flop_index =
+2.69 (L*15 − L*110)^1.11 / (L*45)^0.86 from 45as15, 45as45, 45as110 (left out,
+with flop_note saying why, otherwise), hue_travel_deg (net hue change along the
+listed geometries; left out for a single geometry) and
+surface_gloss_Y (the binder surface's mirror reflection, excluded from every geometry).
+Reflectance factor: radiance relative to a perfect white diffuser under the same
+geometry (Y = 100 for the perfect diffuser).
+
+Example:
+  lamella multiangle scenes/pearl_compact_lid.json --geometries 45as15,45as45,45as110";
+
+/// `lamella match`: how the search ends and what the exit code says.
+pub const MATCH: &str = "\
+Stopping: the search (differential evolution until its best has not fallen
+by 1 % for 10 generations, then Nelder-Mead from the best few candidates,
+restarted with fresh seeds) ends at the first of:
+  reached         every goal within ΔE00 1 after a local refinement (and the
+                  thickness limit held); not with --brightness-weight > 0,
+                  which always leaves brightness to gain
+  no_improvement  4 restarts in a row did not lower the best cost (the sum
+                  of the goals' ΔE00, plus the brightness and limit terms)
+                  by 0.05
+  budget          --max-evals evaluations spent
+The report's `stopped` says which, `evaluations` how many were spent.
+Limits no design can meet are refused before the search: --max-total-nm
+below the smallest total the vary_nm bounds allow (each variable in a repeat
+group counted once per period), or a film target with L* outside 0-100.
+
+Exit codes: 0 the target was reached; 3 it was not (the closest design is
+still written to --out-scene and reported, with `reachable` false); 2 bad
+input or a limit that cannot be met; 1 a colour that cannot be computed or a
+file that cannot be written.
+
+Example (a teal seen at 10°, the design written to matched.json):
+  lamella match scenes/teal_label_foil.json --target-lab 68.5,-82.9,4.2 --angle 10 --out-scene matched.json";
+
+/// `lamella tolerance`.
+pub const TOLERANCE: &str = "\
+Exit codes: 0 done; 2 bad input; 1 a colour that cannot be computed (the
+message names the sample and the angle or geometry) or a file that cannot be
+written.
+
+Example (2 % thickness and 0.01 index errors, 500 samples):
+  lamella tolerance scenes/teal_label_foil.json --sigma-pct 2 --sigma-n 0.01 --samples 500";
+
+/// `lamella fit`.
+pub const FIT: &str = "\
+Example:
+  lamella fit scenes/teal_label_foil.json --measured scenes/measured/teal_label_foil_sample.csv --out-scene fitted.json";
+
+/// `lamella sweep`.
+pub const SWEEP: &str = "\
+Example (an 8-point grid per layer, ΔE00 to a target):
+  lamella sweep bench/design_5layer.json --grid 8 --target-lab 60,20,-30 -o sweep.jsonl";
+
+/// `lamella render`.
+pub const RENDER: &str = "\
+Example:
+  lamella render scenes/teal_label_foil.json -o foil.png --shape bottle --size 400x400";
+
+/// `lamella materials`.
+pub const MATERIALS: &str = "\
+Example:
+  lamella materials";
+
+/// `lamella chart`.
+pub const CHART: &str = "\
+Examples:
+  lamella chart scenes/teal_label_foil.json --kind angle-strip -o strip.png
+  lamella chart scenes/teal_label_foil.json --scene scenes/chitin_lamellar_film.json --kind chromaticity -o compare.svg --observer CIE1931_2";
+
+/// `lamella report`.
+pub const REPORT: &str = "\
+Example:
+  lamella report scenes/teal_label_foil.json -o foil-report/";
