@@ -5,12 +5,12 @@ use std::path::PathBuf;
 use std::time::Instant;
 
 use lamella::design::fit::{FitSettings, fit, parse_measured};
+use lamella::design::report::fit_report;
 use lamella::design::search::Budget;
 use lamella::design::variables::edited_document;
 use serde_json::{Value, json};
 
 use super::design_args::{Format, json_bytes};
-use super::matching::point_json;
 use super::{CliResult, Failure, load_scene, write_out};
 
 /// Flags of `lamella fit` (the command is described in `cli::args`).
@@ -73,38 +73,11 @@ pub fn run(args: &FitArgs) -> CliResult {
     let out = fit(&scene, &measured, &settings).map_err(bad)?;
     let doc = edited_document(&scene.document, &out.variables, &out.thicknesses_nm).map_err(bad)?;
     write_out(Some(&args.out_scene), &[json_bytes(&doc)])?;
-    // An uncertainty the fit cannot determine is left out, never null.
-    let with_uncertainty = |mut v: Value, u: Option<f64>| {
-        if let Some(u) = u {
-            v["uncertainty"] = json!(u);
-        }
-        v
-    };
-    let mut report = json!({
-        "rms": out.rms,
-        "points": out.points,
-        "thicknesses_nm": out.variables.iter().zip(&out.thicknesses_nm).zip(&out.uncertainties_nm)
-            .map(|((v, t), u)| with_uncertainty(json!({
-                "pointer": v.pointer, "material": v.material, "value": t,
-                "low": v.low_nm, "high": v.high_nm,
-            }), *u)).collect::<Vec<_>>(),
-        "evaluations": out.evaluations,
-        "wall_time_s": started.elapsed().as_secs_f64(),
-        "seed": args.seed,
-    });
-    if let Some((s, u)) = out.scale {
-        report["scale"] = with_uncertainty(json!({ "value": s }), u);
-    }
-    report[if measured[0].at.geometry().is_some() {
-        "geometries"
-    } else {
-        "angles_deg"
-    }] = measured
-        .iter()
-        .map(|m| match point_json(&m.at).into_iter().next() {
-            Some((_, v)) => v,
-            None => Value::Null,
-        })
-        .collect();
-    write_out(args.output.as_deref(), &[json_bytes(&report)])
+    let mut report = fit_report(&out, &measured);
+    report.insert("wall_time_s".into(), json!(started.elapsed().as_secs_f64()));
+    report.insert("seed".into(), json!(args.seed));
+    write_out(
+        args.output.as_deref(),
+        &[json_bytes(&Value::Object(report))],
+    )
 }

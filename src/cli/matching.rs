@@ -1,14 +1,14 @@
 //! `lamella match`: optimise the `vary_nm` thicknesses toward a target colour
 //! (at angles for a film, at geometries for a coating's platelet).
 
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::time::Instant;
 
-use lamella::colorimetry::Colour;
 use lamella::design::coating::At;
 use lamella::design::matching::{
     Goal, MIN_GAIN_DELTA_E, MatchOutcome, MatchSettings, REACHABLE_DELTA_E, match_colour,
 };
+use lamella::design::report::match_report;
 use lamella::design::search::Budget;
 use lamella::design::variables::edited_document;
 use serde_json::{Value, json};
@@ -193,53 +193,16 @@ fn geometry(name: &str, flag: &str) -> Result<At, Failure> {
     }
 }
 
-/// The point of a goal or measurement as JSON fields: `angle_deg`, or
-/// `geometry` with its illumination and aspecular angles.
-pub fn point_json(at: &At) -> serde_json::Map<String, Value> {
-    let v = match at {
-        At::Angle(a) => json!({"angle_deg": a}),
-        At::Geometry(g) => json!({
-            "geometry": g.name,
-            "illumination_deg": g.illumination_deg,
-            "aspecular_deg": g.aspecular_deg,
-        }),
-    };
-    match v {
-        Value::Object(m) => m,
-        _ => unreachable!("an object"),
-    }
-}
-
-fn colour_json(c: &Colour) -> Value {
-    json!({"L": c.lab[0], "a": c.lab[1], "b": c.lab[2], "srgb": c.rgb, "hex": c.hex, "in_gamut": c.in_gamut})
-}
-
 fn report(out: &MatchOutcome, args: &MatchArgs, wall: f64) -> Value {
-    let worst = out.goals.iter().map(|g| g.delta_e00).fold(0.0, f64::max);
-    json!({
-        "scene": args.scene.display().to_string(),
-        "out_scene": Path::new(&args.out_scene).display().to_string(),
-        "delta_e00": out.goals[0].delta_e00,
-        "delta_e00_max": worst,
-        "reachable": out.reachable,
-        "reachable_limit_delta_e00": REACHABLE_DELTA_E,
-        "goals": out.goals.iter().map(|g| {
-            let mut v = point_json(&g.goal.at);
-            v.insert("target".into(), json!({"L": g.goal.lab[0], "a": g.goal.lab[1], "b": g.goal.lab[2]}));
-            v.insert("achieved".into(), colour_json(&g.achieved));
-            v.insert("delta_e00".into(), json!(g.delta_e00));
-            Value::Object(v)
-        }).collect::<Vec<_>>(),
-        "thicknesses_nm": out.variables.iter().zip(&out.thicknesses_nm).map(|(v, t)| json!({
-            "pointer": v.pointer, "material": v.material, "value": t,
-            "low": v.low_nm, "high": v.high_nm,
-        })).collect::<Vec<_>>(),
-        "total_thickness_nm": out.total_nm,
-        "total_thickness_range_nm": [out.total_range_nm.0, out.total_range_nm.1],
-        "evaluations": out.evaluations,
-        "max_evals": args.max_evals,
-        "stopped": out.stopped.name(),
-        "wall_time_s": wall,
-        "seed": args.seed,
-    })
+    let mut m = serde_json::Map::new();
+    m.insert("scene".into(), json!(args.scene.display().to_string()));
+    m.insert(
+        "out_scene".into(),
+        json!(args.out_scene.display().to_string()),
+    );
+    m.extend(match_report(out));
+    m.insert("max_evals".into(), json!(args.max_evals));
+    m.insert("wall_time_s".into(), json!(wall));
+    m.insert("seed".into(), json!(args.seed));
+    Value::Object(m)
 }

@@ -4,13 +4,13 @@ use std::path::PathBuf;
 use std::time::Instant;
 
 use lamella::design::coating::At;
-use lamella::design::tolerance::{Stats, ToleranceSettings, tolerance};
+use lamella::design::report::tolerance_report;
+use lamella::design::tolerance::{ToleranceSettings, tolerance};
 use lamella::scene::Sigma;
 use serde_json::{Value, json};
 
 use super::color::ViewArgs;
 use super::design_args::{Format, json_bytes};
-use super::matching::point_json;
 use super::{CliResult, Failure, load_scene, write_out};
 
 /// Flags of `lamella tolerance` (the command is described in `cli::args`).
@@ -64,13 +64,6 @@ pub struct ToleranceArgs {
     /// Write the report here instead of stdout.
     #[arg(short = 'o', long = "output")]
     pub output: Option<PathBuf>,
-}
-
-fn stats_json(s: &Stats) -> Value {
-    json!({
-        "delta_e00_p50": s.p50, "delta_e00_p95": s.p95, "delta_e00_max": s.max,
-        "yield": s.yield_fraction,
-    })
 }
 
 /// Runs the command.
@@ -144,74 +137,11 @@ pub fn run(args: &ToleranceArgs) -> CliResult {
         }
         e => Failure::scene(&args.scene, e),
     })?;
-    let mut report = stats_json(&out.overall);
-    let obj = report.as_object_mut().expect("an object");
-    obj.insert("limit_delta_e00".into(), json!(args.limit));
-    obj.insert("per_period".into(), json!(args.per_period));
-    obj.insert("deposited_layers".into(), json!(out.deposited_layers));
-    obj.insert("samples".into(), json!(args.samples));
-    obj.insert(
-        "sigma".into(),
-        match thickness {
-            Sigma::Nm(s) => json!({"nm": s, "n": args.sigma_n}),
-            Sigma::Pct(p) => json!({"pct": p, "n": args.sigma_n}),
-        },
-    );
-    let counted = out.points.iter().zip(&out.counted).filter(|(_, c)| **c);
-    obj.insert(
-        if coating {
-            "yield_geometries"
-        } else {
-            "yield_angles_deg"
-        }
-        .into(),
-        counted
-            .map(|(p, _)| match p {
-                At::Angle(a) => json!(a),
-                At::Geometry(g) => json!(g.name),
-            })
-            .collect(),
-    );
-    obj.insert(
-        if coating { "geometries" } else { "angles" }.into(),
-        out.points
-            .iter()
-            .zip(&out.per_point)
-            .zip(&out.nominal_lab)
-            .zip(&out.counted)
-            .map(|(((p, s), lab), counted)| {
-                let mut v = stats_json(s);
-                let o = v.as_object_mut().expect("an object");
-                o.extend(point_json(p));
-                o.insert("nominal_lab".into(), json!(lab));
-                o.insert("in_yield".into(), json!(counted));
-                v
-            })
-            .collect(),
-    );
-    obj.insert(
-        "sensitivity".into(),
-        out.sensitivity
-            .iter()
-            .enumerate()
-            .map(|(rank, s)| {
-                let mut entry = json!({
-                    "rank": rank + 1,
-                    "pointer": s.layer.pointer,
-                    "material": s.layer.material,
-                    "thickness_nm": s.layer.nominal_nm,
-                    "sigma_nm": s.sigma_nm,
-                    "delta_e00_per_sigma_thickness": s.delta_e00_thickness,
-                });
-                // Only with --sigma-n (left out, never null, without it).
-                if let Some(d) = s.delta_e00_index {
-                    entry["delta_e00_per_sigma_index"] = json!(d);
-                }
-                entry
-            })
-            .collect(),
-    );
-    obj.insert("seed".into(), json!(args.seed));
-    obj.insert("wall_time_s".into(), json!(started.elapsed().as_secs_f64()));
-    write_out(args.output.as_deref(), &[json_bytes(&report)])
+    let mut report = tolerance_report(&out, &settings);
+    report.insert("seed".into(), json!(args.seed));
+    report.insert("wall_time_s".into(), json!(started.elapsed().as_secs_f64()));
+    write_out(
+        args.output.as_deref(),
+        &[json_bytes(&Value::Object(report))],
+    )
 }
