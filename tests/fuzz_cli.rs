@@ -107,3 +107,39 @@ fn mutated_command_lines_exit_0_1_or_2() {
         assert!(outcomes.contains(&expected), "never {expected:?}");
     }
 }
+
+/// The `cli` fuzz target compiles the binary's `cli` module inside the fuzz
+/// crate, which is built only by `cargo fuzz`: every crate that module uses
+/// must be a dependency there too, or the fuzz build breaks unnoticed.
+#[test]
+fn fuzz_crate_has_every_dependency_of_the_cli_module() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let manifest = |p: &str| std::fs::read_to_string(root.join(p)).unwrap();
+    let dependencies = |text: &str| -> Vec<String> {
+        text.split("[dependencies]")
+            .nth(1)
+            .unwrap_or("")
+            .lines()
+            .take_while(|l| !l.starts_with('['))
+            .filter_map(|l| l.split_once('=').map(|(name, _)| name.trim().to_owned()))
+            .filter(|name| !name.is_empty() && !name.starts_with('#'))
+            .collect()
+    };
+    let fuzz = dependencies(&manifest("fuzz/Cargo.toml"));
+    let mut sources = String::new();
+    for entry in std::fs::read_dir(root.join("src/cli")).unwrap() {
+        sources.push_str(&std::fs::read_to_string(entry.unwrap().path()).unwrap());
+    }
+    for name in dependencies(&manifest("Cargo.toml")) {
+        let path = name.replace('-', "_");
+        let needle = format!("{path}::");
+        let used = sources.match_indices(&needle).any(|(i, _)| {
+            let before = sources[..i].chars().next_back();
+            !before.is_some_and(|c| c.is_alphanumeric() || c == '_' || c == ':')
+        });
+        assert!(
+            !used || fuzz.contains(&name),
+            "src/cli uses `{name}`; add it to fuzz/Cargo.toml's [dependencies]"
+        );
+    }
+}
