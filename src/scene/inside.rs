@@ -28,6 +28,25 @@ pub struct LayerAbsorption {
     pub values: Vec<Vec<Vec<f64>>>,
 }
 
+impl LayerAbsorption {
+    /// Each column's mean over the wavelengths at each angle, `[a][c]`.
+    pub fn mean_over_wavelengths(&self) -> Vec<Vec<f64>> {
+        self.values
+            .iter()
+            .map(|row| {
+                (0..self.columns.len())
+                    .map(|c| row.iter().map(|cols| cols[c]).sum::<f64>() / row.len() as f64)
+                    .collect()
+            })
+            .collect()
+    }
+
+    /// Whether any layer absorbs anywhere on the grid.
+    pub fn absorbs(&self) -> bool {
+        self.values.iter().flatten().flatten().any(|&v| v != 0.0)
+    }
+}
+
 /// The photonic bands of one repeat group's period over the scene's grid.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Bands {
