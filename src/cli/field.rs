@@ -5,15 +5,12 @@ use std::path::{Path, PathBuf};
 
 use lamella::design::variables::every_layer;
 use lamella::optics::FieldPoint;
-use lamella::scene::{Scene, Substrate};
+use lamella::scene::{FIELD_POINTS, Scene, Substrate};
 use serde_json::{Value, json};
 
 use super::choices::WaveChoice;
 use super::spectrum::Format;
 use super::{CliResult, Failure, load_spectral_scene, write_out};
-
-/// Depths sampled when --points is not given.
-pub const DEFAULT_POINTS: usize = 1000;
 
 /// Flags of `lamella field` (the command is described in `cli::args`).
 #[derive(Debug, Clone, clap::Args)]
@@ -31,7 +28,7 @@ pub struct Args {
     pub polarization: WaveChoice,
     /// Depths sampled evenly over the stack and a margin of the incident
     /// and exit media (2–1000000); both sides of every interface are added.
-    #[arg(long, default_value_t = DEFAULT_POINTS)]
+    #[arg(long, default_value_t = FIELD_POINTS)]
     pub points: usize,
     /// Output format.
     #[arg(long, value_enum, default_value = "csv")]

@@ -14,6 +14,9 @@ use crate::optics::{self, FieldPoint, MediumTerms, Node, Probe};
 /// results (absorption per layer, field profiles).
 pub const MAX_RESOLVED_LAYERS: u64 = 1_000_000;
 
+/// Depths a field profile takes when the caller does not say.
+pub const FIELD_POINTS: usize = 1000;
+
 /// Absorptance of each layer over the scene's grid, unpolarized (the mean
 /// of s and p), averaged over the disorder ensemble.
 #[derive(Debug, Clone, PartialEq)]
