@@ -12,6 +12,9 @@ use crate::angle_colour::{Side, Viewing};
 use crate::error::Result;
 use crate::scene::Scene;
 
+/// A chart with wavelength across and angle up.
+pub(super) type Plot<'a, DB> = ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
+
 /// Values on the scene's wavelength × angle grid.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ReflectanceMap {
@@ -73,10 +76,7 @@ impl ReflectanceMap {
         area: &'a DrawingArea<DB, Shift>,
         s: &Style,
         x_labels: usize,
-    ) -> std::result::Result<
-        ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>,
-        DrawingAreaErrorKind<DB::ErrorType>,
-    > {
+    ) -> std::result::Result<Plot<'a, DB>, DrawingAreaErrorKind<DB::ErrorType>> {
         let (we, ae) = (edges(&self.wavelengths), edges(&self.angles));
         let mut chart = ChartBuilder::on(area)
             .margin_top(s.px(8.0))
