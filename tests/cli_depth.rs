@@ -402,3 +402,99 @@ fn bands_refuse_a_stack_without_a_repeat_group() {
     refused(&["bands", "scenes/kestrel_ink_print.json"], "repeat group");
     refused(&["bands", "scenes/pearl_compact_lid.json"], "coating");
 }
+
+/// `chart --kind field` needs a wavelength and one polarization; `--kind
+/// bands` needs a repeat group; both write the file asked for.
+#[test]
+fn field_and_bands_charts_from_the_command_line() {
+    let dir = temp_dir("depth-charts");
+    let png = dir.join("field.png");
+    let svg = dir.join("bands.svg");
+    let (png, svg) = (png.to_str().unwrap(), svg.to_str().unwrap());
+    let mirror = "scenes/quarter_wave_mirror.json";
+    ok(&[
+        "chart",
+        mirror,
+        "--kind",
+        "field",
+        "--wavelength",
+        "560",
+        "--angle",
+        "20",
+        "--polarization",
+        "p",
+        "-o",
+        png,
+        "--size",
+        "480x320",
+    ]);
+    assert!(std::fs::read(png).unwrap().starts_with(b"\x89PNG"));
+    ok(&[
+        "chart",
+        mirror,
+        "--kind",
+        "bands",
+        "--with-reflectance",
+        "-o",
+        svg,
+        "--size",
+        "480x320",
+    ]);
+    assert!(std::fs::read_to_string(svg).unwrap().contains("<svg"));
+    refused(
+        &[
+            "chart",
+            mirror,
+            "--kind",
+            "field",
+            "--polarization",
+            "s",
+            "-o",
+            png,
+        ],
+        "--wavelength",
+    );
+    refused(
+        &[
+            "chart",
+            mirror,
+            "--kind",
+            "field",
+            "--wavelength",
+            "560",
+            "-o",
+            png,
+        ],
+        "unpolarized",
+    );
+    refused(
+        &[
+            "chart",
+            "scenes/kestrel_ink_print.json",
+            "--kind",
+            "bands",
+            "-o",
+            svg,
+        ],
+        "repeat group",
+    );
+}
+
+/// The report draws the stop bands for a scene with a repeat group and
+/// tabulates the absorption per layer for an absorbing stack.
+#[test]
+fn report_adds_bands_and_absorption_where_they_apply() {
+    let dir = temp_dir("depth-report");
+    let out = dir.join("print");
+    ok(&[
+        "report",
+        "scenes/kestrel_ink_print.json",
+        "--size",
+        "480x320",
+        "-o",
+        out.to_str().unwrap(),
+    ]);
+    let html = std::fs::read_to_string(out.join("index.html")).unwrap();
+    assert!(html.contains("Absorption per layer") && html.contains("<td>melanin</td>"));
+    assert!(!out.join("bands.png").exists());
+}
