@@ -498,3 +498,17 @@ fn report_adds_bands_and_absorption_where_they_apply() {
     assert!(html.contains("Absorption per layer") && html.contains("<td>melanin</td>"));
     assert!(!out.join("bands.png").exists());
 }
+
+/// A stack too long to resolve layer by layer is refused before any work.
+#[test]
+fn layer_by_layer_views_refuse_very_long_stacks() {
+    let dir = temp_dir("depth-long");
+    let long = write(
+        &dir,
+        "long.json",
+        &MIRROR.replace(r#""repeat": 4"#, r#""repeat": 10000000"#),
+    );
+    let s = long.to_str().unwrap();
+    refused(&["spectrum", s, "--layer-absorption"], "layer by layer");
+    refused(&["field", s, "--wavelength", "550"], "layer by layer");
+}

@@ -45,8 +45,8 @@ pub enum Command {
         #[arg(short = 'o', long = "output")]
         output: Option<PathBuf>,
     },
-    /// |E|² against depth through the stack at one wavelength, angle and
-    /// polarization (the standing wave inside the film).
+    /// The electric field intensity |E|² against depth through the stack at
+    /// one wavelength, angle and polarization (the standing wave in the film).
     ///
     /// Columns: z_nm (depth from the first interface, negative in the
     /// incident medium), layer (0 for the incident medium, 1 … K for the
