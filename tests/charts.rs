@@ -9,7 +9,7 @@ use std::path::{Path, PathBuf};
 
 use lamella::angle_colour::Viewing;
 use lamella::chart::{self, AbTravel, AngleStrip, Chromaticity, ReflectanceMap, SpectraChart};
-use lamella::chart::{ThicknessAngle, Variation};
+use lamella::chart::{BandsChart, FieldChart, ThicknessAngle, Variation};
 use lamella::scene::Scene;
 
 /// A five-period quarter-wave mirror on a coarse grid (fast in debug builds).
@@ -338,7 +338,36 @@ fn all_kinds() -> Vec<(&'static str, String, Vec<u8>)> {
     both_formats!("map", ReflectanceMap::compute(&a, &va).unwrap());
     both_formats!("chromaticity", Chromaticity::compute(&both).unwrap());
     both_formats!("ab-travel", AbTravel::compute(&both).unwrap());
+    both_formats!("field", FieldChart::compute(&a, 550.0, 30.0, 1).unwrap());
+    both_formats!("bands", BandsChart::compute(&a, None).unwrap());
+    both_formats!(
+        "bands-with-reflectance",
+        BandsChart::compute(&a, Some(&va)).unwrap()
+    );
     out
+}
+
+/// The field chart's shaded regions are the media crossed in order (air,
+/// five periods of two layers, glass), joined end to end, and its stop
+/// bands are the engine's.
+#[test]
+fn field_regions_follow_the_stack_and_bands_are_the_engines() {
+    let a = scene(MIRROR);
+    let c = FieldChart::compute(&a, 550.0, 0.0, 0).unwrap();
+    assert_eq!(c.materials, ["air", "tio2", "sio2_film", "glass"]);
+    let order: Vec<usize> = c.regions.iter().map(|r| r.material).collect();
+    let mut expected = vec![0];
+    expected.extend([1, 2].repeat(5));
+    expected.push(3);
+    assert_eq!(order, expected);
+    for w in c.regions.windows(2) {
+        assert_eq!(w[0].to_nm, w[1].from_nm);
+    }
+    assert_eq!(c.regions[1].from_nm, 0.0);
+    assert!((c.regions[10].to_nm - 5.0 * (57.0 + 94.0)).abs() < 1e-6);
+    let b = BandsChart::compute(&a, None).unwrap();
+    assert_eq!(b.stop_bands, a.bands().unwrap().stop_bands);
+    assert!(b.reflectance.is_none());
 }
 
 /// Every kind gives well-formed SVG with text as outlines, and PNG of the size asked.
@@ -619,6 +648,7 @@ fn report_writes_every_chart_and_one_html_page() {
         "map",
         "chromaticity",
         "ab-travel",
+        "bands",
     ] {
         for ext in ["png", "svg"] {
             assert!(

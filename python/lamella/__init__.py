@@ -6,7 +6,8 @@ renders and the design tools (match, tolerance, fit, sweep, multiangle) of the
 those the command line prints.
 
 Start with ``Scene.load(path)`` or ``Scene.from_dict(d)``, then
-``scene.spectrum()`` and ``scene.color()``. Units: wavelengths and thicknesses
+``scene.spectrum()`` and ``scene.color()``; inside the stack,
+``scene.layer_absorption()``, ``scene.field(...)`` and ``scene.bands()``. Units: wavelengths and thicknesses
 in nm, angles in degrees, R/T/A as fractions, XYZ with the perfect reflecting
 diffuser at Y = 100. For many designs at once, ``reflectance_batch``.
 
@@ -16,8 +17,11 @@ geometry.
 """
 
 from ._lamella import (
+    Bands,
     Chart,
     Colors,
+    FieldProfile,
+    LayerAbsorption,
     NotComputableError,
     Scene,
     SceneError,
@@ -35,8 +39,11 @@ from ._lamella import match  # noqa: F401  (a soft keyword, fine as a name)
 from ._sweep import sweep
 
 __all__ = [
+    "Bands",
     "Chart",
     "Colors",
+    "FieldProfile",
+    "LayerAbsorption",
     "NotComputableError",
     "Scene",
     "SceneError",

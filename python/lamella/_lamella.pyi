@@ -68,6 +68,34 @@ class Colors:
         """One dict per angle with the keys of `lamella color --format json`."""
     def __len__(self) -> int: ...
 
+class LayerAbsorption:
+    """Absorptance per layer as written: `columns` (A_1 … A_K, A_substrate, A_backing), `values` (A, W, C)."""
+
+    columns: list[str]
+    values: npt.NDArray[np.float64]
+    wavelength_nm: Float1D
+    angle_deg: Float1D
+
+class FieldProfile:
+    """|E|² against depth: `z_nm` (N,), `layer` (N,) int64, `E2` (N,) relative to the incident wave."""
+
+    z_nm: Float1D
+    layer: npt.NDArray[np.int64]
+    E2: Float1D
+    wavelength_nm: float
+    angle_deg: float
+    polarization: Literal["s", "p"]
+
+class Bands:
+    """cos KΛ = ½ tr M of a repeat group's period: `half_trace_s`, `half_trace_p` (A, W), `stop_bands`."""
+
+    group: str
+    wavelength_nm: Float1D
+    angle_deg: Float1D
+    half_trace_s: Float2D
+    half_trace_p: Float2D
+    stop_bands: list[dict[str, Any]]
+
 class Scene:
     """A validated scene (immutable; picklable)."""
 
@@ -85,6 +113,18 @@ class Scene:
         self, wavelengths_nm: ArrayLike1D | None = None, angles_deg: ArrayLike1D | None = None
     ) -> Spectrum:
         """R, T, A for s, p and unpolarized light (bit for bit `lamella spectrum`)."""
+    def layer_absorption(self) -> LayerAbsorption:
+        """Absorptance per layer (bit for bit `lamella spectrum --layer-absorption`)."""
+    def field(
+        self,
+        wavelength_nm: float,
+        angle_deg: float = 0.0,
+        polarization: Literal["s", "p"] = "s",
+        points: int = 1000,
+    ) -> FieldProfile:
+        """|E|² against depth through the stack (as `lamella field`)."""
+    def bands(self) -> Bands:
+        """Photonic bands and stop bands of the first repeat group (as `lamella bands`)."""
     def color(
         self,
         illuminant: str | None = None,
@@ -234,6 +274,9 @@ def chart(
     thickness_range: tuple[float, float] | None = None,
     scale_range: tuple[float, float] | None = None,
     steps: int = 61,
+    wavelength: float | None = None,
+    angle: float = 0.0,
+    with_reflectance: bool = False,
 ) -> Chart:
     """`lamella chart`: a Chart object."""
 

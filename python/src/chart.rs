@@ -5,8 +5,8 @@ use std::path::PathBuf;
 
 use lamella::angle_colour::{Polarization, Viewing};
 use lamella::chart::{
-    self, AbTravel, AngleStrip, Chromaticity, Format, ReflectanceMap, SpectraChart, ThicknessAngle,
-    Variation,
+    self, AbTravel, AngleStrip, BandsChart, Chromaticity, FieldChart, Format, ReflectanceMap,
+    SpectraChart, ThicknessAngle, Variation,
 };
 use pyo3::prelude::*;
 use pyo3::types::PyBytes;
@@ -24,6 +24,8 @@ enum Kind {
     Map(ReflectanceMap),
     Chromaticity(Chromaticity),
     Ab(AbTravel),
+    Field(FieldChart),
+    Bands(BandsChart),
 }
 
 impl Kind {
@@ -35,6 +37,8 @@ impl Kind {
             Kind::Map(c) => chart::render(c, size, format),
             Kind::Chromaticity(c) => chart::render(c, size, format),
             Kind::Ab(c) => chart::render(c, size, format),
+            Kind::Field(c) => chart::render(c, size, format),
+            Kind::Bands(c) => chart::render(c, size, format),
         }
     }
 
@@ -46,6 +50,8 @@ impl Kind {
             Kind::Map(c) => chart::rgb(c, size),
             Kind::Chromaticity(c) => chart::rgb(c, size),
             Kind::Ab(c) => chart::rgb(c, size),
+            Kind::Field(c) => chart::rgb(c, size),
+            Kind::Bands(c) => chart::rgb(c, size),
         }
     }
 }
@@ -153,14 +159,18 @@ fn polarizations(names: &[String]) -> Outcome<Vec<Polarization>> {
 /// "spectra" (R, and with `transmittance` T, against wavelength at `angles`
 /// degrees for `curves`), "map" (reflectance over wavelength × angle),
 /// "chromaticity" (the CIE 1931 xy trajectory) and "ab-travel" (the a*b*
-/// trajectory and L* against angle). "spectra", "chromaticity" and
+/// trajectory and L* against angle), "field" (|E|² against depth at
+/// `wavelength` nm, `angle` degrees and `polarization` "s" or "p") and
+/// "bands" (the stop bands of the first repeat group's period, with
+/// `with_reflectance` beside the stack's reflectance map). "spectra", "chromaticity" and
 /// "ab-travel" compare the scenes in `compare` with `scene`. `size` is
 /// (width, height) in pixels; the viewing options are as for `Scene.color`.
 #[pyfunction(name = "chart")]
 #[pyo3(signature = (scene, kind="angle-strip", size=(1200, 800), compare=None, illuminant=None,
     observer=None, side="reflect", polarization="unpolarized", gamut="clip", ticks=None,
     angles=vec![0.0, 30.0, 60.0], curves=vec!["unpolarized".into(), "s".into(), "p".into()],
-    transmittance=false, layer=None, thickness_range=None, scale_range=None, steps=61))]
+    transmittance=false, layer=None, thickness_range=None, scale_range=None, steps=61,
+    wavelength=None, angle=0.0, with_reflectance=false))]
 #[allow(clippy::too_many_arguments)]
 pub fn chart_of(
     py: Python<'_>,
@@ -181,6 +191,9 @@ pub fn chart_of(
     thickness_range: Option<(f64, f64)>,
     scale_range: Option<(f64, f64)>,
     steps: usize,
+    wavelength: Option<f64>,
+    angle: f64,
+    with_reflectance: bool,
 ) -> PyResult<Chart> {
     let view = ViewArgs {
         illuminant,
@@ -265,9 +278,19 @@ pub fn chart_of(
             "map" => Kind::Map(ReflectanceMap::compute(first, viewing).map_err(at)?),
             "chromaticity" => Kind::Chromaticity(Chromaticity::compute(&pairs).map_err(at)?),
             "ab-travel" => Kind::Ab(AbTravel::compute(&pairs).map_err(at)?),
+            "field" => {
+                let wl = wavelength.ok_or_else(|| {
+                    Failure::input("kind = \"field\" needs wavelength (nm), angle and polarization \"s\" or \"p\"")
+                })?;
+                let pol = crate::inside::wave(polarization)?;
+                Kind::Field(FieldChart::compute(first, wl, angle, pol).map_err(at)?)
+            }
+            "bands" => Kind::Bands(
+                BandsChart::compute(first, with_reflectance.then_some(viewing)).map_err(at)?,
+            ),
             other => {
                 return Err(Failure::input(format!(
-                    "kind = {other:?}: expected angle-strip, thickness-angle, spectra, map, chromaticity or ab-travel"
+                    "kind = {other:?}: expected angle-strip, thickness-angle, spectra, map, chromaticity, ab-travel, field or bands"
                 )));
             }
         })

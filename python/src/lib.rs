@@ -13,6 +13,7 @@ mod convert;
 mod design;
 mod errors;
 mod files;
+mod inside;
 mod interrupt;
 mod pigment;
 mod render;
@@ -34,6 +35,9 @@ fn _lamella(m: &Bound<'_, PyModule>) -> PyResult<()> {
     m.add_class::<scene::Scene>()?;
     m.add_class::<spectrum::Spectrum>()?;
     m.add_class::<colour::Colours>()?;
+    m.add_class::<inside::LayerAbsorption>()?;
+    m.add_class::<inside::FieldProfile>()?;
+    m.add_class::<inside::Bands>()?;
     m.add_function(wrap_pyfunction!(scene::_scene_from_state, m)?)?;
     m.add_function(wrap_pyfunction!(batch::reflectance_batch, m)?)?;
     m.add_function(wrap_pyfunction!(design::match_, m)?)?;

@@ -260,6 +260,48 @@ impl Scene {
         spectrum(py, self, wavelengths_nm, angles_deg)
     }
 
+    /// layer_absorption() -> LayerAbsorption
+    ///
+    /// The unpolarized absorptance of each layer as written (a layer in a
+    /// repeat group summed over its periods), then of a substrate sheet and
+    /// a black backing, on the scene's grid: `columns` and `values` (A, W, C),
+    /// bit for bit the `A_…` columns of `lamella spectrum --layer-absorption`;
+    /// they add up to `spectrum().A`. Raises `SceneError` for a coating-only
+    /// scene or a stack too long to resolve layer by layer.
+    fn layer_absorption(&self, py: Python<'_>) -> PyResult<crate::inside::LayerAbsorption> {
+        crate::inside::layer_absorption(py, self)
+    }
+
+    /// field(wavelength_nm, angle_deg=0.0, polarization="s", points=1000) -> FieldProfile
+    ///
+    /// |E|² relative to the incident wave at `points` depths (2–1000000)
+    /// through the stack and a margin of the incident and exit media, both
+    /// sides of every interface included, as `lamella field` prints it:
+    /// arrays `z_nm`, `layer`, `E2`. Raises `SceneError` for an angle of 90°
+    /// or more, a wavelength outside a material's vouched range or table, or
+    /// a stack with incoherent layers or a substrate sheet.
+    #[pyo3(signature = (wavelength_nm, angle_deg=0.0, polarization="s", points=lamella::scene::FIELD_POINTS))]
+    fn field(
+        &self,
+        py: Python<'_>,
+        wavelength_nm: f64,
+        angle_deg: f64,
+        polarization: &str,
+        points: usize,
+    ) -> PyResult<crate::inside::FieldProfile> {
+        crate::inside::field(py, self, wavelength_nm, angle_deg, polarization, points)
+    }
+
+    /// bands() -> Bands
+    ///
+    /// cos KΛ = ½ tr M of the first repeat group's period for s and p over
+    /// the scene's grid (`half_trace_s`, `half_trace_p`, (A, W)) and the
+    /// stop bands where |½ tr M| > 1, as `lamella bands` gives them. Raises
+    /// `SceneError` for a scene without a repeat group.
+    fn bands(&self, py: Python<'_>) -> PyResult<crate::inside::Bands> {
+        crate::inside::bands(py, self)
+    }
+
     /// color(illuminant=None, observer=None, side="reflect",
     /// polarization="unpolarized", gamut="clip") -> Colors
     ///

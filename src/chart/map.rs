@@ -2,6 +2,7 @@
 //! map with a colour bar.
 
 use plotters::coord::Shift;
+use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
 use plotters::style::colors::colormaps::{ColorMap, ViridisRGB};
 
@@ -10,6 +11,9 @@ use super::{Chart, DrawResult};
 use crate::angle_colour::{Side, Viewing};
 use crate::error::Result;
 use crate::scene::Scene;
+
+/// A chart with wavelength across and angle up.
+pub(super) type Plot<'a, DB> = ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
 
 /// Values on the scene's wavelength × angle grid.
 #[derive(Debug, Clone, PartialEq)]
@@ -64,31 +68,17 @@ impl ReflectanceMap {
     fn colour(&self, v: f64) -> RGBColor {
         ViridisRGB.get_color_normalized(v.min(self.top) as f32, 0.0, self.top as f32)
     }
-}
 
-/// Cell edges: midpoints between values, half a spacing beyond the ends.
-fn edges(v: &[f64]) -> Vec<f64> {
-    if v.len() == 1 {
-        return vec![v[0] - 0.5, v[0] + 0.5];
-    }
-    let mut e = vec![v[0] - (v[1] - v[0]) / 2.0];
-    e.extend(v.windows(2).map(|w| (w[0] + w[1]) / 2.0));
-    e.push(v[v.len() - 1] + (v[v.len() - 1] - v[v.len() - 2]) / 2.0);
-    e
-}
-
-impl Chart for ReflectanceMap {
-    fn caption(&self) -> &style::Caption {
-        &self.caption
-    }
-
-    fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> DrawResult<DB> {
-        let s = Style::new(root.dim_in_pixel());
-        let body = frame(root, &self.caption, &s)?;
-        let (w, _) = body.dim_in_pixel();
-        let (left, right) = body.split_horizontally(w as i32 - s.px(150.0));
+    /// The heat map with its axes on `area`, `x_labels` wavelength ticks;
+    /// returns the chart for drawing over it.
+    pub(super) fn heat<'a, DB: DrawingBackend>(
+        &self,
+        area: &'a DrawingArea<DB, Shift>,
+        s: &Style,
+        x_labels: usize,
+    ) -> std::result::Result<Plot<'a, DB>, DrawingAreaErrorKind<DB::ErrorType>> {
         let (we, ae) = (edges(&self.wavelengths), edges(&self.angles));
-        let mut chart = ChartBuilder::on(&left)
+        let mut chart = ChartBuilder::on(area)
             .margin_top(s.px(8.0))
             .margin_right(s.px(16.0))
             .x_label_area_size(s.px(62.0))
@@ -106,7 +96,7 @@ impl Chart for ReflectanceMap {
             .y_label_formatter(&|v| format!("{}°", style::tick(v)))
             .axis_style(FRAME.stroke_width(1))
             .set_all_tick_mark_size(s.px(5.0))
-            .x_labels(10)
+            .x_labels(x_labels)
             .y_labels(10)
             .draw()?;
         let nw = self.wavelengths.len();
@@ -117,9 +107,17 @@ impl Chart for ReflectanceMap {
                 self.colour(v).filled(),
             )
         }))?;
-        // Colour bar.
-        let (_, bh) = right.dim_in_pixel();
-        let mut bar = ChartBuilder::on(&right)
+        Ok(chart)
+    }
+
+    /// The colour bar on `area`.
+    pub(super) fn colour_bar<DB: DrawingBackend>(
+        &self,
+        area: &DrawingArea<DB, Shift>,
+        s: &Style,
+    ) -> DrawResult<DB> {
+        let (_, bh) = area.dim_in_pixel();
+        let mut bar = ChartBuilder::on(area)
             .margin_top(s.px(8.0))
             .margin_bottom(s.px(62.0))
             .margin_left(s.px(10.0))
@@ -148,5 +146,31 @@ impl Chart for ReflectanceMap {
             .y_labels(6)
             .draw()?;
         Ok(())
+    }
+}
+
+/// Cell edges: midpoints between values, half a spacing beyond the ends.
+pub(super) fn edges(v: &[f64]) -> Vec<f64> {
+    if v.len() == 1 {
+        return vec![v[0] - 0.5, v[0] + 0.5];
+    }
+    let mut e = vec![v[0] - (v[1] - v[0]) / 2.0];
+    e.extend(v.windows(2).map(|w| (w[0] + w[1]) / 2.0));
+    e.push(v[v.len() - 1] + (v[v.len() - 1] - v[v.len() - 2]) / 2.0);
+    e
+}
+
+impl Chart for ReflectanceMap {
+    fn caption(&self) -> &style::Caption {
+        &self.caption
+    }
+
+    fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> DrawResult<DB> {
+        let s = Style::new(root.dim_in_pixel());
+        let body = frame(root, &self.caption, &s)?;
+        let (w, _) = body.dim_in_pixel();
+        let (left, right) = body.split_horizontally(w as i32 - s.px(150.0));
+        self.heat(&left, &s, 10)?;
+        self.colour_bar(&right, &s)
     }
 }

@@ -1,13 +1,16 @@
-//! Charts of colour against angle: drawn into a plotters backend from computed
-//! data, returned as an SVG document, an RGB buffer or PNG bytes (no file I/O).
+//! Charts of colour against angle, of spectra and of what happens inside
+//! the stack: drawn into a plotters backend from computed data, returned as
+//! an SVG document, an RGB buffer or PNG bytes (no file I/O).
 //!
 //! Each kind has a data type that computes what it shows from a scene and a
 //! [`Viewing`](crate::angle_colour::Viewing) and implements [`Chart`]; the same
 //! drawing code serves both formats (see [`canvas`]).
 
 mod ab;
+mod bands;
 pub mod canvas;
 mod chromaticity;
+mod field;
 mod font;
 pub mod gamut;
 mod map;
@@ -20,7 +23,9 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 
 pub use ab::AbTravel;
+pub use bands::BandsChart;
 pub use chromaticity::Chromaticity;
+pub use field::{FieldChart, Region};
 pub use map::ReflectanceMap;
 pub use spectra::SpectraChart;
 pub use strip::AngleStrip;

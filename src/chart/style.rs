@@ -37,6 +37,13 @@ pub const SERIES: [RGBColor; 7] = [
     RGBColor(0x00, 0x00, 0x00),
 ];
 
+/// `c` faded toward white, keeping the fraction `keep` of its colour
+/// (opaque, so neighbouring cells show no seams).
+pub fn faded(c: RGBColor, keep: f64) -> RGBColor {
+    let fade = |v: u8| (255.0 - keep * (255.0 - v as f64)).round() as u8;
+    RGBColor(fade(c.0), fade(c.1), fade(c.2))
+}
+
 /// Sizes scaled to the image: every length is given for a 1200 × 800 chart.
 #[derive(Debug, Clone, Copy)]
 pub struct Style {

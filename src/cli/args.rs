@@ -25,7 +25,9 @@ pub enum Command {
     /// angle and wavelength of a scene.
     ///
     /// Columns: wavelength_nm, angle_deg, R_s, R_p, R, T_s, T_p, T and A
-    /// (unpolarized R, T and A are the means of s and p).
+    /// (unpolarized R, T and A are the means of s and p); with
+    /// --layer-absorption also A_1 … A_K, then A_substrate and A_backing
+    /// for a substrate sheet.
     #[command(after_help = help::SPECTRUM)]
     Spectrum {
         /// Scene file (JSON).
@@ -33,10 +35,47 @@ pub enum Command {
         /// Output format.
         #[arg(long, value_enum, default_value = "csv")]
         format: cli::spectrum::Format,
+        /// Add the unpolarized absorptance of each layer as written in the
+        /// scene's stack (A_1 … A_K, a layer in a repeat group summed over
+        /// its periods), then A_substrate and A_backing when the substrate
+        /// is a sheet (A_backing for a black backing); they add up to A.
+        #[arg(long)]
+        layer_absorption: bool,
         /// Write to this file (atomically) instead of stdout.
         #[arg(short = 'o', long = "output")]
         output: Option<PathBuf>,
     },
+    /// The electric field intensity |E|² against depth through the stack at
+    /// one wavelength, angle and polarization (the standing wave in the film).
+    ///
+    /// Columns: z_nm (depth from the first interface, negative in the
+    /// incident medium), layer (0 for the incident medium, 1 … K for the
+    /// layers as written in the scene's stack, a layer in a repeat group
+    /// numbered the same in every period, K + 1 for the substrate) and E2
+    /// (|E|² relative to the incident wave's). A margin of the incident and
+    /// exit media is included, and both sides of every interface. The
+    /// nominal design is shown (thickness disorder is not applied); a stack
+    /// with incoherent layers or a substrate sheet is refused. JSON adds the
+    /// wavelength, angle, polarization and each layer's pointer, material and
+    /// thickness.
+    #[command(after_help = help::FIELD)]
+    Field(cli::field::Args),
+    /// Photonic bands of a repeat group: cos KΛ = ½ tr M of one period for s
+    /// and p over the scene's wavelengths and angles, and the stop bands.
+    ///
+    /// The period is that of the first repeat group in the stack (depth
+    /// first), at its nominal thicknesses (the first period of a graded
+    /// group). Where |½ tr M| > 1 the Bloch wave decays from period to
+    /// period: a stop band of the infinite stack (P. Yeh, A. Yariv and C.-S.
+    /// Hong, J. Opt. Soc. Am. 67, 423, 1977). CSV columns: wavelength_nm,
+    /// angle_deg, half_trace_s, half_trace_p; with --stop-bands: angle_deg,
+    /// polarization, from_nm, to_nm (edges refined between grid points; a
+    /// band running off the grid ends at its first or last wavelength).
+    /// JSON holds both: half_trace_s and half_trace_p as [angle][wavelength]
+    /// arrays and stop_bands as objects {angle_deg, polarization, from_nm,
+    /// to_nm}.
+    #[command(after_help = help::BANDS)]
+    Bands(cli::bands::Args),
     /// CIE XYZ, xy, CIELAB, LCh, sRGB and hex at every angle of a scene, with
     /// the colour travel between angles.
     ///
@@ -134,8 +173,9 @@ pub enum Command {
     /// List the built-in materials: model, valid range, n and k at 550 nm, source.
     #[command(after_help = help::MATERIALS)]
     Materials,
-    /// Draw a chart of colour against angle as PNG or SVG (format from the
-    /// -o extension).
+    /// Draw a chart of colour against angle, spectra, the field inside the
+    /// stack or its photonic bands as PNG or SVG (format from the -o
+    /// extension).
     #[command(after_help = help::CHART)]
     Chart(cli::chart::Args),
     /// Write every chart of a scene and an HTML report into a folder.
@@ -153,8 +193,11 @@ pub fn run(args: Args) -> CliResult {
         Command::Spectrum {
             scene,
             format,
+            layer_absorption,
             output,
-        } => cli::spectrum::run(&scene, format, output.as_deref()),
+        } => cli::spectrum::run(&scene, format, layer_absorption, output.as_deref()),
+        Command::Field(a) => cli::field::run(&a),
+        Command::Bands(a) => cli::bands::run(&a),
         Command::Color {
             scene,
             format,

@@ -5,8 +5,8 @@ use std::sync::atomic::{AtomicU64, Ordering};
 
 use lamella::angle_colour::{Polarization, Viewing};
 use lamella::chart::{
-    self, AbTravel, AngleStrip, Chromaticity, Format, ReflectanceMap, SpectraChart, ThicknessAngle,
-    Variation,
+    self, AbTravel, AngleStrip, BandsChart, Chromaticity, FieldChart, Format, ReflectanceMap,
+    SpectraChart, ThicknessAngle, Variation,
 };
 use lamella::scene::Scene;
 
@@ -36,6 +36,13 @@ pub enum Kind {
     Chromaticity,
     /// The angle trajectory on the CIELAB a*b* plane, with L* against angle.
     AbTravel,
+    /// |E|² against depth through the stack over shaded bands for its
+    /// media, at --wavelength, --angle and --polarization (s or p).
+    Field,
+    /// The stop bands of the first repeat group's period over wavelength
+    /// and angle, for s and p (with --with-reflectance beside the whole
+    /// stack's reflectance map).
+    Bands,
 }
 
 impl Kind {
@@ -97,6 +104,17 @@ pub struct Args {
     /// (the default when --layer is not given: 0.8,1.2).
     #[arg(long, value_name = "FROM,TO", value_parser = parse_pair)]
     pub scale_range: Option<(f64, f64)>,
+    /// field: the vacuum wavelength in nm.
+    #[arg(long)]
+    pub wavelength: Option<f64>,
+    /// field: the angle of incidence in degrees.
+    #[arg(long, default_value_t = 0.0)]
+    pub angle: f64,
+    /// bands: also draw the whole stack's reflectance map (transmittance
+    /// with --side transmit; --polarization applies), with the stop-band
+    /// edges marked on it.
+    #[arg(long)]
+    pub with_reflectance: bool,
     /// thickness-angle: number of thickness samples (2–200); the field is
     /// interpolated between them, and the design value is always one.
     #[arg(long, default_value_t = ThicknessAngle::DEFAULT_STEPS)]
@@ -213,6 +231,27 @@ pub fn run(args: &Args) -> CliResult {
         }
         Kind::AbTravel => {
             let c = AbTravel::compute(&pairs).map_err(at)?;
+            chart::render(&c, args.size, format)
+        }
+        Kind::Field => {
+            let wavelength = args.wavelength.ok_or_else(|| {
+                Failure::input("chart --kind field needs --wavelength NM (and --angle, --polarization s or p)")
+            })?;
+            let pol = match args.view.polarization {
+                PolarizationChoice::S => 0,
+                PolarizationChoice::P => 1,
+                PolarizationChoice::Unpolarized => {
+                    return Err(Failure::input(
+                        "--polarization = unpolarized: chart --kind field follows one wave; give --polarization s or p",
+                    ));
+                }
+            };
+            let c = FieldChart::compute(scene, wavelength, args.angle, pol).map_err(at)?;
+            chart::render(&c, args.size, format)
+        }
+        Kind::Bands => {
+            let c = BandsChart::compute(scene, args.with_reflectance.then_some(viewing))
+                .map_err(at)?;
             chart::render(&c, args.size, format)
         }
     }

@@ -61,3 +61,30 @@ impl From<GamutChoice> for GamutMapping {
         }
     }
 }
+
+/// `--polarization` where one wave is followed (`field`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum WaveChoice {
+    /// s (TE): the electric field normal to the plane of incidence.
+    S,
+    /// p (TM): the electric field in the plane of incidence.
+    P,
+}
+
+impl WaveChoice {
+    /// The engine's polarization number (0 = s, 1 = p).
+    pub fn index(self) -> usize {
+        match self {
+            WaveChoice::S => 0,
+            WaveChoice::P => 1,
+        }
+    }
+
+    /// "s" or "p".
+    pub fn name(self) -> &'static str {
+        match self {
+            WaveChoice::S => "s",
+            WaveChoice::P => "p",
+        }
+    }
+}

@@ -19,7 +19,20 @@ Example:
 /// `lamella spectrum`.
 pub const SPECTRUM: &str = "\
 Example:
-  lamella spectrum scenes/teal_label_foil.json -o foil-spectrum.csv";
+  lamella spectrum scenes/teal_label_foil.json -o foil-spectrum.csv
+
+Example (where the light is absorbed, layer by layer):
+  lamella spectrum scenes/kestrel_ink_print.json --layer-absorption -o print-absorption.csv";
+
+/// `lamella field`.
+pub const FIELD: &str = "\
+Example (the s-polarized standing wave at 560 nm, normal incidence):
+  lamella field scenes/quarter_wave_mirror.json --wavelength 560 --angle 0 --polarization s -o mirror-field.csv";
+
+/// `lamella bands`.
+pub const BANDS: &str = "\
+Example (the stop-band edges at every angle, for s and p):
+  lamella bands scenes/quarter_wave_mirror.json --stop-bands -o mirror-stop-bands.csv";
 
 /// `lamella color`.
 pub const COLOR: &str = "\

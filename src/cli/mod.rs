@@ -1,10 +1,12 @@
 //! The command-line front end: argument definitions and glue.
 
 pub mod args;
+pub mod bands;
 pub mod chart;
 pub mod choices;
 pub mod color;
 pub mod design_args;
+pub mod field;
 pub mod fit;
 pub mod help;
 pub mod matching;

@@ -8,12 +8,13 @@ use std::path::PathBuf;
 use lamella::angle_colour::{Polarization, Viewing};
 use lamella::chart::canvas::escape;
 use lamella::chart::{
-    self, AbTravel, AngleStrip, Chromaticity, Format, ReflectanceMap, Series, SpectraChart,
-    ThicknessAngle, Variation,
+    self, AbTravel, AngleStrip, BandsChart, Chromaticity, Format, ReflectanceMap, Series,
+    SpectraChart, ThicknessAngle, Variation,
 };
 use lamella::colorimetry::travel;
+use lamella::design::variables::every_layer;
 use lamella::report::{CAUTIONS, VERSION, utc_timestamp};
-use lamella::scene::{Item, Scene};
+use lamella::scene::{Item, LayerAbsorption, Scene};
 
 use super::color::ViewArgs;
 use super::design_args::Progress;
@@ -83,7 +84,8 @@ pub fn run(args: &Args) -> CliResult {
     let at = |e| Failure::scene(&args.scene, e);
     std::fs::create_dir_all(&args.output).map_err(|e| Failure::io(&args.output, e))?;
     let pair = [(&scene, &viewing)];
-    let bar = Progress::new(6, "charts");
+    let periodic = scene.stack.iter().any(|i| matches!(i, Item::Repeat(_)));
+    let bar = Progress::new(6 + periodic as u64, "charts");
     let mut drawn = Vec::new();
     let mut emit = |stem: &'static str,
                     heading: &'static str,
@@ -145,12 +147,25 @@ pub fn run(args: &Args) -> CliResult {
     emit("ab-travel", "CIELAB travel", &|f| {
         chart::render(&ab, size, f)
     })?;
+    if periodic {
+        let bands = BandsChart::compute(&scene, Some(&viewing)).map_err(at)?;
+        emit("bands", "Photonic stop bands of the repeat group", &|f| {
+            chart::render(&bands, size, f)
+        })?;
+    }
     bar.finish();
     let series = Series::of_scene(&scene, &viewing).map_err(at)?;
+    // A stack too long to resolve layer by layer goes without the table.
+    let absorption = match scene.layer_absorption() {
+        Ok(a) => Some(a),
+        Err(lamella::Error::Invalid { .. }) => None,
+        Err(e) => return Err(at(e)),
+    };
     let html = page(
         &scene,
         &viewing,
         &series,
+        absorption.as_ref().filter(|a| a.absorbs()),
         &drawn,
         &Provenance::of_this_run(),
     );
@@ -200,6 +215,7 @@ fn page(
     scene: &Scene,
     viewing: &Viewing,
     series: &Series,
+    absorption: Option<&LayerAbsorption>,
     drawn: &[Drawn],
     made: &Provenance,
 ) -> String {
@@ -305,6 +321,9 @@ fn page(
         );
     }
     h.push_str("</section>\n");
+    if let Some(a) = absorption {
+        absorption_table(scene, a, &mut h);
+    }
     for d in drawn {
         let svg = d
             .svg
@@ -324,6 +343,30 @@ fn page(
         escape(&made.command)
     );
     h
+}
+
+/// The mean absorptance of each layer as written (and the sheet and
+/// backing) at each angle, in %.
+fn absorption_table(scene: &Scene, a: &LayerAbsorption, h: &mut String) {
+    let mean = a.mean_over_wavelengths();
+    h.push_str("<section><h2>Absorption per layer</h2><p>Unpolarized absorptance of each layer as written (a layer in a repeat group summed over its periods), averaged over the scene's wavelengths, in % of the incident light (<code>lamella spectrum --layer-absorption</code> gives every wavelength).</p><table><thead><tr><th>Column</th><th>Material</th>");
+    for angle in &scene.angles_deg {
+        let _ = write!(h, "<th>{angle}°</th>");
+    }
+    h.push_str("</tr></thead><tbody>\n");
+    let layers = every_layer(scene, &scene.stack);
+    for (c, name) in a.columns.iter().enumerate() {
+        let material = layers.get(c).map_or_else(
+            || name.trim_start_matches("A_").to_string(),
+            |l| l.material.clone(),
+        );
+        let _ = write!(h, "<tr><td>{name}</td><td>{}</td>", escape(&material));
+        for row in &mean {
+            let _ = write!(h, "<td class=n>{:.2}</td>", 100.0 * row[c]);
+        }
+        h.push_str("</tr>\n");
+    }
+    h.push_str("</tbody></table></section>\n");
 }
 
 const CSS: &str = "body{font-family:'DejaVu Sans',Verdana,sans-serif;color:#1b2330;max-width:1240px;margin:2em auto;padding:0 1em;line-height:1.45}\

@@ -1,4 +1,5 @@
-//! `lamella spectrum`: R, T and A per polarization on the scene's grid.
+//! `lamella spectrum`: R, T and A per polarization on the scene's grid,
+//! optionally with the absorptance of each layer.
 
 use std::path::Path;
 
@@ -6,7 +7,7 @@ use std::io::{self, Write};
 use std::sync::Mutex;
 
 use lamella::optics::{Rows, Rt};
-use lamella::scene::{check_point, check_spectra};
+use lamella::scene::{LayerAbsorption, check_point, check_spectra};
 use rayon::prelude::*;
 
 use super::{CliResult, Failure, load_spectral_scene, output};
@@ -33,14 +34,28 @@ pub const COLUMNS: [&str; 9] = [
     "A",
 ];
 
-/// Runs the command.
-pub fn run(scene_path: &Path, format: Format, out: Option<&Path>) -> CliResult {
+/// Runs the command; with `layers`, the absorptance of each layer as
+/// written follows A.
+pub fn run(scene_path: &Path, format: Format, layers: bool, out: Option<&Path>) -> CliResult {
     let scene = load_spectral_scene(scene_path)?;
     let at_scene = |e| Failure::scene(scene_path, e);
     scene.require_film().map_err(at_scene)?;
+    let per_layer = if layers {
+        scene
+            .check_grid_size(
+                scene.angles_deg.len(),
+                LAYER_BYTES_PER_POINT,
+                "spectrum --layer-absorption",
+            )
+            .map_err(at_scene)?;
+        Some(scene.layer_absorption().map_err(at_scene)?)
+    } else {
+        None
+    };
+    let per_layer = per_layer.as_ref();
     let written = match format {
         Format::Csv => scene
-            .with_rows(|rows| output::emit_with(out, |w| write_csv(rows, w)))
+            .with_rows(|rows| output::emit_with(out, |w| write_csv(rows, per_layer, w)))
             .map_err(at_scene)?,
         Format::Json => {
             scene
@@ -51,7 +66,7 @@ pub fn run(scene_path: &Path, format: Format, out: Option<&Path>) -> CliResult {
                 )
                 .map_err(at_scene)?;
             let text = scene
-                .with_rows(|rows| json(&scene.title, rows))
+                .with_rows(|rows| json(&scene.title, rows, per_layer))
                 .and_then(|t| t)
                 .map_err(at_scene)?;
             output::emit(out, &[text.into_bytes()])
@@ -66,6 +81,10 @@ pub fn run(scene_path: &Path, format: Format, out: Option<&Path>) -> CliResult {
 /// Bytes a grid point takes in the JSON form: R and T, seven numbers as
 /// JSON values and as text.
 const JSON_BYTES_PER_POINT: u64 = 400;
+
+/// Bytes a grid point takes with absorption per layer: its columns held
+/// whole (a generous allowance for a few dozen layers).
+const LAYER_BYTES_PER_POINT: u64 = 800;
 
 /// The engine error inside an I/O error from [`write_csv`], or the I/O
 /// error itself.
@@ -95,8 +114,12 @@ const PIECE: usize = 512;
 /// that reads back to the same f64. A value that is not finite stops the
 /// output before its batch is written, with the engine error (naming the
 /// point) inside the I/O error.
-fn write_csv(rows: &Rows, out: &mut dyn Write) -> io::Result<()> {
+fn write_csv(rows: &Rows, layers: Option<&LayerAbsorption>, out: &mut dyn Write) -> io::Result<()> {
     out.write_all(COLUMNS.join(",").as_bytes())?;
+    for c in layers.iter().flat_map(|l| &l.columns) {
+        out.write_all(b",")?;
+        out.write_all(c.as_bytes())?;
+    }
     out.write_all(b"\n")?;
     let (nw, na) = (rows.wavelengths_nm().len(), rows.angles_deg().len());
     let mut num = zmij::Buffer::new();
@@ -147,6 +170,10 @@ fn write_csv(rows: &Rows, out: &mut dyn Write) -> io::Result<()> {
                         buf.push(b',');
                         buf.extend_from_slice(t.as_bytes());
                     }
+                    for &v in layers.iter().flat_map(|l| &l.values[a][w]) {
+                        buf.push(b',');
+                        buf.extend_from_slice(nums[0].format(v).as_bytes());
+                    }
                     buf.push(b'\n');
                 }
             },
@@ -159,9 +186,9 @@ fn write_csv(rows: &Rows, out: &mut dyn Write) -> io::Result<()> {
     Ok(())
 }
 
-/// The whole grid as one JSON object; a value that is not finite is an
-/// error naming its point.
-fn json(title: &str, rows: &Rows) -> lamella::Result<String> {
+/// The whole grid as one JSON object, with the columns of `layers` after
+/// A; a value that is not finite is an error naming its point.
+fn json(title: &str, rows: &Rows, layers: Option<&LayerAbsorption>) -> lamella::Result<String> {
     let s = rows.all();
     check_spectra(&s)?;
     let per_angle = |col: usize| -> serde_json::Value {
@@ -182,6 +209,13 @@ fn json(title: &str, rows: &Rows) -> lamella::Result<String> {
     doc.insert("angle_deg".into(), s.angles_deg.clone().into());
     for (col, name) in COLUMNS[2..].iter().enumerate() {
         doc.insert((*name).into(), per_angle(col));
+    }
+    for (c, name) in layers.iter().flat_map(|l| l.columns.iter().enumerate()) {
+        let values = layers.expect("columns come from it").values.iter();
+        let column: Vec<Vec<f64>> = values
+            .map(|row| row.iter().map(|cols| cols[c]).collect())
+            .collect();
+        doc.insert(name.clone(), column.into());
     }
     Ok(serde_json::to_string(&serde_json::Value::Object(doc)).expect("finite numbers serialise"))
 }

@@ -14,6 +14,9 @@ use crate::optics::{self, FieldPoint, MediumTerms, Node, Probe};
 /// results (absorption per layer, field profiles).
 pub const MAX_RESOLVED_LAYERS: u64 = 1_000_000;
 
+/// Depths a field profile takes when the caller does not say.
+pub const FIELD_POINTS: usize = 1000;
+
 /// Absorptance of each layer over the scene's grid, unpolarized (the mean
 /// of s and p), averaged over the disorder ensemble.
 #[derive(Debug, Clone, PartialEq)]
@@ -24,8 +27,27 @@ pub struct LayerAbsorption {
     /// for a black backing behind it.
     pub columns: Vec<String>,
     /// `values[a][w][c]`: angle a, wavelength w, column c. The columns of a
-    /// point add up to its A = 1 − R − T.
+    /// point add up to its A = 1 − R − T; a lossless layer's is exactly 0.
     pub values: Vec<Vec<Vec<f64>>>,
+}
+
+impl LayerAbsorption {
+    /// Each column's mean over the wavelengths at each angle, `[a][c]`.
+    pub fn mean_over_wavelengths(&self) -> Vec<Vec<f64>> {
+        self.values
+            .iter()
+            .map(|row| {
+                (0..self.columns.len())
+                    .map(|c| row.iter().map(|cols| cols[c]).sum::<f64>() / row.len() as f64)
+                    .collect()
+            })
+            .collect()
+    }
+
+    /// Whether any layer absorbs anywhere on the grid.
+    pub fn absorbs(&self) -> bool {
+        self.values.iter().flatten().flatten().any(|&v| v != 0.0)
+    }
 }
 
 /// The photonic bands of one repeat group's period over the scene's grid.
@@ -70,18 +92,20 @@ impl Scene {
         Ok((terms, at))
     }
 
-    /// Layers as written in `stack` (depth first, a repeat's once).
-    fn written_layers(&self) -> usize {
-        fn count(items: &[Item]) -> usize {
-            items
-                .iter()
-                .map(|i| match i {
-                    Item::Layer(_) => 1,
-                    Item::Repeat(r) => count(&r.items),
-                })
-                .sum()
+    /// The medium of each layer as written in `stack` (depth first, a
+    /// repeat's once).
+    fn written_media(&self) -> Vec<usize> {
+        fn walk(items: &[Item], out: &mut Vec<usize>) {
+            for i in items {
+                match i {
+                    Item::Layer(l) => out.push(l.medium),
+                    Item::Repeat(r) => walk(&r.items, out),
+                }
+            }
         }
-        count(&self.stack)
+        let mut out = Vec::new();
+        walk(&self.stack, &mut out);
+        out
     }
 
     /// The realisations, refused when one is too long to write out.
@@ -109,14 +133,15 @@ impl Scene {
     /// from the normal flux at every interface. Every value is checked.
     pub fn layer_absorption(&self) -> Result<LayerAbsorption> {
         let stacks = self.resolved_stacks("absorption per layer")?;
-        let k = self.written_layers();
+        let mut media = self.written_media();
+        let k = media.len();
         let mut map = Vec::new();
         stack::written_layers_of_nodes(&self.stack, self.disorder.is_some(), &mut 0, &mut map);
-        let sheet = matches!(self.substrate, Substrate::Sheet { .. });
         let black = matches!(self.substrate, Substrate::Sheet { behind: None, .. });
         let mut columns: Vec<String> = (1..=k).map(|j| format!("A_{j}")).collect();
-        if sheet {
+        if let Substrate::Sheet { medium, .. } = self.substrate {
             columns.push("A_substrate".into());
+            media.push(medium);
         }
         if black {
             columns.push("A_backing".into());
@@ -147,6 +172,13 @@ impl Scene {
                                 row[k + 1] += weight * (a.backing[0] + a.backing[1]);
                             }
                         }
+                        // A lossless medium absorbs nothing: what the flux
+                        // balance leaves there is rounding.
+                        for (v, &m) in row.iter_mut().zip(&media) {
+                            if index[m][w].im == 0.0 {
+                                *v = 0.0;
+                            }
+                        }
                         for (c, v) in row.iter().enumerate() {
                             if !v.is_finite() {
                                 return Err(Error::not_computable(
@@ -170,7 +202,9 @@ impl Scene {
     /// from both sides. Layer numbers are those of the layers as written
     /// (0: the incident medium; one past the last: the substrate). The
     /// nominal design is shown (thickness disorder is not applied). A
-    /// stack with incoherent layers or a substrate sheet is refused.
+    /// stack with incoherent layers or a substrate sheet is refused, and so
+    /// is a wavelength outside the range a material's source vouches for
+    /// (a table outside its data is refused by the table itself).
     pub fn field_profile(
         &self,
         wavelength_nm: f64,
@@ -184,6 +218,21 @@ impl Scene {
                 "--wavelength",
                 wavelength_nm,
                 "must be a positive number of nm",
+            ));
+        }
+        if let Some(m) = self.media.iter().find(|m| {
+            m.valid_nm
+                .is_some_and(|(from, to)| !(from..=to).contains(&wavelength_nm))
+        }) {
+            let (from, to) = m.valid_nm.expect("found with a range");
+            return Err(Error::invalid(
+                "--wavelength",
+                wavelength_nm,
+                format!(
+                    "\"{}\" ({}) is vouched for by its source over {from}–{to} nm only; \
+                     a field profile is given where every material is vouched for",
+                    m.name, m.used_at
+                ),
             ));
         }
         if !(angle_deg.abs() < 90.0) {
@@ -246,7 +295,7 @@ impl Scene {
         })?;
         let mut map = Vec::new();
         stack::written_layers_of_nodes(&self.stack, false, &mut 0, &mut map);
-        let k = self.written_layers();
+        let k = self.written_media().len();
         field
             .into_iter()
             .map(|mut p| {

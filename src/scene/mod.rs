@@ -19,7 +19,7 @@ use crate::optics::{self, Behind, Exit, Rt, Spectra};
 use crate::pigment::Coating;
 use crate::render::{Mesh, Settings, Shape};
 pub use coating::KEYS as COATING_KEYS;
-pub use inside::{Bands, LayerAbsorption, MAX_RESOLVED_LAYERS, StopBand};
+pub use inside::{Bands, FIELD_POINTS, LayerAbsorption, MAX_RESOLVED_LAYERS, StopBand};
 use json::Obj;
 pub use media::Medium;
 pub use stack::{Item, Layer, Repeat, Sigma, realise};

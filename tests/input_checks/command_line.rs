@@ -318,6 +318,11 @@ fn bound(command: &mut Command) -> bool {
         Command::Spectrum { output, .. }
         | Command::Color { output, .. }
         | Command::Multiangle { output, .. } => to_file(output),
+        Command::Field(a) => {
+            a.points = a.points.min(2000);
+            to_file(&mut a.output);
+        }
+        Command::Bands(a) => to_file(&mut a.output),
         Command::Match(a) => {
             a.max_evals = a.max_evals.min(60);
             to_file(&mut a.output);
