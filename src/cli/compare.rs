@@ -264,17 +264,17 @@ pub fn run(args: &Args) -> CliResult {
         cmc_c: args.cmc_c,
     };
     let (r, s) = (spectra(&reference, &viewing)?, spectra(&sample, &viewing)?);
-    let origin = args
-        .tolerances
-        .as_deref()
-        .unwrap_or(Path::new("compare"))
-        .display()
-        .to_string();
-    let c =
-        compare(&r, &s, &viewing, check.as_ref(), &factors, &tolerances).map_err(|e| match e {
-            lamella::Error::NotComputable { .. } => Failure::scene(Path::new("compare"), e),
+    let both = format!("{} and {}", reference.path.display(), sample.path.display());
+    let c = compare(&r, &s, &viewing, check.as_ref(), &factors, &tolerances).map_err(|e| {
+        let origin = match &args.tolerances {
+            Some(path) if e.to_string().starts_with("limits") => path.display().to_string(),
+            _ => both.clone(),
+        };
+        match e {
+            lamella::Error::NotComputable { .. } => Failure::scene(Path::new(&origin), e),
             _ => Failure::input(format!("{origin}: {e}")),
-        })?;
+        }
+    })?;
     let mut doc = report(&c);
     doc.insert(
         "reference".into(),

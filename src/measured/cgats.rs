@@ -167,7 +167,7 @@ pub fn read(text: &str, options: &ReadOptions) -> Result<Reading> {
     let count = |name: &str, want: usize, line: usize| -> Result<()> {
         match keyword(name) {
             Some(v) if v.parse::<usize>().ok() != Some(want) => Err(Error::invalid(
-                name,
+                format!("measured {name}"),
                 v,
                 format!("the file has {want} (line {line})"),
             )),
@@ -184,7 +184,7 @@ pub fn read(text: &str, options: &ReadOptions) -> Result<Reading> {
         Some("transmittance" | "t") => Quantity::Transmittance,
         Some(other) => {
             return Err(Error::invalid(
-                "SPECTRAL_QUANTITY",
+                "measured SPECTRAL_QUANTITY",
                 other,
                 "expected \"reflectance\" or \"transmittance\"",
             ));
@@ -199,7 +199,7 @@ pub fn read(text: &str, options: &ReadOptions) -> Result<Reading> {
         Some("fraction") => 0,
         Some(other) => {
             return Err(Error::invalid(
-                "SPECTRAL_SCALE",
+                "measured SPECTRAL_SCALE",
                 other,
                 "expected \"percent\" or \"fraction\"",
             ));
@@ -244,8 +244,8 @@ pub fn read(text: &str, options: &ReadOptions) -> Result<Reading> {
         }
     };
     let whole_file = match (keyword("ANGLE_DEG"), keyword("GEOMETRY")) {
-        (Some(a), _) => Some(point(a, true, "ANGLE_DEG")?),
-        (_, Some(g)) => Some(point(g, false, "GEOMETRY")?),
+        (Some(a), _) => Some(point(a, true, "measured ANGLE_DEG")?),
+        (_, Some(g)) => Some(point(g, false, "measured GEOMETRY")?),
         _ => None,
     };
     let mut points = Points::new(quantity);
