@@ -430,7 +430,7 @@ fn table(c: &Comparison, r: &Source, s: &Source, v: &Viewing, swatches: bool) ->
     }
     let _ = writeln!(
         out,
-        "\n{:>8} {:>9} {:>9} {:>7} {:>7} {:>7} {:>7} {:>7} {:>7} {:>7} {:>6}  {:<5} {}",
+        "\n{:>8} {:>9} {:>9} {:>7} {:>7} {:>7} {:>7} {:>7} {:>7} {:>7} {:>6}  {:<5} the sample is",
         "point",
         "reference",
         "sample",
@@ -443,7 +443,6 @@ fn table(c: &Comparison, r: &Source, s: &Source, v: &Viewing, swatches: bool) ->
         "ΔH*",
         "limit",
         "",
-        "the sample is"
     );
     for p in &c.points {
         let d = &p.differences;
@@ -627,9 +626,9 @@ fn page(
     for caution in CAUTIONS {
         let _ = write!(h, "<li>{}</li>", escape(caution));
     }
-    let _ = write!(
+    let _ = writeln!(
         h,
-        "</ul><footer>Made by lamella {VERSION} on {} with <code>{}</code></footer></body></html>\n",
+        "</ul><footer>Made by lamella {VERSION} on {} with <code>{}</code></footer></body></html>",
         escape(&from.date),
         escape(&from.command)
     );

@@ -387,6 +387,10 @@ mod tests {
         );
         assert_eq!(
             describe(at(50.0, 30.0, 350.0), at(50.0, 30.0, 5.0))[2],
+            "redder"
+        );
+        assert_eq!(
+            describe(at(50.0, 30.0, 5.0), at(50.0, 30.0, 15.0))[2],
             "yellower"
         );
         assert_eq!(
