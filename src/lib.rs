@@ -39,10 +39,12 @@
 pub mod angle_colour;
 pub mod chart;
 pub mod colorimetry;
+pub mod compare;
 pub mod design;
 pub mod error;
 pub mod grid;
 pub mod materials;
+pub mod measured;
 pub mod optics;
 pub mod pigment;
 pub mod raster;

@@ -541,9 +541,10 @@ fn extreme_indices_are_refused_or_finite() {
 /// Measured reflectance in percent is refused with the line and the value.
 #[test]
 fn percent_readings_are_refused() {
-    use lamella::design::fit::parse_measured;
-    assert!(parse_measured("wavelength_nm,R\n500,1.5\n", 0.0).is_ok());
-    let e = parse_measured("wavelength_nm,R\n500,0.2\n510,45.2\n", 0.0).unwrap_err();
+    use lamella::measured::{ReadOptions, read};
+    let options = ReadOptions::default();
+    assert!(read("wavelength_nm,R\n500,1.5\n", &options).is_ok());
+    let e = read("wavelength_nm,R\n500,0.2\n510,45.2\n", &options).unwrap_err();
     let text = e.to_string();
     assert!(
         text.contains("line 3")

@@ -160,7 +160,7 @@ fn empty_or_blank_key_and_non_object_document_are_named() {
 #[test]
 fn measured_line_with_a_carriage_return_is_refused_on_one_line() {
     let text = "R,wavelength_nm\r\n0.1,380\r\u{b}0.2,780\r\n";
-    let e = lamella::design::fit::parse_measured(text, 0.0).unwrap_err();
+    let e = lamella::measured::read(text, &Default::default()).unwrap_err();
     assert!(e.to_string().contains("0.1,380\\r\\u{b}0.2,780"), "{e}");
     documents::check_measured(text, 0.0);
 }
@@ -269,7 +269,7 @@ fn wavelength_or_index_of_1e_320_is_refused_instead_of_nan() {
         "{e}"
     );
     // The measured data of `fit` holds the same floor.
-    let e = lamella::design::fit::parse_measured("wavelength_nm,R\n1e-320,0.1\n", 0.0);
+    let e = lamella::measured::read("wavelength_nm,R\n1e-320,0.1\n", &Default::default());
     assert!(e.unwrap_err().to_string().contains("wavelength ≥ 1 nm"));
 }
 

@@ -8,15 +8,14 @@ use lamella::angle_colour::Viewing;
 use lamella::colorimetry::{rgb_to_xyz_under, xyz_to_lab};
 use lamella::design::coating::At;
 use lamella::design::evaluator::Evaluator;
-use lamella::design::fit::{
-    FitSettings, Measured, fit_with_progress, measured_from_columns, parse_measured,
-};
+use lamella::design::fit::{FitSettings, Measured, fit_with_progress};
 use lamella::design::matching::{Goal, MIN_GAIN_DELTA_E, MatchSettings, match_colour};
 use lamella::design::report::{fit_report, match_report, tolerance_report};
 use lamella::design::search::Budget;
 use lamella::design::sweep::{Plan, evaluate, shard};
 use lamella::design::tolerance::{ToleranceSettings, tolerance_with_progress};
 use lamella::design::variables::{edited_document, varying};
+use lamella::measured::{Quantity, ReadOptions, from_columns, read};
 use lamella::scene::Sigma;
 use pyo3::prelude::*;
 use pyo3::types::{PyDict, PyList, PyString, PyTuple};
@@ -365,8 +364,26 @@ fn measured(py: Python<'_>, obj: &Bound<'_, PyAny>, angle: f64) -> Outcome<Vec<M
             .map_err(|_| Failure::input("measured: expected a file path"))?;
         let text = std::fs::read_to_string(&path)
             .map_err(|e| Failure::input(format!("{}: cannot read: {e}", path.display())))?;
-        return parse_measured(&text, angle)
-            .map_err(|e| Failure::input(format!("{}: {e}", path.display())));
+        let options = ReadOptions {
+            default_angle_deg: angle,
+            percent: false,
+        };
+        let reading = read(&text, &options)
+            .map_err(|e| Failure::input(format!("{}: {e}", path.display())))?;
+        if reading.quantity != Quantity::Reflectance {
+            return Err(Failure::input(format!(
+                "{}: T = transmittance: fit works on reflectance (an R column)",
+                path.display()
+            )));
+        }
+        let category = py.get_type::<crate::errors::SceneWarning>();
+        for w in &reading.warnings {
+            let text =
+                std::ffi::CString::new(format!("{}: {w}", path.display()).replace('\0', " "))
+                    .unwrap_or_default();
+            PyErr::warn(py, &category, &text, 2).map_err(|e| Failure::input(e.to_string()))?;
+        }
+        return Ok(reading.groups);
     }
     let bad = || {
         Failure::input(
@@ -413,8 +430,9 @@ fn measured(py: Python<'_>, obj: &Bound<'_, PyAny>, angle: f64) -> Outcome<Vec<M
             }
         }
     };
-    let _ = py;
-    measured_from_columns(&w, &r, &at).map_err(|e| Failure::input(e.to_string()))
+    from_columns(&w, &r, &at)
+        .map(|reading| reading.groups)
+        .map_err(|e| Failure::input(e.to_string()))
 }
 
 /// fit(scene, measured, angle=0.0, scale=False, seed=1, max_evals=20000) -> dict

@@ -82,12 +82,49 @@ def coating(rng):
     return "\n".join(out) + "\n"
 
 
+def batch(rng):
+    """A production batch of the teal label foil for `compare`: ZnS 157.6 nm and
+    MgF2 270.2 nm, read at 0°, 15° and 45° by a spectrophotometer that writes
+    a free-text preamble and a wide table in percent."""
+    with open(os.path.join(ROOT, "scenes", "teal_label_foil.json")) as f:
+        doc = json.load(f)
+
+    def edit(d):
+        d["stack"][0]["stack"][0]["thickness_nm"] = 157.6
+        d["stack"][0]["stack"][1]["thickness_nm"] = 270.2
+        d["wavelengths_nm"] = {"from": 380, "to": 780, "step": 5}
+        d["angles_deg"] = [0, 15, 45]
+
+    path = with_scene(doc, edit)
+    try:
+        rows = [line.split(",") for line in run("spectrum", path).splitlines()[1:]]
+    finally:
+        os.remove(path)
+    by_wl = {}
+    for row in rows:
+        by_wl.setdefault(float(row[0]), []).append(float(row[4]))
+    out = [
+        "Harbourline Labels QC bench, batch 7 of the Quillon Tea foil (invented demo)",
+        "# specular included, D65/10 not applied: spectral data only",
+        "Wavelength (nm),%R@0,%R@15,%R@45",
+    ]
+    for w, rs in by_wl.items():
+        cells = [f"{100 * max(0.0, r + rng.gauss(0.0, 0.001)):.3f}" for r in rs]
+        out.append(f"{w:g}," + ",".join(cells))
+    return "\n".join(out) + "\n"
+
+
 def main():
     rng = random.Random(20261202)
     for name, make in (("teal_label_foil_sample.csv", film), ("pearl_readings.csv", coating)):
         with open(os.path.join(HERE, name), "w") as f:
             f.write(make(rng))
         print("wrote", name)
+    # its own stream, so the files above stay as they were
+    rng = random.Random(20310402)
+    with open(os.path.join(HERE, "teal_label_foil_batch.csv"), "w") as f:
+        f.write(batch(rng))
+    print("wrote teal_label_foil_batch.csv")
 
 
 if __name__ == "__main__":

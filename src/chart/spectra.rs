@@ -147,6 +147,48 @@ impl SpectraChart {
         })
     }
 
+    /// Reflectance spectra given as labelled series (fractions on their own
+    /// wavelengths, such as a measured reference and sample), each drawn
+    /// solid in its own colour; `titles` head the chart and `viewing` names
+    /// the light.
+    pub fn of_series(
+        titles: &[&str],
+        heading: &str,
+        series: &[(String, &crate::measured::Measured)],
+        viewing: &Viewing,
+    ) -> Result<Self> {
+        if series.is_empty() || series.len() > SERIES.len() {
+            return Err(Error::invalid(
+                "series",
+                series.len(),
+                format!("give 1 to {} series", SERIES.len()),
+            ));
+        }
+        let curves = series
+            .iter()
+            .enumerate()
+            .map(|(i, (_, m))| Curve {
+                series: i,
+                polarization: Polarization::Unpolarized,
+                r: m.wavelengths_nm
+                    .iter()
+                    .zip(&m.r)
+                    .map(|(&w, &v)| (w, 100.0 * v))
+                    .collect(),
+                t: Vec::new(),
+            })
+            .collect();
+        let mut caption = Caption::new(titles, heading, viewing);
+        caption.viewing = style::light(viewing);
+        Ok(SpectraChart {
+            caption,
+            legend: series.iter().map(|(l, _)| l.clone()).collect(),
+            polarizations: vec![Polarization::Unpolarized],
+            curves,
+            transmittance: false,
+        })
+    }
+
     fn panel<DB: DrawingBackend>(
         &self,
         area: &DrawingArea<DB, Shift>,

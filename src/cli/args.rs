@@ -185,6 +185,19 @@ pub enum Command {
     /// the lamella version, the date and the command that made it.
     #[command(after_help = help::REPORT)]
     Report(cli::report::Args),
+    /// Compare a sample's colour with a reference's at every angle or
+    /// geometry in both: ΔE2000, ΔE*ab, ΔE94, CMC and ΔL*, ΔC*, ΔH* in words,
+    /// judged against tolerances.
+    ///
+    /// REFERENCE and SAMPLE are each a scene (a film, compared at its
+    /// angles, or a coating, at its geometries) or a measured file (a table
+    /// or CGATS; see the README, "Measured data"). Colour is computed from
+    /// each spectrum under the chosen light and observer. With --tolerance
+    /// or --tolerances each point passes when its difference by --formula
+    /// is at most its limit; without, every point passes and no limit is
+    /// reported. Exit code 3 when any point fails.
+    #[command(after_help = help::COMPARE)]
+    Compare(Box<cli::compare::Args>),
 }
 
 /// Runs the subcommand.
@@ -219,5 +232,6 @@ pub fn run(args: Args) -> CliResult {
         Command::Materials => cli::materials::run(),
         Command::Chart(a) => cli::chart::run(&a),
         Command::Report(a) => cli::report::run(&a),
+        Command::Compare(a) => cli::compare::run(&a),
     }
 }

@@ -6,7 +6,7 @@ use std::path::PathBuf;
 use lamella::scene::{Bands, StopBand};
 use serde_json::json;
 
-use super::spectrum::Format;
+use super::DataFormat;
 use super::{CliResult, Failure, film_scene, load_spectral_scene, write_out};
 
 /// Flags of `lamella bands` (the command is described in `cli::args`).
@@ -16,7 +16,7 @@ pub struct Args {
     pub scene: PathBuf,
     /// Output format.
     #[arg(long, value_enum, default_value = "csv")]
-    pub format: Format,
+    pub format: DataFormat,
     /// CSV: list the stop bands (angle_deg, polarization, from_nm, to_nm)
     /// instead of ½ tr M at every grid point.
     #[arg(long)]
@@ -38,9 +38,9 @@ pub fn run(args: &Args) -> CliResult {
     film_scene(&args.scene, &scene, "bands")?;
     let bands = scene.bands().map_err(|e| Failure::scene(&args.scene, e))?;
     let text = match (args.format, args.stop_bands) {
-        (Format::Csv, false) => grid_csv(&bands),
-        (Format::Csv, true) => stop_band_csv(&bands.stop_bands),
-        (Format::Json, _) => json(&scene.title, &bands),
+        (DataFormat::Csv, false) => grid_csv(&bands),
+        (DataFormat::Csv, true) => stop_band_csv(&bands.stop_bands),
+        (DataFormat::Json, _) => json(&scene.title, &bands),
     };
     write_out(args.output.as_deref(), &[text.into_bytes()])
 }

@@ -104,6 +104,13 @@ pub fn run(
             serde_json::to_string_pretty(&records).expect("records serialise") + "\n"
         }
         RecordFormat::Csv => csv(&records),
+        RecordFormat::Cgats => {
+            let points: Vec<_> = (spectra.angles_deg.iter())
+                .map(|&a| lamella::design::coating::At::Angle(a))
+                .zip(&colours)
+                .collect();
+            super::cgats_colours(&scene.title, &viewing, &points)
+        }
         RecordFormat::Table => table(
             &scene.title,
             &viewing,

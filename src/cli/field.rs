@@ -8,8 +8,8 @@ use lamella::optics::FieldPoint;
 use lamella::scene::{FIELD_POINTS, Scene, Substrate};
 use serde_json::{Value, json};
 
+use super::DataFormat;
 use super::choices::WaveChoice;
-use super::spectrum::Format;
 use super::{CliResult, Failure, load_spectral_scene, write_out};
 
 /// Flags of `lamella field` (the command is described in `cli::args`).
@@ -32,7 +32,7 @@ pub struct Args {
     pub points: usize,
     /// Output format.
     #[arg(long, value_enum, default_value = "csv")]
-    pub format: Format,
+    pub format: DataFormat,
     /// Write to this file (atomically) instead of stdout.
     #[arg(short = 'o', long = "output")]
     pub output: Option<PathBuf>,
@@ -64,8 +64,8 @@ pub fn run(args: &Args) -> CliResult {
         args.points,
     )?;
     let text = match args.format {
-        Format::Csv => csv(&field),
-        Format::Json => json(&scene, args, &field),
+        DataFormat::Csv => csv(&field),
+        DataFormat::Json => json(&scene, args, &field),
     };
     write_out(args.output.as_deref(), &[text.into_bytes()])
 }

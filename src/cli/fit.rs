@@ -4,13 +4,15 @@
 use std::path::PathBuf;
 use std::time::Instant;
 
-use lamella::design::fit::{FitSettings, fit, parse_measured};
+use lamella::design::fit::{FitSettings, fit};
 use lamella::design::report::fit_report;
 use lamella::design::search::Budget;
 use lamella::design::variables::edited_document;
+use lamella::measured::{Quantity, ReadOptions};
 use serde_json::{Value, json};
 
 use super::design_args::{Format, json_bytes};
+use super::measured::read_file;
 use super::{CliResult, Failure, load_scene, write_out};
 
 /// Flags of `lamella fit` (the command is described in `cli::args`).
@@ -19,14 +21,19 @@ pub struct FitArgs {
     /// Scene file (JSON); layers with `vary_nm: [low, high]` are fitted (with
     /// a `coating` section, the platelet's).
     pub scene: PathBuf,
-    /// Measured unpolarized reflectance: CSV with a header and columns
-    /// `wavelength_nm,R` (R as a fraction; R above 1.5 is refused as
-    /// percent), optionally `angle_deg`. For a
-    /// coating, a `geometry` column (names such as 45as15) instead, and R the
-    /// reflectance factor as a fraction: 1 is the perfect white diffuser
-    /// (Y = 100 in `multiangle`), so divide readings in percent by 100.
-    #[arg(long, value_name = "FILE.csv")]
+    /// Measured unpolarized reflectance: a table with a header naming a
+    /// wavelength column and an R column (R as a fraction unless the header
+    /// says percent, e.g. `R (%)`, or --percent is given; a fraction above
+    /// 1.5 is refused as percent), optionally `angle_deg`, or one column per
+    /// angle (`R@0,R@45`); or a CGATS file. For a coating, a `geometry`
+    /// column (names such as 45as15) instead, and R the reflectance factor:
+    /// 1 is the perfect white diffuser (Y = 100 in `multiangle`). Accepted
+    /// forms: see the README, "Measured data".
+    #[arg(long, value_name = "FILE")]
     pub measured: PathBuf,
+    /// The measured values are in percent whatever the header says.
+    #[arg(long)]
+    pub percent: bool,
     /// Angle of incidence of rows without an `angle_deg` column, degrees.
     #[arg(long, default_value_t = 0.0, allow_hyphen_values = true)]
     pub angle: f64,
@@ -55,10 +62,21 @@ pub struct FitArgs {
 pub fn run(args: &FitArgs) -> CliResult {
     let started = Instant::now();
     let scene = load_scene(&args.scene)?;
-    let text = std::fs::read_to_string(&args.measured)
-        .map_err(|e| Failure::input(format!("{}: cannot read: {e}", args.measured.display())))?;
-    let measured = parse_measured(&text, args.angle)
-        .map_err(|e| Failure::input(format!("{}: {e}", args.measured.display())))?;
+    let reading = read_file(
+        &args.measured,
+        &ReadOptions {
+            default_angle_deg: args.angle,
+            percent: args.percent,
+        },
+    )?;
+    if reading.quantity != Quantity::Reflectance {
+        return Err(Failure::input(format!(
+            "{}: {} = transmittance: fit works on reflectance (an R column)",
+            args.measured.display(),
+            reading.quantity.symbol()
+        )));
+    }
+    let measured = reading.groups;
     let settings = FitSettings {
         fit_scale: args.scale,
         budget: Budget {

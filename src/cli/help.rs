@@ -9,7 +9,8 @@ Exit codes, for every command:
        file that cannot be written
   2    bad input (the message names the file, the key and the value)
   3    `match` ran but did not reach its target (the design and report are
-       still written)
+       still written); `compare` found a point outside its tolerance (the
+       report is still written)
   130  stopped by Ctrl-C; 143 stopped by SIGTERM (temporary output files are
        removed)
 
@@ -143,3 +144,23 @@ Examples:
 pub const REPORT: &str = "\
 Example:
   lamella report scenes/teal_label_foil.json -o foil-report/";
+
+/// `lamella compare`.
+pub const COMPARE: &str = "\
+Tolerance file (--tolerances): {\"formula\": \"de00\", \"limits\": {\"0\": 1.0, \"45\": 1.5},
+\"default\": 2.0}: limits keyed by angle in degrees or by geometry name (\"45as15\");
+`default` covers the points not listed (without it every point in both must be
+listed); `formula` is de00 (default), de76, de94 or cmc. A key naming no point in
+both files, a negative limit or an unknown key is refused (exit code 2).
+Components are sample minus reference: ΔL* > 0 lighter, ΔC* > 0 more chromatic,
+ΔH* > 0 a counterclockwise hue turn; the hue word names the a*b* axis the hue turns
+toward (redder +a*, yellower +b*, greener -a*, bluer -b*).
+Output keys (JSON): pass, formula, factors, points [{angle_deg | geometry,
+delta_e00, delta_e76, delta_e94, delta_e_cmc, dL, dC, dH, da, db, description,
+limit (with tolerances only), pass, reference, sample, check}], reference, sample,
+illuminant, observer, side, polarization.
+
+Exit codes: 0 every point passes; 3 a point is outside its tolerance; 2 bad input.
+
+Example (the teal label foil's design against a measured production batch):
+  lamella compare scenes/teal_label_foil.json scenes/measured/teal_label_foil_batch.csv --tolerances scenes/measured/teal_label_foil_tolerances.json";

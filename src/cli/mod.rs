@@ -5,12 +5,14 @@ pub mod bands;
 pub mod chart;
 pub mod choices;
 pub mod color;
+pub mod compare;
 pub mod design_args;
 pub mod field;
 pub mod fit;
 pub mod help;
 pub mod matching;
 pub mod materials;
+pub mod measured;
 pub mod multiangle;
 pub mod output;
 pub mod render;
@@ -23,6 +25,15 @@ use std::path::{Path, PathBuf};
 
 use lamella::scene::{GRID_BYTES_PER_POINT, Scene, WarningKind};
 
+/// Output format of commands that write a table of numbers (`field`, `bands`).
+#[derive(Debug, Clone, Copy, clap::ValueEnum)]
+pub enum DataFormat {
+    /// Comma-separated rows with a header.
+    Csv,
+    /// Arrays under named keys.
+    Json,
+}
+
 /// Output format of commands that print one record per angle or geometry.
 #[derive(Debug, Clone, Copy, clap::ValueEnum)]
 pub enum RecordFormat {
@@ -32,6 +43,19 @@ pub enum RecordFormat {
     Csv,
     /// A readable table with a colour swatch per row on a true-colour terminal.
     Table,
+    /// CGATS.17 text: XYZ and CIELAB per angle or geometry.
+    Cgats,
+}
+
+/// Colours per angle or geometry as CGATS text, stamped with this run's date.
+pub fn cgats_colours(
+    title: &str,
+    viewing: &lamella::angle_colour::Viewing,
+    points: &[(lamella::design::coating::At, &lamella::colorimetry::Colour)],
+) -> String {
+    let created = report::Provenance::of_this_run().date;
+    let light = (viewing.illuminant.name(), viewing.observer.name());
+    lamella::measured::cgats::colour_document(title, &created, light, points).write()
 }
 
 /// A true-colour terminal swatch of an encoded sRGB colour (0–1 per channel).

@@ -10,6 +10,8 @@ use serde_json::{Value, json};
 
 use super::choices::{GamutChoice, PolarizationChoice, SideChoice};
 use super::color::ViewArgs;
+use lamella::design::coating::At;
+
 use super::{CliResult, Failure, RecordFormat, load_scene, write_out};
 
 /// Flags of `lamella multiangle` (the command is described in `cli::args`).
@@ -104,6 +106,12 @@ pub fn run(
             serde_json::to_string_pretty(&doc).expect("records serialise") + "\n"
         }
         RecordFormat::Csv => csv(&m, &scene.wavelengths_nm, args.spectra),
+        RecordFormat::Cgats => {
+            let points: Vec<_> = (m.geometries.iter())
+                .map(|g| (At::Geometry(g.geometry.clone()), &g.colour))
+                .collect();
+            super::cgats_colours(&scene.title, &viewing, &points)
+        }
         RecordFormat::Table => table(
             &scene.title,
             &m,

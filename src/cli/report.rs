@@ -36,16 +36,16 @@ pub struct Args {
 }
 
 /// Where a report came from.
-struct Provenance {
+pub struct Provenance {
     /// UTC time of writing, ISO 8601.
-    date: String,
+    pub date: String,
     /// The command line, shell-quoted.
-    command: String,
+    pub command: String,
 }
 
 impl Provenance {
     /// Now, and this process's command line (the program by its file name).
-    fn of_this_run() -> Provenance {
+    pub fn of_this_run() -> Provenance {
         let secs = match std::time::SystemTime::now().duration_since(std::time::UNIX_EPOCH) {
             Ok(d) => d.as_secs() as i64,
             Err(e) => -(e.duration().as_secs() as i64),

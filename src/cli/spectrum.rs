@@ -19,6 +19,9 @@ pub enum Format {
     Csv,
     /// Arrays indexed [angle][wavelength].
     Json,
+    /// CGATS.17 text: unpolarized reflectance per angle in percent, one
+    /// data set per angle.
+    Cgats,
 }
 
 /// Column names, in order, shared by both formats.
@@ -69,6 +72,10 @@ pub fn run(scene_path: &Path, format: Format, layers: bool, out: Option<&Path>) 
                 .with_rows(|rows| json(&scene.title, rows, per_layer))
                 .and_then(|t| t)
                 .map_err(at_scene)?;
+            output::emit(out, &[text.into_bytes()])
+        }
+        Format::Cgats => {
+            let text = cgats(&scene).map_err(at_scene)?;
             output::emit(out, &[text.into_bytes()])
         }
     };
@@ -218,4 +225,26 @@ fn json(title: &str, rows: &Rows, layers: Option<&LayerAbsorption>) -> lamella::
         doc.insert(name.clone(), column.into());
     }
     Ok(serde_json::to_string(&serde_json::Value::Object(doc)).expect("finite numbers serialise"))
+}
+
+/// Unpolarized reflectance per angle as CGATS text.
+fn cgats(scene: &lamella::scene::Scene) -> lamella::Result<String> {
+    use lamella::design::coating::At;
+    use lamella::measured::{Measured, Quantity, cgats};
+    scene.check_grid_size(
+        scene.angles_deg.len(),
+        JSON_BYTES_PER_POINT,
+        "spectrum --format cgats",
+    )?;
+    let s = scene.spectra()?;
+    check_spectra(&s)?;
+    let groups: Vec<Measured> = (0..s.angles_deg.len())
+        .map(|a| Measured {
+            at: At::Angle(s.angles_deg[a]),
+            wavelengths_nm: s.wavelengths_nm.clone(),
+            r: s.at_angle(a).iter().map(Rt::r).collect(),
+        })
+        .collect();
+    let created = super::report::Provenance::of_this_run().date;
+    Ok(cgats::spectra_document(&scene.title, &created, Quantity::Reflectance, &groups)?.write())
 }

@@ -35,16 +35,24 @@ pub fn delta_e94(reference: [f64; 3], sample: [f64; 3]) -> f64 {
     (dl * dl + (dc / sc).powi(2) + dh2 / (sh * sh)).sqrt()
 }
 
-/// ΔE00, the CIEDE2000 colour difference with kL = kC = kH = 1, as written out in
-/// G. Sharma, W. Wu, E. N. Dalal, "The CIEDE2000 color-difference formula:
-/// implementation notes, supplementary test data, and mathematical
-/// observations", Color Res. Appl. 30(1), 21–30 (2005).
+/// ΔE00, the CIEDE2000 colour difference with kL = kC = kH = 1
+/// ([`delta_e2000_weighted`]).
+pub fn delta_e2000(lab1: [f64; 3], lab2: [f64; 3]) -> f64 {
+    delta_e2000_weighted(lab1, lab2, [1.0; 3])
+}
+
+/// ΔE00, the CIEDE2000 colour difference with parametric factors
+/// `k = [kL, kC, kH]` dividing the lightness, chroma and hue terms, as
+/// written out in G. Sharma, W. Wu, E. N. Dalal, "The CIEDE2000
+/// color-difference formula: implementation notes, supplementary test data,
+/// and mathematical observations", Color Res. Appl. 30(1), 21–30 (2005),
+/// eq. (1)–(22).
 ///
 /// Written out rather than taken from `palette` 0.7.7, whose mean hue h̄′ for
 /// |h′₁ − h′₂| > 180° is always (h′₁ + h′₂ + 360°)/2, leaving out the case
 /// h′₁ + h′₂ ≥ 360° of the paper; the rotation term then differs (by up to about
 /// 1e-5 in ΔE00, e.g. for L*a*b* (53.9, 2.35, 8.29) against (10.2, 36.1, −56.4)).
-pub fn delta_e2000(lab1: [f64; 3], lab2: [f64; 3]) -> f64 {
+pub fn delta_e2000_weighted(lab1: [f64; 3], lab2: [f64; 3], k: [f64; 3]) -> f64 {
     let [l1, a1, b1] = lab1;
     let [l2, a2, b2] = lab2;
     let c_mean = 0.5 * (a1.hypot(b1) + a2.hypot(b2));
@@ -98,8 +106,132 @@ pub fn delta_e2000(lab1: [f64; 3], lab2: [f64; 3]) -> f64 {
     let s_c = 1.0 + 0.045 * cp_mean;
     let s_h = 1.0 + 0.015 * cp_mean * t;
     let r_t = -(2.0 * d_theta).to_radians().sin() * r_c;
-    let (tl, tc, th) = (dlp / s_l, dcp / s_c, dhp_big / s_h);
+    let (tl, tc, th) = (
+        dlp / (k[0] * s_l),
+        dcp / (k[1] * s_c),
+        dhp_big / (k[2] * s_h),
+    );
     (tl * tl + tc * tc + th * th + r_t * tc * th).sqrt()
+}
+
+/// ΔE CMC(l:c), the colour difference of F. J. J. Clarke, R. McDonald and
+/// B. Rigg, "Modification to the JPC79 colour-difference formula", J. Soc.
+/// Dyers Colour. 100, 128–132 (1984): lightness weight `l` and chroma weight
+/// `c` (2:1 for acceptability, 1:1 for perceptibility). Not symmetric:
+/// `reference` supplies L*, C*ab and h_ab in S_L, S_C and S_H.
+pub fn delta_e_cmc(reference: [f64; 3], sample: [f64; 3], l: f64, c: f64) -> f64 {
+    let [l1, a1, b1] = reference;
+    let c1 = a1.hypot(b1);
+    let c2 = sample[1].hypot(sample[2]);
+    let (dl, dc) = (l1 - sample[0], c1 - c2);
+    let (da, db) = (a1 - sample[1], b1 - sample[2]);
+    let dh2 = (da * da + db * db - dc * dc).max(0.0);
+    let s_l = if l1 < 16.0 {
+        0.511
+    } else {
+        0.040975 * l1 / (1.0 + 0.01765 * l1)
+    };
+    let s_c = 0.0638 * c1 / (1.0 + 0.0131 * c1) + 0.638;
+    let h1 = b1.atan2(a1).to_degrees().rem_euclid(360.0);
+    let cos = |deg: f64| deg.to_radians().cos();
+    let t = if (164.0..=345.0).contains(&h1) {
+        0.56 + (0.2 * cos(h1 + 168.0)).abs()
+    } else {
+        0.36 + (0.4 * cos(h1 + 35.0)).abs()
+    };
+    let c4 = c1.powi(4);
+    let f = (c4 / (c4 + 1900.0)).sqrt();
+    let s_h = s_c * (f * t + 1.0 - f);
+    ((dl / (l * s_l)).powi(2) + (dc / (c * s_c)).powi(2) + dh2 / (s_h * s_h)).sqrt()
+}
+
+/// The CIELAB components of a difference, sample minus reference.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct LabComponents {
+    /// ΔL*: positive when the sample is lighter.
+    pub dl: f64,
+    /// ΔC*ab: positive when the sample is more chromatic.
+    pub dc: f64,
+    /// ΔH*ab = 2 √(C*₁ C*₂) sin(Δh_ab / 2) (CIE 015:2018, §8.2.1): positive
+    /// when the sample's hue turns counterclockwise in the a*b* plane.
+    pub dh: f64,
+    /// Δa*: positive toward red.
+    pub da: f64,
+    /// Δb*: positive toward yellow.
+    pub db: f64,
+}
+
+/// The components of the difference from `reference` to `sample`.
+pub fn lab_components(reference: [f64; 3], sample: [f64; 3]) -> LabComponents {
+    let (lch1, lch2) = (lab_to_lch(reference), lab_to_lch(sample));
+    let dh_angle = hue_difference_deg(lch1[2], lch2[2]);
+    LabComponents {
+        dl: sample[0] - reference[0],
+        dc: lch2[1] - lch1[1],
+        dh: 2.0 * (lch1[1] * lch2[1]).sqrt() * (0.5 * dh_angle).to_radians().sin(),
+        da: sample[1] - reference[1],
+        db: sample[2] - reference[2],
+    }
+}
+
+/// Below this C*ab the reference is treated as near-neutral by
+/// [`describe`]: its hue angle says little, so the hue word follows the
+/// larger of Δa* and Δb* instead.
+pub const NEUTRAL_CHROMA: f64 = 2.0;
+
+/// Components smaller than this (CIELAB units) are described as "same".
+pub const SAME_WITHIN: f64 = 0.005;
+
+/// How a sample differs from its reference in words: lightness (`lighter`,
+/// `darker`), chroma (`more chromatic`, `less chromatic`) and hue.
+///
+/// The hue word names the CIELAB hue axis the sample's hue turns toward:
+/// red (+a*, 0°), yellow (+b*, 90°), green (−a*, 180°) or blue (−b*, 270°).
+/// Starting from the reference's hue angle, a positive ΔH* (counterclockwise)
+/// turns toward the next axis above it and a negative one toward the next
+/// below it: a reference at h = 30° with ΔH* > 0 is "yellower", with
+/// ΔH* < 0 "redder". For a near-neutral reference (C*ab below
+/// [`NEUTRAL_CHROMA`]) the larger of |Δa*| and |Δb*| decides ("redder" or
+/// "greener", "yellower" or "bluer"). A component within [`SAME_WITHIN`] is
+/// "same lightness", "same chroma" or "same hue".
+pub fn describe(reference: [f64; 3], sample: [f64; 3]) -> [&'static str; 3] {
+    let d = lab_components(reference, sample);
+    let pick = |x: f64, up: &'static str, down: &'static str, same: &'static str| {
+        if x.abs() < SAME_WITHIN {
+            same
+        } else if x > 0.0 {
+            up
+        } else {
+            down
+        }
+    };
+    const AXES: [&str; 4] = ["redder", "yellower", "greener", "bluer"];
+    let hue = if lab_to_lch(reference)[1] < NEUTRAL_CHROMA {
+        if d.da.abs().max(d.db.abs()) < SAME_WITHIN {
+            "same hue"
+        } else if d.da.abs() >= d.db.abs() {
+            pick(d.da, AXES[0], AXES[2], "same hue")
+        } else {
+            pick(d.db, AXES[1], AXES[3], "same hue")
+        }
+    } else if d.dh.abs() < SAME_WITHIN {
+        "same hue"
+    } else {
+        let h = lab_to_lch(reference)[2] / 90.0;
+        let axis = if d.dh > 0.0 {
+            h.floor() + 1.0
+        } else if h.fract() == 0.0 {
+            h - 1.0
+        } else {
+            h.floor()
+        };
+        AXES[(axis as i64).rem_euclid(4) as usize]
+    };
+    [
+        pick(d.dl, "lighter", "darker", "same lightness"),
+        pick(d.dc, "more chromatic", "less chromatic", "same chroma"),
+        hue,
+    ]
 }
 
 /// The hue angle difference `to − from` in degrees, wrapped to (−180, 180].
@@ -233,6 +365,46 @@ mod tests {
             count += 1;
         }
         assert_eq!(count, 34);
+    }
+
+    #[test]
+    fn words_follow_the_hue_axis_turned_toward() {
+        let at = |l: f64, c: f64, h: f64| {
+            let (s, co) = h.to_radians().sin_cos();
+            [l, c * co, c * s]
+        };
+        assert_eq!(
+            describe(at(50.0, 30.0, 30.0), at(52.0, 32.0, 35.0)),
+            ["lighter", "more chromatic", "yellower"]
+        );
+        assert_eq!(
+            describe(at(50.0, 30.0, 30.0), at(48.0, 28.0, 25.0)),
+            ["darker", "less chromatic", "redder"]
+        );
+        assert_eq!(
+            describe(at(50.0, 30.0, 200.0), at(50.0, 30.0, 210.0))[2],
+            "bluer"
+        );
+        assert_eq!(
+            describe(at(50.0, 30.0, 350.0), at(50.0, 30.0, 5.0))[2],
+            "redder"
+        );
+        assert_eq!(
+            describe(at(50.0, 30.0, 5.0), at(50.0, 30.0, 15.0))[2],
+            "yellower"
+        );
+        assert_eq!(
+            describe(at(50.0, 30.0, 90.0), at(50.0, 30.0, 85.0))[2],
+            "redder"
+        );
+        assert_eq!(describe([50.0, 0.5, 0.5], [50.0, 0.5, -1.5])[2], "bluer");
+        let same = [50.0, 10.0, 10.0];
+        assert_eq!(
+            describe(same, same),
+            ["same lightness", "same chroma", "same hue"]
+        );
+        let d = lab_components(at(50.0, 30.0, 30.0), at(50.0, 30.0, 40.0));
+        assert!((d.dh - 2.0 * 30.0 * 5f64.to_radians().sin()).abs() < 1e-12);
     }
 
     #[test]

@@ -1,7 +1,7 @@
 //! Colorimetry of computed spectra: CIE tristimulus values by summation over the
 //! scene's wavelength grid, CIELAB and LCh(ab) against the illuminant's own
 //! computed white, display RGB (sRGB, Display P3) with gamut handling, colour
-//! differences (ΔE*ab, ΔE*94, ΔE00) and the colour travel over angles.
+//! differences (ΔE*ab, ΔE*94, ΔE00, CMC(l:c)) with their components and the colour travel over angles.
 //!
 //! Typical use: build [`Weights`] once per (grid, illuminant, observer), then
 //! for each spectrum `Colour::new(weights.xyz(&r), weights.white(), &options)`.
@@ -17,8 +17,9 @@ pub use colour::{
     lab_to_xyz, rgb_to_xyz_under, srgb_decode, srgb_encode, xyz_to_lab,
 };
 pub use difference::{
-    Travel, TravelPoint, delta_e76, delta_e94, delta_e2000, hue_difference_deg, travel,
-    travel_points,
+    LabComponents, NEUTRAL_CHROMA, SAME_WITHIN, Travel, TravelPoint, delta_e_cmc, delta_e76,
+    delta_e94, delta_e2000, delta_e2000_weighted, describe, hue_difference_deg, lab_components,
+    travel, travel_points,
 };
 pub use spectra::{BUILT_IN_ILLUMINANTS, Illuminant, Observer};
 pub use weights::Weights;

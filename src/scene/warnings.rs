@@ -31,6 +31,10 @@ pub enum WarningKind {
     ThickLayer,
     /// An incoherent layer is thinner than `THINNEST_INCOHERENT_NM` (1 µm).
     ThinIncoherent,
+    /// Measured readings a little below zero (instrument noise) were kept.
+    NegativeReadings,
+    /// Columns of a measured table that were not used.
+    IgnoredColumns,
 }
 
 /// A warning about a valid scene, naming the key it concerns.

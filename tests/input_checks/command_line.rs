@@ -279,9 +279,11 @@ pub fn check_cli(sandbox: &Sandbox, tokens: &[Vec<u8>]) -> Outcome {
             Outcome::Ran(0)
         }
         Err(f) => {
-            // 3: `match` ran but did not reach its target; its design and
-            // report are written all the same.
-            let unreached = f.code == 3 && tokens.first().map(Vec::as_slice) == Some(b"match");
+            // 3: `match` ran but did not reach its target, or `compare` found
+            // a point outside its tolerance; their outputs are written all
+            // the same.
+            let first = tokens.first().map(Vec::as_slice);
+            let unreached = f.code == 3 && (first == Some(b"match") || first == Some(b"compare"));
             if unreached {
                 check_outputs(&sandbox.work, tokens);
             }
@@ -360,6 +362,7 @@ fn bound(command: &mut Command) -> bool {
             a.steps = a.steps.min(3);
         }
         Command::Report(a) => small_chart(&mut a.size),
+        Command::Compare(a) => to_file(&mut a.output),
     }
     true
 }

@@ -8,7 +8,7 @@
 use lamella::Error;
 use lamella::angle_colour::{Viewing, angle_colours};
 use lamella::design::coating::At;
-use lamella::design::fit::parse_measured;
+use lamella::measured::{MIN_MEASURED, ReadOptions, read};
 use lamella::render::Mesh;
 use lamella::scene::{Item, Scene};
 
@@ -143,11 +143,23 @@ fn work(scene: &Scene) -> u64 {
         .saturating_mul(realizations)
 }
 
-/// Measured reflectance CSV (`lamella fit --measured`): non-empty groups of
-/// finite, physical points at distinct angles or geometries.
+/// Measured spectra (`lamella fit --measured`, `lamella compare`): non-empty
+/// groups of finite, physical points at distinct angles or geometries, with
+/// wavelengths increasing strictly in each group, read alike as fractions
+/// and (when `percent`) as percent.
 pub fn check_measured(text: &str, default_angle: f64) {
-    let groups = match parse_measured(text, default_angle) {
-        Ok(g) => g,
+    for percent in [false, true] {
+        check_measured_as(text, default_angle, percent);
+    }
+}
+
+fn check_measured_as(text: &str, default_angle: f64, percent: bool) {
+    let options = ReadOptions {
+        default_angle_deg: default_angle,
+        percent,
+    };
+    let groups = match read(text, &options) {
+        Ok(g) => g.groups,
         Err(e) => {
             check_error(&e, "measured");
             let text = e.to_string();
@@ -164,7 +176,8 @@ pub fn check_measured(text: &str, default_angle: f64) {
                 .iter()
                 .all(|w| w.is_finite() && *w >= shortest)
         );
-        assert!(g.r.iter().all(|r| r.is_finite() && *r >= 0.0));
+        assert!(g.r.iter().all(|r| r.is_finite() && *r >= MIN_MEASURED));
+        assert!(g.wavelengths_nm.windows(2).all(|p| p[1] > p[0]));
         match &g.at {
             At::Angle(a) => assert!(a.abs() < 90.0, "angle {a}"),
             At::Geometry(geo) => {
