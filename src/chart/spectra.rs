@@ -29,6 +29,8 @@ pub struct Curve {
 pub struct SpectraChart {
     /// Header text.
     pub caption: Caption,
+    /// Heading of the legend's series.
+    pub legend_heading: String,
     /// Label of each (scene, angle) series, in colour order.
     pub legend: Vec<String>,
     /// Polarizations drawn.
@@ -138,8 +140,15 @@ impl SpectraChart {
             },
             pol_list(polarizations)
         );
+        let legend_heading = if legend.iter().any(|l| l.contains(" · ")) {
+            "Design · angle of incidence"
+        } else {
+            "Angle of incidence"
+        }
+        .to_owned();
         Ok(SpectraChart {
             caption,
+            legend_heading,
             legend,
             polarizations: polarizations.to_vec(),
             curves,
@@ -182,6 +191,7 @@ impl SpectraChart {
         caption.viewing = style::light(viewing);
         Ok(SpectraChart {
             caption,
+            legend_heading: "Spectrum".to_owned(),
             legend: series.iter().map(|(l, _)| l.clone()).collect(),
             polarizations: vec![Polarization::Unpolarized],
             curves,
@@ -255,12 +265,11 @@ impl SpectraChart {
         let line = s.px(26.0);
         let mut y = s.px(14.0);
         let label = Pos::new(HPos::Left, VPos::Center);
-        let heading = if self.legend.iter().any(|l| l.contains(" · ")) {
-            "Design · angle of incidence"
-        } else {
-            "Angle of incidence"
-        };
-        area.draw(&Text::new(heading, (left, y), s.bold(14.0, INK).pos(label)))?;
+        area.draw(&Text::new(
+            self.legend_heading.as_str(),
+            (left, y),
+            s.bold(14.0, INK).pos(label),
+        ))?;
         y += line;
         for (i, name) in self.legend.iter().enumerate() {
             area.draw(&PathElement::new(

@@ -598,7 +598,7 @@ fn page(
         };
         let series = [("reference".to_string(), a), ("sample".to_string(), b)];
         let heading = format!("Spectra at {}", p.at.describe());
-        let chart = SpectraChart::of_series(&[&rt, &st], &heading, &series, viewing)?;
+        let chart = SpectraChart::of_series(&["Reference and sample"], &heading, &series, viewing)?;
         let svg = String::from_utf8(chart::render(&chart, (900, 520), Format::Svg)?)
             .expect("SVG is UTF-8");
         let svg = svg.split_once("?>").map_or(svg.as_str(), |(_, rest)| rest);
@@ -639,5 +639,5 @@ const STYLE: &str = "body{font-family:system-ui,sans-serif;max-width:70em;margin
 table{border-collapse:collapse}td,th{border-bottom:1px solid #e4e7ec;padding:.3em .6em;text-align:right}\
 .sw{display:inline-block;width:1.2em;height:1.2em;vertical-align:middle;margin-right:.3em;border:1px solid #999}\
 .pass{color:#17663a}.fail{color:#b42318;font-weight:bold}.verdict{font-size:1.2em}\
-.pairs{display:flex;flex-wrap:wrap;gap:1em}.pair{display:flex;width:12em;height:6em;border:1px solid #999}.pair div{flex:1}\
+.pairs{display:flex;flex-wrap:wrap;gap:1em}.pair{display:flex;gap:3px;width:12em;height:6em;border:1px solid #999;background:#fff}.pair div{flex:1}\
 .chart svg{width:100%;height:auto;border:1px solid #e4e7ec}footer{margin:3em 0 1em;color:#5a6473;font-size:.85em;border-top:1px solid #e4e7ec}";
