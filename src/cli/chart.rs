@@ -133,6 +133,9 @@ pub fn load_all(paths: &[PathBuf], view: &ViewArgs) -> Result<Vec<(Scene, Viewin
     for p in paths {
         let scene = load_scene(p)?;
         film_scene(p, &scene, "chart")?;
+        scene
+            .require_isotropic("`lamella chart`")
+            .map_err(|e| Failure::scene(p, e))?;
         let viewing = view.viewing(&scene, p)?;
         if let Some((_, first)) = out.first()
             && (first.illuminant.name() != viewing.illuminant.name()
