@@ -272,11 +272,17 @@ pub(super) fn gridded(
     }
 }
 
-/// ε of `crystal` turned by `rotation`, at wavelength index `w`.
+/// ε of `crystal` turned by `rotation`, at wavelength index `w`: exactly
+/// n²I where the principal indices are equal (a rotation cannot change it,
+/// and rounding would split the degenerate waves), symmetric otherwise.
 fn tensor(crystal: &Crystal, rotation: &[[f64; 3]; 3], index: &[Vec<C>], w: usize) -> Matrix3<C> {
     let eps = crystal.principal.map(|m| index[m][w] * index[m][w]);
+    if eps[1] == eps[0] && eps[2] == eps[0] {
+        return Matrix3::from_diagonal_element(eps[0]);
+    }
     let r = Matrix3::from_fn(|i, j| C::new(rotation[i][j], 0.0));
-    r * Matrix3::from_diagonal(&eps.into()) * r.transpose()
+    let e = r * Matrix3::from_diagonal(&eps.into()) * r.transpose();
+    (e + e.transpose()) * C::new(0.5, 0.0)
 }
 
 fn choose_steps(nodes: &mut [Layer4], eps: &[Matrix3<C>], at: &Probe) {
