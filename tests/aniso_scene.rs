@@ -406,6 +406,9 @@ fn refused(args: &[&str], file: &str, key: &str) {
     assert!(!err.contains("panicked"));
 }
 
+/// A change that makes a scene invalid.
+type Edit = Box<dyn Fn(&mut Value)>;
+
 #[test]
 fn bad_anisotropic_input_exits_2_naming_file_and_key() {
     let dir = temp_dir("aniso-bad");
@@ -415,7 +418,7 @@ fn bad_anisotropic_input_exits_2_naming_file_and_key() {
     )
     .unwrap();
     let base = cholesteric("left", 0.0, 4, json!([0]));
-    let cases: Vec<(&str, Box<dyn Fn(&mut Value)>, &str)> = vec![
+    let cases: Vec<(&str, Edit, &str)> = vec![
         (
             "hand",
             Box::new(|s| s["stack"][0]["helix"]["handedness"] = json!("sideways")),
