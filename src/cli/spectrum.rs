@@ -84,7 +84,7 @@ pub fn run(scene_path: &Path, format: Format, basis: Basis, out: Option<&Path>) 
                 )
                 .map_err(at_scene)?;
             let text = scene
-                .with_rows(|rows| json(&scene.title, rows, basis))
+                .with_jones_rows(|rows| json(&scene.title, rows, basis))
                 .and_then(|t| t)
                 .map_err(at_scene)?;
             output::emit(out, &[text.into_bytes()])

@@ -486,7 +486,7 @@ impl Scene {
     /// R and T on the scene's wavelengths at `angles_deg` (each below 90°),
     /// checked like [`Scene::spectra`].
     pub fn spectra_at(&self, angles_deg: &[f64]) -> Result<Spectra> {
-        let spectra = self.rows_at(angles_deg, |rows| rows.all())?;
+        let spectra = self.rows_at(angles_deg, false, |rows| rows.all())?;
         check_spectra(&spectra)?;
         Ok(spectra)
     }
@@ -503,25 +503,40 @@ impl Scene {
                  stack: no incoherent layer, substrate sheet or thickness disorder",
             ));
         }
-        let spectra = self.rows_at(&self.angles_deg, |rows| rows.all_with_jones())?;
+        let spectra = self.rows_at(&self.angles_deg, true, |rows| rows.all_with_jones())?;
         check_spectra(&spectra)?;
         Ok(spectra)
     }
 
     /// Runs `f` on the scene's grid computation, for callers that take the
     /// spectra row by row rather than whole (they check each point with
-    /// [`check_point`]). The rows carry the 4×4 stack when the scene is
-    /// [`Scene::coherent`], and take R and T from it when the scene is
-    /// [`Scene::anisotropic`].
+    /// [`check_point`]). The rows carry the 4×4 stack and take R and T from
+    /// it when the scene is [`Scene::anisotropic`].
     pub fn with_rows<T>(&self, f: impl FnOnce(&optics::Rows) -> T) -> Result<T> {
-        self.rows_at(&self.angles_deg, f)
+        self.rows_at(&self.angles_deg, false, f)
     }
 
-    fn rows_at<T>(&self, angles_deg: &[f64], f: impl FnOnce(&optics::Rows) -> T) -> Result<T> {
+    /// [`Scene::with_rows`] with the 4×4 stack attached whenever the scene
+    /// is [`Scene::coherent`], so that [`optics::Rows::has_jones`] holds for
+    /// isotropic scenes too.
+    pub fn with_jones_rows<T>(&self, f: impl FnOnce(&optics::Rows) -> T) -> Result<T> {
+        self.rows_at(&self.angles_deg, true, f)
+    }
+
+    fn rows_at<T>(
+        &self,
+        angles_deg: &[f64],
+        jones: bool,
+        f: impl FnOnce(&optics::Rows) -> T,
+    ) -> Result<T> {
         let index = self.indices(&self.wavelengths_nm)?;
         let stacks = self.realisations(&self.stack);
         let rows = optics::Rows::new(&stacks, &index, &self.wavelengths_nm, angles_deg);
-        let four = self.gridded(&index, &self.wavelengths_nm, angles_deg);
+        let four = if jones || self.anisotropic() {
+            self.gridded(&index, &self.wavelengths_nm, angles_deg)
+        } else {
+            None
+        };
         Ok(match &four {
             Some(g) => f(&rows.with_four(g, self.anisotropic())),
             None => f(&rows),
