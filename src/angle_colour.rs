@@ -5,6 +5,7 @@ use std::str::FromStr;
 
 use crate::colorimetry::{Colour, ColourOptions, Illuminant, Observer, Weights};
 use crate::error::{Error, Result};
+use crate::optics::aniso::{Handedness, Jones};
 use crate::optics::{Rt, Spectra};
 use crate::scene::{Scene, check_spectra};
 
@@ -28,6 +29,11 @@ pub enum Polarization {
     S,
     /// p (TM) only.
     P,
+    /// Left-handed circularly polarized (handedness named by the helix the
+    /// electric field traces in space at one instant).
+    Left,
+    /// Right-handed circularly polarized.
+    Right,
 }
 
 impl FromStr for Side {
@@ -52,24 +58,51 @@ impl Side {
 }
 
 impl Polarization {
-    /// The fraction of light on `side` for this polarization.
+    /// The fraction of light on `side` for this polarization, from the s
+    /// and p values of a stack that never mixes s and p (isotropic layers):
+    /// left- and right-handed light then see the mean of s and p.
     pub fn of(self, x: &Rt, side: Side) -> f64 {
         match (side, self) {
-            (Side::Reflect, Polarization::Unpolarized) => x.r(),
+            (
+                Side::Reflect,
+                Polarization::Unpolarized | Polarization::Left | Polarization::Right,
+            ) => x.r(),
             (Side::Reflect, Polarization::S) => x.rs,
             (Side::Reflect, Polarization::P) => x.rp,
-            (Side::Transmit, Polarization::Unpolarized) => x.t(),
+            (
+                Side::Transmit,
+                Polarization::Unpolarized | Polarization::Left | Polarization::Right,
+            ) => x.t(),
             (Side::Transmit, Polarization::S) => x.ts,
             (Side::Transmit, Polarization::P) => x.tp,
         }
     }
 
-    /// `unpolarized`, `s` or `p`.
+    /// The fraction of light on `side` for this polarization from a point's
+    /// Jones matrices (any stack): totals per incident polarization, the
+    /// mean of the two for unpolarized light.
+    pub fn of_jones(self, j: &Jones, side: Side) -> f64 {
+        let pick = |[r0, r1, t0, t1]: [f64; 4], i: usize| match side {
+            Side::Reflect => [r0, r1][i],
+            Side::Transmit => [t0, t1][i],
+        };
+        match self {
+            Polarization::Unpolarized => 0.5 * (pick(j.powers(), 0) + pick(j.powers(), 1)),
+            Polarization::P => pick(j.powers(), 0),
+            Polarization::S => pick(j.powers(), 1),
+            Polarization::Left => pick(j.circular().powers(), 0),
+            Polarization::Right => pick(j.circular().powers(), 1),
+        }
+    }
+
+    /// `unpolarized`, `s`, `p`, `left` or `right`.
     pub fn name(self) -> &'static str {
         match self {
             Polarization::Unpolarized => "unpolarized",
             Polarization::S => "s",
             Polarization::P => "p",
+            Polarization::Left => "left",
+            Polarization::Right => "right",
         }
     }
 }
@@ -81,10 +114,12 @@ impl FromStr for Polarization {
             "unpolarized" | "both" => Ok(Polarization::Unpolarized),
             "s" => Ok(Polarization::S),
             "p" => Ok(Polarization::P),
+            "left" => Ok(Polarization::Left),
+            "right" => Ok(Polarization::Right),
             _ => Err(Error::invalid(
                 "polarization",
                 s,
-                "expected unpolarized, s or p",
+                "expected unpolarized, s, p, left or right",
             )),
         }
     }
@@ -101,6 +136,9 @@ pub struct Viewing {
     pub side: Side,
     /// Polarization of the light.
     pub polarization: Polarization,
+    /// An ideal circular analyser in front of the observer (with
+    /// unpolarized light): the outgoing light's power in that handedness.
+    pub analyzer: Option<Handedness>,
     /// RGB space and gamut mapping.
     pub options: ColourOptions,
 }
@@ -114,6 +152,7 @@ impl Viewing {
             observer: scene.observer,
             side: Side::Reflect,
             polarization: Polarization::Unpolarized,
+            analyzer: None,
             options: ColourOptions::default(),
         })
     }
@@ -123,23 +162,62 @@ impl Viewing {
         Weights::new(wavelengths_nm, &self.illuminant, self.observer)
     }
 
-    /// The colour of one angle's spectrum.
-    pub fn colour(&self, weights: &Weights, rt: &[Rt], scratch: &mut Vec<f64>) -> Colour {
+    /// The colour of one angle's spectrum, from its Jones matrices when
+    /// given (they are needed for an anisotropic stack and for an
+    /// analyser: [`angle_colours`] checks).
+    pub fn colour(
+        &self,
+        weights: &Weights,
+        rt: &[Rt],
+        jones: Option<&[Jones]>,
+        scratch: &mut Vec<f64>,
+    ) -> Colour {
         scratch.clear();
-        scratch.extend(rt.iter().map(|x| self.polarization.of(x, self.side)));
+        match jones {
+            Some(js) => scratch.extend(js.iter().map(|j| self.of_jones(j))),
+            None => scratch.extend(rt.iter().map(|x| self.polarization.of(x, self.side))),
+        }
         Colour::new(weights.xyz(scratch), weights.white(), &self.options)
+    }
+
+    /// The fraction of light seen at one point from its Jones matrices:
+    /// through the analyser, ½ Σ_in |J_{h,in}|² in the circular basis.
+    fn of_jones(&self, j: &Jones) -> f64 {
+        match self.analyzer {
+            None => self.polarization.of_jones(j, self.side),
+            Some(h) => {
+                let [r0, r1, t0, t1] = j.circular().analysed();
+                match self.side {
+                    Side::Reflect => [r0, r1][h.index()],
+                    Side::Transmit => [t0, t1][h.index()],
+                }
+            }
+        }
     }
 }
 
 /// The colour at every angle of `spectra`; a spectrum value that is not a
 /// finite number is an error naming its wavelength and angle.
+/// An analyser needs the spectra's Jones matrices ([`Scene::spectra_with_jones`]).
 pub fn angle_colours(spectra: &Spectra, viewing: &Viewing) -> Result<Vec<Colour>> {
     let weights = viewing.weights(&spectra.wavelengths_nm)?;
     check_spectra(spectra)?;
+    if let (Some(h), None) = (viewing.analyzer, &spectra.jones) {
+        return Err(Error::invalid(
+            "analyzer",
+            h.name(),
+            "an analyser needs the spectra's Jones matrices (Scene::spectra_with_jones)",
+        ));
+    }
     let mut scratch = Vec::with_capacity(spectra.wavelengths_nm.len());
     (0..spectra.angles_deg.len())
         .map(|a| {
-            let colour = viewing.colour(&weights, spectra.at_angle(a), &mut scratch);
+            let colour = viewing.colour(
+                &weights,
+                spectra.at_angle(a),
+                spectra.jones_at_angle(a),
+                &mut scratch,
+            );
             check_colour(&colour, &format!("{}°", spectra.angles_deg[a]))?;
             Ok(colour)
         })

@@ -59,6 +59,7 @@ fn build(
         Ok(t)
     };
     let scene = Engine::from_json(text, &load)?;
+    scene.require_isotropic("the Python package")?;
     Ok((scene, read.into_inner()))
 }
 

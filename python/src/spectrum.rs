@@ -174,6 +174,7 @@ pub fn spectra(scene: &Engine, label: &str, stop: &Stop) -> Outcome<Spectra> {
         wavelengths_nm: scene.wavelengths_nm.clone(),
         angles_deg: scene.angles_deg.clone(),
         rt,
+        jones: None,
     };
     lamella::scene::check_spectra(&s).map_err(fail)?;
     Ok(s)

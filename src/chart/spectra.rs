@@ -46,14 +46,19 @@ fn dash(p: Polarization) -> (u32, u32) {
         Polarization::Unpolarized => (0, 0),
         Polarization::S => (11, 7),
         Polarization::P => (2, 6),
+        Polarization::Left => (16, 4),
+        Polarization::Right => (6, 3),
     }
 }
 
-fn pol_label(p: Polarization) -> &'static str {
+/// The light's polarization in words (also the charts' subtitles).
+pub(super) fn pol_label(p: Polarization) -> &'static str {
     match p {
         Polarization::Unpolarized => "unpolarized",
         Polarization::S => "s-polarized",
         Polarization::P => "p-polarized",
+        Polarization::Left => "left-circular",
+        Polarization::Right => "right-circular",
     }
 }
 
@@ -325,6 +330,8 @@ fn pol_list(p: &[Polarization]) -> String {
                 Polarization::Unpolarized => "solid",
                 Polarization::S => "dashed",
                 Polarization::P => "dotted",
+                Polarization::Left => "long dashes",
+                Polarization::Right => "short dashes",
             };
             format!("{} ({how})", pol_label(p))
         })

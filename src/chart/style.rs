@@ -8,7 +8,7 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::DrawResult;
-use crate::angle_colour::{Polarization, Side, Viewing, angle_colours};
+use crate::angle_colour::{Side, Viewing, angle_colours};
 use crate::colorimetry::{Colour, Observer};
 use crate::error::Result;
 use crate::scene::Scene;
@@ -141,11 +141,7 @@ pub fn describe(v: &Viewing) -> String {
             Side::Reflect => "reflected",
             Side::Transmit => "transmitted",
         },
-        match v.polarization {
-            Polarization::Unpolarized => "unpolarized",
-            Polarization::S => "s-polarized",
-            Polarization::P => "p-polarized",
-        }
+        super::spectra::pol_label(v.polarization)
     )
 }
 

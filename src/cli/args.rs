@@ -25,16 +25,26 @@ pub enum Command {
     /// angle and wavelength of a scene.
     ///
     /// Columns: wavelength_nm, angle_deg, R_s, R_p, R, T_s, T_p, T and A
-    /// (unpolarized R, T and A are the means of s and p); with
-    /// --layer-absorption also A_1 … A_K, then A_substrate and A_backing
-    /// for a substrate sheet.
+    /// (unpolarized R, T and A are the means of s and p); with anisotropic
+    /// layers R_s is the total (co- plus cross-polarized) for s-polarized
+    /// incident light, and so on. With --basis circular: R_L, R_R, R, T_L,
+    /// T_R, T, A for left- and right-handed incident light (handedness named
+    /// by the helix the electric field traces in space at one instant). With
+    /// --layer-absorption also A_1 … A_K, then A_substrate and A_backing for
+    /// a substrate sheet.
     #[command(after_help = help::SPECTRUM)]
     Spectrum {
         /// Scene file (JSON).
         scene: PathBuf,
-        /// Output format.
+        /// Output format. JSON also holds the complex reflection and
+        /// transmission Jones matrices (`jones_r`, `jones_t`) of coherent
+        /// stacks.
         #[arg(long, value_enum, default_value = "csv")]
         format: cli::spectrum::Format,
+        /// Polarization basis of the columns and Jones matrices: linear
+        /// (s, p) or circular (left, right).
+        #[arg(long, value_enum, default_value = "linear")]
+        basis: cli::spectrum::Basis,
         /// Add the unpolarized absorptance of each layer as written in the
         /// scene's stack (A_1 … A_K, a layer in a repeat group summed over
         /// its periods), then A_substrate and A_backing when the substrate
@@ -91,6 +101,11 @@ pub enum Command {
         format: cli::RecordFormat,
         #[command(flatten)]
         view: cli::color::ViewArgs,
+        /// Unpolarized light, and the reflected (or with --side transmit,
+        /// transmitted) light seen through an ideal circular analyser
+        /// passing this handedness.
+        #[arg(long, value_enum)]
+        analyzer: Option<cli::choices::HandednessChoice>,
         /// Also give Display P3 values (`display_p3`, `display_p3_hex`,
         /// `display_p3_in_gamut`) beside sRGB.
         #[arg(long)]
@@ -206,18 +221,27 @@ pub fn run(args: Args) -> CliResult {
         Command::Spectrum {
             scene,
             format,
+            basis,
             layer_absorption,
             output,
-        } => cli::spectrum::run(&scene, format, layer_absorption, output.as_deref()),
+        } => cli::spectrum::run(&scene, format, basis, layer_absorption, output.as_deref()),
         Command::Field(a) => cli::field::run(&a),
         Command::Bands(a) => cli::bands::run(&a),
         Command::Color {
             scene,
             format,
             view,
+            analyzer,
             display_p3,
             output,
-        } => cli::color::run(&scene, format, &view, display_p3, output.as_ref()),
+        } => cli::color::run(
+            &scene,
+            format,
+            &view,
+            analyzer.map(Into::into),
+            display_p3,
+            output.as_ref(),
+        ),
         Command::Multiangle {
             scene,
             format,

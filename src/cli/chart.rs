@@ -151,6 +151,9 @@ pub fn load_all(paths: &[PathBuf], view: &ViewArgs) -> Result<Vec<(Scene, Viewin
     for p in paths {
         let scene = load_scene(p)?;
         film_scene(p, &scene, "chart")?;
+        scene
+            .require_isotropic("`lamella chart`")
+            .map_err(|e| Failure::scene(p, e))?;
         let viewing = view.viewing(&scene, p)?;
         if let Some((_, first)) = out.first()
             && (first.illuminant.name() != viewing.illuminant.name()
@@ -240,10 +243,11 @@ pub fn run(args: &Args) -> CliResult {
             let pol = match args.view.polarization {
                 PolarizationChoice::S => 0,
                 PolarizationChoice::P => 1,
-                PolarizationChoice::Unpolarized => {
-                    return Err(Failure::input(
-                        "--polarization = unpolarized: chart --kind field follows one wave; give --polarization s or p",
-                    ));
+                other => {
+                    return Err(Failure::input(format!(
+                        "--polarization = {}: chart --kind field follows one linear wave; give --polarization s or p",
+                        clap::ValueEnum::to_possible_value(&other).map_or("?".into(), |v| v.get_name().to_owned())
+                    )));
                 }
             };
             let c = FieldChart::compute(scene, wavelength, args.angle, pol).map_err(at)?;

@@ -4,6 +4,7 @@
 use clap::ValueEnum;
 use lamella::angle_colour::{Polarization, Side};
 use lamella::colorimetry::GamutMapping;
+use lamella::optics::aniso::Handedness;
 
 /// `--side`.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -32,6 +33,11 @@ pub enum PolarizationChoice {
     S,
     /// p (TM) only.
     P,
+    /// Left-handed circular (named by the helix the electric field traces
+    /// in space at one instant).
+    Left,
+    /// Right-handed circular.
+    Right,
 }
 
 impl From<PolarizationChoice> for Polarization {
@@ -40,6 +46,26 @@ impl From<PolarizationChoice> for Polarization {
             PolarizationChoice::Unpolarized => Polarization::Unpolarized,
             PolarizationChoice::S => Polarization::S,
             PolarizationChoice::P => Polarization::P,
+            PolarizationChoice::Left => Polarization::Left,
+            PolarizationChoice::Right => Polarization::Right,
+        }
+    }
+}
+
+/// `--analyzer`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum HandednessChoice {
+    /// Passes left-handed circular light.
+    Left,
+    /// Passes right-handed circular light.
+    Right,
+}
+
+impl From<HandednessChoice> for Handedness {
+    fn from(c: HandednessChoice) -> Self {
+        match c {
+            HandednessChoice::Left => Handedness::Left,
+            HandednessChoice::Right => Handedness::Right,
         }
     }
 }

@@ -5,6 +5,7 @@ use std::path::{Path, PathBuf};
 
 use lamella::angle_colour::{Viewing, angle_colours};
 use lamella::colorimetry::{Colour, ColourOptions, Illuminant, RgbSpace, travel, travel_points};
+use lamella::optics::aniso::Handedness;
 use serde_json::{Value, json};
 
 use super::choices::{GamutChoice, PolarizationChoice, SideChoice};
@@ -73,14 +74,29 @@ pub fn run(
     scene_path: &Path,
     format: RecordFormat,
     view: &ViewArgs,
+    analyzer: Option<Handedness>,
     display_p3: bool,
     out: Option<&PathBuf>,
 ) -> CliResult {
     let scene = load_scene(scene_path)?;
     film_scene(scene_path, &scene, "color")?;
-    let viewing = view.viewing(&scene, scene_path)?;
+    let mut viewing = view.viewing(&scene, scene_path)?;
+    if let Some(h) = analyzer {
+        if view.polarization != PolarizationChoice::Unpolarized {
+            return Err(Failure::input(format!(
+                "--analyzer {}: the analyser is for unpolarized light; leave out --polarization",
+                h.name()
+            )));
+        }
+        viewing.analyzer = Some(h);
+    }
     let bad = |e| Failure::scene(scene_path, e);
-    let spectra = scene.spectra().map_err(bad)?;
+    let spectra = if analyzer.is_some() {
+        scene.spectra_with_jones()
+    } else {
+        scene.spectra()
+    }
+    .map_err(bad)?;
     let colours = angle_colours(&spectra, &viewing).map_err(bad)?;
     let mut records = records(&spectra.angles_deg, &colours);
     if display_p3 {
@@ -181,13 +197,16 @@ fn csv(records: &[Value]) -> String {
 
 fn table(title: &str, v: &Viewing, angles: &[f64], colours: &[Colour], swatches: bool) -> String {
     let mut out = format!(
-        "{}\n{} light, {} {}, {}\n\n",
+        "{}\n{} light{}, {} {}, {}\n\n",
         if title.is_empty() {
             "(untitled scene)"
         } else {
             title
         },
         v.polarization.name(),
+        v.analyzer
+            .map(|h| format!(" through a {} circular analyser", h.name()))
+            .unwrap_or_default(),
         v.side.name(),
         v.illuminant.name(),
         v.observer.name(),

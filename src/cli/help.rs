@@ -19,10 +19,19 @@ Example:
 
 /// `lamella spectrum`.
 pub const SPECTRUM: &str = "\
-Example:
-  lamella spectrum scenes/teal_label_foil.json -o foil-spectrum.csv
+Anisotropic and helicoidal layers (materials {\"uniaxial\": {\"ordinary\", \"extraordinary\"}} or
+{\"biaxial\": {\"x\", \"y\", \"z\"}}; layer keys \"orientation\" and \"helix\") are computed by the
+4×4 method. Handedness of light is named by the helix its electric field traces in space at
+one instant: a left-handed helix reflects left-handed light (R_L) in its band.
 
-Example (where the light is absorbed, layer by layer):
+--format json adds jones_r and jones_t, [angle][wavelength] lists of four [re, im] pairs in
+row-major order (row = outgoing, column = incident) in the basis jones_basis: [\"p\", \"s\"] or,
+with --basis circular, [\"L\", \"R\"]; for coherent stacks only (no incoherent layer,
+substrate sheet or disorder).
+
+Examples:
+  lamella spectrum scenes/teal_label_foil.json -o foil-spectrum.csv
+  lamella spectrum scenes/cnc_giftbox_window.json --basis circular -o cnc-circular.csv
   lamella spectrum scenes/kestrel_ink_print.json --layer-absorption -o print-absorption.csv";
 
 /// `lamella field`.
@@ -37,8 +46,14 @@ Example (the stop-band edges at every angle, for s and p):
 
 /// `lamella color`.
 pub const COLOR: &str = "\
-Example (colour seen through the film, under D50, as JSON):
-  lamella color scenes/violet_window_filter.json --side transmit --illuminant D50 --format json";
+--polarization left|right: circularly polarized incident light; --analyzer left|right:
+unpolarized light, the outgoing light seen through an ideal circular analyser. Handedness is
+named by the helix the electric field traces in space at one instant.
+
+Examples (colour seen through the film, under D50, as JSON; a left-handed chiral film
+through a left circular analyser):
+  lamella color scenes/violet_window_filter.json --side transmit --illuminant D50 --format json
+  lamella color scenes/cnc_giftbox_window.json --analyzer left";
 
 /// `lamella multiangle`: the scene's `coating` keys and the output keys.
 pub const MULTIANGLE: &str = "\

@@ -123,6 +123,9 @@ impl RenderArgs {
 /// Runs the command.
 pub fn run(args: &RenderArgs) -> CliResult {
     let scene = load_scene(&args.scene)?;
+    scene
+        .require_isotropic("`lamella render`")
+        .map_err(|e| Failure::scene(&args.scene, e))?;
     let at_scene = |e: String| Failure::input(format!("{}: {e}", args.scene.display()));
     let settings = args.settings(&scene).map_err(at_scene)?;
     let mesh = match (builtin_mesh(&settings.shape), &settings.shape) {

@@ -80,6 +80,9 @@ struct Drawn {
 pub fn run(args: &Args) -> CliResult {
     let scene = load_scene(&args.scene)?;
     super::film_scene(&args.scene, &scene, "report")?;
+    scene
+        .require_isotropic("`lamella report`")
+        .map_err(|e| Failure::scene(&args.scene, e))?;
     let viewing = args.view.viewing(&scene, &args.scene)?;
     let at = |e| Failure::scene(&args.scene, e);
     std::fs::create_dir_all(&args.output).map_err(|e| Failure::io(&args.output, e))?;

@@ -6,7 +6,8 @@ use std::path::Path;
 use std::io::{self, Write};
 use std::sync::Mutex;
 
-use lamella::optics::{Rows, Rt};
+use lamella::optics::aniso::Jones;
+use lamella::optics::{Circular, Rows, Rt};
 use lamella::scene::{LayerAbsorption, check_point, check_spectra};
 use rayon::prelude::*;
 
@@ -24,6 +25,38 @@ pub enum Format {
     Cgats,
 }
 
+/// Polarization basis of the columns and Jones matrices.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, clap::ValueEnum)]
+pub enum Basis {
+    /// s and p: R_s, R_p, T_s, T_p (Jones matrices in the order p, s).
+    Linear,
+    /// Left- and right-handed circular: R_L, R_R, T_L, T_R (Jones matrices
+    /// in the order L, R).
+    Circular,
+}
+
+/// Column names in the circular basis, in order, shared by both formats.
+pub const CIRCULAR_COLUMNS: [&str; 9] = [
+    "wavelength_nm",
+    "angle_deg",
+    "R_L",
+    "R_R",
+    "R",
+    "T_L",
+    "T_R",
+    "T",
+    "A",
+];
+
+impl Basis {
+    fn columns(self) -> &'static [&'static str; 9] {
+        match self {
+            Basis::Linear => &COLUMNS,
+            Basis::Circular => &CIRCULAR_COLUMNS,
+        }
+    }
+}
+
 /// Column names, in order, shared by both formats.
 pub const COLUMNS: [&str; 9] = [
     "wavelength_nm",
@@ -37,9 +70,15 @@ pub const COLUMNS: [&str; 9] = [
     "A",
 ];
 
-/// Runs the command; with `layers`, the absorptance of each layer as
-/// written follows A.
-pub fn run(scene_path: &Path, format: Format, layers: bool, out: Option<&Path>) -> CliResult {
+/// Runs the command in polarization basis `basis`; with `layers`, the
+/// absorptance of each layer as written follows A.
+pub fn run(
+    scene_path: &Path,
+    format: Format,
+    basis: Basis,
+    layers: bool,
+    out: Option<&Path>,
+) -> CliResult {
     let scene = load_spectral_scene(scene_path)?;
     let at_scene = |e| Failure::scene(scene_path, e);
     scene.require_film().map_err(at_scene)?;
@@ -58,7 +97,7 @@ pub fn run(scene_path: &Path, format: Format, layers: bool, out: Option<&Path>) 
     let per_layer = per_layer.as_ref();
     let written = match format {
         Format::Csv => scene
-            .with_rows(|rows| output::emit_with(out, |w| write_csv(rows, per_layer, w)))
+            .with_rows(|rows| output::emit_with(out, |w| write_csv(rows, basis, per_layer, w)))
             .map_err(at_scene)?,
         Format::Json => {
             scene
@@ -69,7 +108,7 @@ pub fn run(scene_path: &Path, format: Format, layers: bool, out: Option<&Path>) 
                 )
                 .map_err(at_scene)?;
             let text = scene
-                .with_rows(|rows| json(&scene.title, rows, per_layer))
+                .with_jones_rows(|rows| json(&scene.title, rows, basis, per_layer))
                 .and_then(|t| t)
                 .map_err(at_scene)?;
             output::emit(out, &[text.into_bytes()])
@@ -86,8 +125,8 @@ pub fn run(scene_path: &Path, format: Format, layers: bool, out: Option<&Path>) 
 }
 
 /// Bytes a grid point takes in the JSON form: R and T, seven numbers as
-/// JSON values and as text.
-const JSON_BYTES_PER_POINT: u64 = 400;
+/// JSON values and as text, and the two Jones matrices (sixteen numbers).
+const JSON_BYTES_PER_POINT: u64 = 1400;
 
 /// Bytes a grid point takes with absorption per layer: its columns held
 /// whole (a generous allowance for a few dozen layers).
@@ -111,6 +150,54 @@ fn values(x: &Rt, lossless: bool) -> [f64; 7] {
     [x.rs, x.rp, x.r(), x.ts, x.tp, x.t(), x.a(lossless)]
 }
 
+/// The seven result columns after wavelength and angle in the circular
+/// basis (A = 0 exactly where nothing absorbs, as in [`Rt::a`]).
+fn circular_values(x: &Circular, lossless: bool) -> [f64; 7] {
+    let a = if lossless { 0.0 } else { 1.0 - x.r() - x.t() };
+    [x.rl, x.rr, x.r(), x.tl, x.tr, x.t(), a]
+}
+
+/// Fills `out` with the result columns at angle index `a` for the
+/// wavelengths from `first_w`, refusing a value that is not finite.
+fn fill_values(
+    rows: &Rows,
+    basis: Basis,
+    a: usize,
+    first_w: usize,
+    out: &mut [[f64; 7]],
+) -> lamella::Result<()> {
+    let (wavelengths, angle) = (rows.wavelengths_nm(), rows.angles_deg()[a]);
+    match basis {
+        Basis::Linear => {
+            let mut rt = vec![Rt::default(); out.len()];
+            rows.fill(a, first_w, &mut rt);
+            for ((w, x), o) in (first_w..).zip(&rt).zip(out.iter_mut()) {
+                check_point(x, wavelengths[w], angle)?;
+                *o = values(x, rows.lossless(w));
+            }
+        }
+        Basis::Circular => {
+            let mut c = vec![Circular::default(); out.len()];
+            rows.fill_circular(a, first_w, &mut c);
+            for ((w, x), o) in (first_w..).zip(&c).zip(out.iter_mut()) {
+                *o = circular_values(x, rows.lossless(w));
+                if let Some((name, v)) = CIRCULAR_COLUMNS[2..]
+                    .iter()
+                    .zip(*o)
+                    .find(|(_, v)| !v.is_finite())
+                {
+                    return Err(lamella::Error::not_computable(
+                        *name,
+                        format!("{} nm, {angle}°", wavelengths[w]),
+                        v,
+                    ));
+                }
+            }
+        }
+    }
+    Ok(())
+}
+
 /// Wavelengths per piece of work: a piece is one angle and a run of up to
 /// this many wavelengths, computed and formatted on one thread.
 const PIECE: usize = 512;
@@ -121,8 +208,13 @@ const PIECE: usize = 512;
 /// that reads back to the same f64. A value that is not finite stops the
 /// output before its batch is written, with the engine error (naming the
 /// point) inside the I/O error.
-fn write_csv(rows: &Rows, layers: Option<&LayerAbsorption>, out: &mut dyn Write) -> io::Result<()> {
-    out.write_all(COLUMNS.join(",").as_bytes())?;
+fn write_csv(
+    rows: &Rows,
+    basis: Basis,
+    layers: Option<&LayerAbsorption>,
+    out: &mut dyn Write,
+) -> io::Result<()> {
+    out.write_all(basis.columns().join(",").as_bytes())?;
     for c in layers.iter().flat_map(|l| &l.columns) {
         out.write_all(b",")?;
         out.write_all(c.as_bytes())?;
@@ -144,18 +236,15 @@ fn write_csv(rows: &Rows, layers: Option<&LayerAbsorption>, out: &mut dyn Write)
         buffers[..count].par_iter_mut().enumerate().for_each_init(
             || {
                 (
-                    vec![Rt::default(); PIECE.min(nw)],
+                    vec![[0.0; 7]; PIECE.min(nw)],
                     [(); 7].map(|_| zmij::Buffer::new()),
                 )
             },
             |(values_buf, nums), (i, buf)| {
                 let (a, w0) = ((first + i) / per_angle, (first + i) % per_angle * PIECE);
                 let piece = &mut values_buf[..PIECE.min(nw - w0)];
-                rows.fill(a, w0, piece);
                 buf.clear();
-                if let Some(e) = (w0..).zip(piece.iter()).find_map(|(w, x)| {
-                    check_point(x, rows.wavelengths_nm()[w], rows.angles_deg()[a]).err()
-                }) {
+                if let Err(e) = fill_values(rows, basis, a, w0, piece) {
                     *failed.lock().expect("no panics while held") = Some(e);
                     return;
                 }
@@ -166,11 +255,7 @@ fn write_csv(rows: &Rows, layers: Option<&LayerAbsorption>, out: &mut dyn Write)
                     // All seven are formatted before any is copied: reading
                     // a number's text right after it is written stalls.
                     let mut texts = [""; 7];
-                    for ((t, n), v) in texts
-                        .iter_mut()
-                        .zip(nums.iter_mut())
-                        .zip(values(x, rows.lossless(w)))
-                    {
+                    for ((t, n), v) in texts.iter_mut().zip(nums.iter_mut()).zip(*x) {
                         *t = n.format(v);
                     }
                     for t in texts {
@@ -194,19 +279,39 @@ fn write_csv(rows: &Rows, layers: Option<&LayerAbsorption>, out: &mut dyn Write)
 }
 
 /// The whole grid as one JSON object, with the columns of `layers` after
-/// A; a value that is not finite is an error naming its point.
-fn json(title: &str, rows: &Rows, layers: Option<&LayerAbsorption>) -> lamella::Result<String> {
-    let s = rows.all();
+/// A and the Jones matrices where the design is coherent; a value that is
+/// not finite is an error naming its point.
+fn json(
+    title: &str,
+    rows: &Rows,
+    basis: Basis,
+    layers: Option<&LayerAbsorption>,
+) -> lamella::Result<String> {
+    let s = if rows.has_jones() {
+        rows.all_with_jones()
+    } else {
+        rows.all()
+    };
     check_spectra(&s)?;
+    let nw = s.wavelengths_nm.len();
+    let point = |a: usize, w: usize| -> [f64; 7] {
+        match (basis, &s.jones) {
+            (Basis::Linear, _) => values(&s.at_angle(a)[w], rows.lossless(w)),
+            (Basis::Circular, Some(j)) => {
+                circular_values(&Circular::of(&j[a * nw + w]), rows.lossless(w))
+            }
+            (Basis::Circular, None) => {
+                circular_values(&Circular::of_isotropic(&s.at_angle(a)[w]), rows.lossless(w))
+            }
+        }
+    };
+    let table: Vec<Vec<[f64; 7]>> = (0..s.angles_deg.len())
+        .map(|a| (0..nw).map(|w| point(a, w)).collect())
+        .collect();
     let per_angle = |col: usize| -> serde_json::Value {
-        (0..s.angles_deg.len())
-            .map(|a| {
-                s.at_angle(a)
-                    .iter()
-                    .enumerate()
-                    .map(|(w, x)| values(x, rows.lossless(w))[col])
-                    .collect::<Vec<f64>>()
-            })
+        table
+            .iter()
+            .map(|row| row.iter().map(|v| v[col]).collect::<Vec<f64>>())
             .collect::<Vec<_>>()
             .into()
     };
@@ -214,7 +319,7 @@ fn json(title: &str, rows: &Rows, layers: Option<&LayerAbsorption>) -> lamella::
     doc.insert("title".into(), title.into());
     doc.insert("wavelength_nm".into(), s.wavelengths_nm.clone().into());
     doc.insert("angle_deg".into(), s.angles_deg.clone().into());
-    for (col, name) in COLUMNS[2..].iter().enumerate() {
+    for (col, name) in basis.columns()[2..].iter().enumerate() {
         doc.insert((*name).into(), per_angle(col));
     }
     for (c, name) in layers.iter().flat_map(|l| l.columns.iter().enumerate()) {
@@ -223,6 +328,36 @@ fn json(title: &str, rows: &Rows, layers: Option<&LayerAbsorption>) -> lamella::
             .map(|row| row.iter().map(|cols| cols[c]).collect())
             .collect();
         doc.insert(name.clone(), column.into());
+    }
+    if let Some(jones) = &s.jones {
+        let order = match basis {
+            Basis::Linear => ["p", "s"],
+            Basis::Circular => ["L", "R"],
+        };
+        doc.insert("jones_basis".into(), order.to_vec().into());
+        let in_basis = |j: &Jones| match basis {
+            Basis::Linear => *j,
+            Basis::Circular => j.circular(),
+        };
+        let matrices = |pick: fn(&Jones) -> &nalgebra::Matrix2<num_complex::Complex64>| {
+            serde_json::Value::from(
+                jones
+                    .chunks(nw)
+                    .map(|row| {
+                        row.iter()
+                            .map(|j| {
+                                let m = *pick(&in_basis(j));
+                                [(0, 0), (0, 1), (1, 0), (1, 1)]
+                                    .map(|ij| [m[ij].re, m[ij].im])
+                                    .to_vec()
+                            })
+                            .collect::<Vec<_>>()
+                    })
+                    .collect::<Vec<_>>(),
+            )
+        };
+        doc.insert("jones_r".into(), matrices(|j| &j.r));
+        doc.insert("jones_t".into(), matrices(|j| &j.t));
     }
     Ok(serde_json::to_string(&serde_json::Value::Object(doc)).expect("finite numbers serialise"))
 }

@@ -80,6 +80,7 @@ impl Evaluator {
         side: Side,
         polarization: Polarization,
     ) -> Result<Self> {
+        scene.require_isotropic("the design tools")?;
         let index = scene.indices(wavelengths_nm)?;
         let nw = wavelengths_nm.len();
         // Media with bit-identical indices share one set of terms.

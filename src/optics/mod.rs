@@ -21,5 +21,5 @@ pub use bands::half_trace;
 pub use field::FieldPoint;
 pub use flux::Absorption;
 pub use medium::{MediumTerms, Probe, Sine, Wavenumber};
-pub use spectra::{Rows, Spectra, compute};
+pub use spectra::{Circular, Rows, Spectra, compute};
 pub use stack::{Behind, Exit, LANES, Node, Rt, Stack};

@@ -7,6 +7,7 @@ use std::array::from_fn;
 use num_complex::Complex64;
 use rayon::prelude::*;
 
+use super::aniso::{Gridded, Jones};
 use super::medium::{MediumTerms, Probe, Sine, Wavenumber};
 use super::stack::{Behind, Exit, LANES, Rt, Stack};
 
@@ -20,6 +21,9 @@ pub struct Spectra {
     pub angles_deg: Vec<f64>,
     /// Values at every grid point.
     pub rt: Vec<Rt>,
+    /// The reflection and transmission Jones matrices at every grid point
+    /// (same layout), when the grid was computed through the 4×4 path.
+    pub jones: Option<Vec<Jones>>,
 }
 
 impl Spectra {
@@ -28,9 +32,66 @@ impl Spectra {
         let nw = self.wavelengths_nm.len();
         &self.rt[a * nw..(a + 1) * nw]
     }
+
+    /// The Jones matrices at angle index `a`, when the grid has them.
+    pub fn jones_at_angle(&self, a: usize) -> Option<&[Jones]> {
+        let nw = self.wavelengths_nm.len();
+        self.jones.as_ref().map(|j| &j[a * nw..(a + 1) * nw])
+    }
+}
+
+/// Total reflectance and transmittance for left- and right-handed
+/// circularly polarized incident light (co- plus cross-polarized).
+#[derive(Debug, Clone, Copy, Default, PartialEq)]
+pub struct Circular {
+    /// R for left-handed incident light.
+    pub rl: f64,
+    /// R for right-handed incident light.
+    pub rr: f64,
+    /// T for left-handed incident light.
+    pub tl: f64,
+    /// T for right-handed incident light.
+    pub tr: f64,
+}
+
+impl Circular {
+    /// The totals of one point's Jones matrices.
+    pub fn of(j: &Jones) -> Circular {
+        let [rl, rr, tl, tr] = j.circular().powers();
+        Circular { rl, rr, tl, tr }
+    }
+
+    /// The totals of a stack that never mixes s and p (isotropic layers
+    /// only): both handednesses see the mean of s and p, since left and
+    /// right light carry half their power in each.
+    pub fn of_isotropic(x: &Rt) -> Circular {
+        Circular {
+            rl: x.r(),
+            rr: x.r(),
+            tl: x.t(),
+            tr: x.t(),
+        }
+    }
+
+    /// Unpolarized reflectance, the mean of the two handednesses.
+    pub fn r(&self) -> f64 {
+        0.5 * (self.rl + self.rr)
+    }
+
+    /// Unpolarized transmittance, the mean of the two handednesses.
+    pub fn t(&self) -> f64 {
+        0.5 * (self.tl + self.tr)
+    }
 }
 
 impl Rt {
+    /// The totals of one point's Jones matrices: R_s is the power reflected
+    /// (co- plus cross-polarized) for s-polarized incident light, and so on.
+    pub fn of_jones(j: &Jones) -> Rt {
+        let [rp, rs, tp, ts] = j.powers();
+        Rt { rs, rp, ts, tp }
+    }
+
     /// Unpolarized reflectance (R_s + R_p)/2.
     pub fn r(&self) -> f64 {
         0.5 * (self.rs + self.rp)
@@ -67,6 +128,12 @@ pub struct Rows<'a> {
     k0: Vec<Wavenumber>,
     /// Whether nothing absorbs at each wavelength.
     lossless: Vec<bool>,
+    /// The same design as a 4×4 stack, when it has one (a coherent stack),
+    /// with every medium's index per wavelength (`[w][m]`).
+    four: Option<(&'a Gridded, Vec<Vec<Complex64>>)>,
+    /// Whether R and T come from the 4×4 stack (a stack with anisotropic
+    /// layers) rather than the 2×2 realisations.
+    routed: bool,
 }
 
 impl<'a> Rows<'a> {
@@ -101,6 +168,69 @@ impl<'a> Rows<'a> {
                 .map(|&w| Probe::wavenumber(w))
                 .collect(),
             lossless,
+            four: None,
+            routed: false,
+        }
+    }
+
+    /// Attaches the design as a 4×4 stack, so that Jones matrices can be
+    /// computed; with `routed` R and T come from it as well (a design with
+    /// anisotropic layers, which the 2×2 realisations cannot hold).
+    pub fn with_four(mut self, four: &'a Gridded, routed: bool) -> Self {
+        let by_wavelength = (0..self.wavelengths_nm.len())
+            .map(|w| self.index.iter().map(|n| n[w]).collect())
+            .collect();
+        self.four = Some((four, by_wavelength));
+        self.routed = routed;
+        self
+    }
+
+    /// True when Jones matrices can be computed ([`Rows::with_four`]).
+    pub fn has_jones(&self) -> bool {
+        self.four.is_some()
+    }
+
+    /// The Jones matrices at angle index `a` and wavelength index `w`; a
+    /// point the 4×4 path cannot compute gives [`Jones::not_computable`].
+    ///
+    /// # Panics
+    ///
+    /// When the rows have no 4×4 stack ([`Rows::has_jones`]).
+    pub fn jones(&self, a: usize, w: usize) -> Jones {
+        let (four, n) = self.four.as_ref().expect("rows with a 4×4 stack");
+        let at = Probe::of(self.k0[w], n[w][four.stack.incident].re, self.sines[a]);
+        four.stack
+            .jones(&n[w], &four.tensors[w], &at)
+            .unwrap_or_else(|_| Jones::not_computable())
+    }
+
+    /// Fills `out` with the Jones matrices at angle index `a` for the
+    /// wavelengths `first_w ..first_w + out.len()`, on this thread.
+    ///
+    /// # Panics
+    ///
+    /// When the rows have no 4×4 stack ([`Rows::has_jones`]).
+    pub fn fill_jones(&self, a: usize, first_w: usize, out: &mut [Jones]) {
+        for (w, j) in (first_w..).zip(out.iter_mut()) {
+            *j = self.jones(a, w);
+        }
+    }
+
+    /// Fills `out` with the circular totals at angle index `a` for the
+    /// wavelengths `first_w ..first_w + out.len()`: from the Jones matrices
+    /// for a design with anisotropic layers, from R and T otherwise
+    /// ([`Circular::of_isotropic`]).
+    pub fn fill_circular(&self, a: usize, first_w: usize, out: &mut [Circular]) {
+        if self.routed {
+            for (w, c) in (first_w..).zip(out.iter_mut()) {
+                *c = Circular::of(&self.jones(a, w));
+            }
+            return;
+        }
+        let mut rt = vec![Rt::default(); out.len()];
+        self.fill(a, first_w, &mut rt);
+        for (c, x) in out.iter_mut().zip(&rt) {
+            *c = Circular::of_isotropic(x);
         }
     }
 
@@ -129,8 +259,12 @@ impl<'a> Rows<'a> {
         }
     }
 
-    /// All rows, in parallel over angles and wavelengths.
+    /// All rows, in parallel over angles and wavelengths, with the Jones
+    /// matrices when R and T come from the 4×4 stack.
     pub fn all(&self) -> Spectra {
+        if self.routed {
+            return self.all_with_jones();
+        }
         let nw = self.wavelengths_nm.len();
         let mut rt = vec![Rt::default(); self.angles_deg.len() * nw];
         rt.par_chunks_mut(nw).enumerate().for_each(|(a, row)| {
@@ -146,6 +280,52 @@ impl<'a> Rows<'a> {
             wavelengths_nm: self.wavelengths_nm.to_vec(),
             angles_deg: self.angles_deg.to_vec(),
             rt,
+            jones: None,
+        }
+    }
+
+    /// All rows with the Jones matrices at every point, in parallel; R and
+    /// T are their totals where the design is anisotropic and the 2×2
+    /// engine's otherwise (the two agree for isotropic designs).
+    ///
+    /// # Panics
+    ///
+    /// When the rows have no 4×4 stack ([`Rows::has_jones`]).
+    pub fn all_with_jones(&self) -> Spectra {
+        let nw = self.wavelengths_nm.len();
+        let mut jones = vec![Jones::not_computable(); self.angles_deg.len() * nw];
+        jones.par_chunks_mut(nw).enumerate().for_each(|(a, row)| {
+            row.par_chunks_mut(LANES)
+                .enumerate()
+                .for_each(|(b, block)| self.fill_jones(a, b * LANES, block))
+        });
+        let rt = if self.routed {
+            jones.iter().map(Rt::of_jones).collect()
+        } else {
+            let mut s = self.with_routing(false).all();
+            std::mem::take(&mut s.rt)
+        };
+        Spectra {
+            wavelengths_nm: self.wavelengths_nm.to_vec(),
+            angles_deg: self.angles_deg.to_vec(),
+            rt,
+            jones: Some(jones),
+        }
+    }
+
+    /// A view of the same rows with R and T taken from the 2×2 engine or
+    /// the 4×4 stack.
+    fn with_routing(&self, routed: bool) -> Rows<'a> {
+        Rows {
+            realisations: self.realisations,
+            index: self.index,
+            wavelengths_nm: self.wavelengths_nm,
+            angles_deg: self.angles_deg,
+            sines: self.sines.clone(),
+            k0: self.k0.clone(),
+            lossless: self.lossless.clone(),
+            four: self.four.clone(),
+            routed,
         }
     }
 
@@ -159,6 +339,12 @@ impl<'a> Rows<'a> {
     /// repeats its final wavelength to fill up; the extra results are dropped).
     /// `terms` is scratch space, one list per lane.
     fn fill_block(&self, a: usize, first_w: usize, out: &mut [Rt], terms: &mut [Vec<MediumTerms>]) {
+        if self.routed {
+            for (w, x) in (first_w..).zip(out.iter_mut()) {
+                *x = Rt::of_jones(&self.jones(a, w));
+            }
+            return;
+        }
         let last = first_w + out.len() - 1;
         let ws: [usize; LANES] = from_fn(|l| (first_w + l).min(last));
         let incident = self.realisations[0].incident;

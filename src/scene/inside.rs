@@ -111,6 +111,7 @@ impl Scene {
     /// The realisations, refused when one is too long to write out.
     fn resolved_stacks(&self, what: &str) -> Result<Vec<optics::Stack>> {
         self.require_film()?;
+        self.require_isotropic(what)?;
         let stacks = self.realisations(&self.stack);
         let layers = stacks
             .iter()
@@ -321,6 +322,7 @@ impl Scene {
     /// `stack` (depth first), nominal thicknesses, first period of a graded
     /// group (see [`Bands`]).
     pub fn bands(&self) -> Result<Bands> {
+        self.require_isotropic("band analysis")?;
         self.require_film()?;
         fn first(items: &[Item], path: &str) -> Option<(String, Vec<Item>)> {
             items.iter().enumerate().find_map(|(i, item)| match item {

@@ -6,6 +6,7 @@ use std::collections::HashMap;
 use serde_json::Value;
 
 use super::Loader;
+use super::aniso::{self, Crystal, CrystalKind};
 use super::json::{Obj, number, show};
 use crate::error::{Error, Result};
 use crate::materials::{Dispersion, MixingRule, NkTable, Oscillator, library};
@@ -35,6 +36,7 @@ pub(super) struct Registry<'a> {
     load: &'a Loader<'a>,
     media: Vec<Medium>,
     by_name: HashMap<String, usize>,
+    crystals: Vec<Crystal>,
 }
 
 const MODEL_KEYS: &[&str] = &["n", "cauchy", "sellmeier", "table", "drude_lorentz", "mix"];
@@ -47,7 +49,83 @@ impl<'a> Registry<'a> {
             load,
             media: Vec::new(),
             by_name: HashMap::new(),
+            crystals: Vec::new(),
         })
+    }
+
+    /// When `name` is an anisotropic material of the scene (used at `key`):
+    /// its index among the crystals, its kind and the medium of its first
+    /// principal index. Its components (each a material name or an inline
+    /// model) become media of their own.
+    pub fn crystal(
+        &mut self,
+        name: &str,
+        key: &str,
+    ) -> Result<Option<(usize, CrystalKind, usize)>> {
+        if let Some(i) = self.crystals.iter().position(|c| c.name == name) {
+            let c = &self.crystals[i];
+            return Ok(Some((i, c.kind, c.principal[0])));
+        }
+        let Some(v) = self.user.as_ref().and_then(|u| u.get(name)) else {
+            return Ok(None);
+        };
+        if !aniso::is_crystal(v) {
+            return Ok(None);
+        }
+        let mkey = format!("materials.{name}");
+        let o = Obj::new(v, &mkey)?;
+        o.only(&["uniaxial", "biaxial", "source", "note"])?;
+        let (kind, model) = match (o.get("uniaxial"), o.get("biaxial")) {
+            (Some(u), None) => (CrystalKind::Uniaxial, u),
+            (None, Some(b)) => (CrystalKind::Biaxial, b),
+            _ => {
+                return Err(Error::invalid(
+                    &mkey,
+                    show(v),
+                    "give uniaxial or biaxial, not both",
+                ));
+            }
+        };
+        let mkey = o.key(if kind == CrystalKind::Uniaxial {
+            "uniaxial"
+        } else {
+            "biaxial"
+        });
+        let parts = Obj::new(model, &mkey)?;
+        let names = aniso::components(kind);
+        parts.only(names)?;
+        let mut media = Vec::new();
+        for part in names {
+            let at = parts.key(part);
+            let m = match parts.get(part) {
+                None => return Err(parts.missing(part, "a material name or model")),
+                Some(Value::String(other)) => self.resolve(other, &at)?,
+                Some(inline) => {
+                    let (dispersion, valid_nm) =
+                        self.user_model(inline, &at, &[name.to_string()])?;
+                    self.media.push(Medium {
+                        name: format!("{name}.{part}"),
+                        key: at.clone(),
+                        dispersion,
+                        valid_nm,
+                        used_at: key.to_string(),
+                    });
+                    self.media.len() - 1
+                }
+            };
+            media.push(m);
+        }
+        let principal = match kind {
+            CrystalKind::Uniaxial => [media[0], media[0], media[1]],
+            CrystalKind::Biaxial => [media[0], media[1], media[2]],
+        };
+        self.crystals.push(Crystal {
+            name: name.to_string(),
+            key: format!("materials.{name}"),
+            kind,
+            principal,
+        });
+        Ok(Some((self.crystals.len() - 1, kind, principal[0])))
     }
 
     /// Index of the medium called `name`, used at `key`.
@@ -67,8 +145,9 @@ impl<'a> Registry<'a> {
         Ok(self.media.len() - 1)
     }
 
-    pub fn into_media(self) -> Vec<Medium> {
-        self.media
+    /// The media and the anisotropic materials.
+    pub fn into_parts(self) -> (Vec<Medium>, Vec<Crystal>) {
+        (self.media, self.crystals)
     }
 
     fn dispersion(
@@ -79,6 +158,15 @@ impl<'a> Registry<'a> {
     ) -> Result<(Vouched, String)> {
         if let Some(v) = self.user.as_ref().and_then(|u| u.get(name)) {
             let mkey = format!("materials.{name}");
+            if aniso::is_crystal(v) {
+                return Err(Error::invalid(
+                    key,
+                    name,
+                    "is anisotropic: it can only be the material of a layer of `stack` \
+                     (the incident medium, the substrate, mixtures, components and coatings \
+                     need an isotropic material)",
+                ));
+            }
             if chain.iter().any(|c| c == name) {
                 return Err(Error::invalid(mkey, name, "a mixture refers to itself"));
             }

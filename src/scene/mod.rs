@@ -1,6 +1,7 @@
 //! Scene files: the validated description of a coating problem, built from
 //! JSON in one place so that everything downstream can trust it.
 
+mod aniso;
 mod coating;
 mod inside;
 pub(crate) mod json;
@@ -18,6 +19,7 @@ use crate::grid::Range;
 use crate::optics::{self, Behind, Exit, Rt, Spectra};
 use crate::pigment::Coating;
 use crate::render::{Mesh, Settings, Shape};
+pub use aniso::{Anisotropy, Crystal, CrystalKind, Helix};
 pub use coating::KEYS as COATING_KEYS;
 pub use inside::{Bands, FIELD_POINTS, LayerAbsorption, MAX_RESOLVED_LAYERS, StopBand};
 use json::Obj;
@@ -89,8 +91,11 @@ pub enum Substrate {
 pub struct Scene {
     /// Free text.
     pub title: String,
-    /// Every medium the scene uses, each once.
+    /// Every medium the scene uses, each once (the principal indices of
+    /// anisotropic materials among them).
     pub media: Vec<Medium>,
+    /// The anisotropic materials the stack uses.
+    pub crystals: Vec<Crystal>,
     /// Index of the incident medium.
     pub incident: usize,
     /// The layer design, incident side first.
@@ -257,9 +262,11 @@ impl Scene {
             }
             _ => None,
         };
+        let (media, crystals) = media.into_parts();
         let mut scene = Scene {
             title: top.str("title")?.unwrap_or("").to_string(),
-            media: media.into_media(),
+            media,
+            crystals,
             incident,
             stack,
             substrate,
@@ -276,12 +283,113 @@ impl Scene {
             document,
         };
         scene.check_expansion()?;
+        scene.check_anisotropy()?;
         let index = scene.indices(&scene.wavelengths_nm)?;
         if let Some(c) = &scene.coating {
             check_coating(&scene, c, &index)?;
         }
         scene.warnings = warnings::of(&scene);
         Ok(scene)
+    }
+
+    /// True when a layer of the stack is anisotropic: the scene is computed
+    /// by the 4×4 path.
+    pub fn anisotropic(&self) -> bool {
+        aniso::any_anisotropic(&self.stack)
+    }
+
+    /// Refuses an anisotropic scene for a command (`what`) that computes
+    /// only isotropic stacks.
+    pub fn require_isotropic(&self, what: &str) -> Result<()> {
+        if !self.anisotropic() {
+            return Ok(());
+        }
+        Err(Error::invalid(
+            "stack",
+            "(anisotropic layers)",
+            format!(
+                "{what} handles isotropic layers only; use `lamella spectrum` or `lamella color` \
+                 for a scene with uniaxial, biaxial or helicoidal layers"
+            ),
+        ))
+    }
+
+    /// True when the design can be written as one coherent 4×4 stack (no
+    /// incoherent layer, no substrate sheet, no disorder), so that Jones
+    /// matrices exist.
+    pub fn coherent(&self) -> bool {
+        matches!(self.substrate, Substrate::Medium(_))
+            && self.disorder.is_none()
+            && !aniso::any_incoherent(&self.stack)
+    }
+
+    /// The design as a 4×4 stack with its tensors on `wavelengths_nm`
+    /// (`index` from [`Scene::indices`] on the same wavelengths), helices
+    /// sliced for the largest of `angles_deg`; `None` when the design is not
+    /// [`Scene::coherent`].
+    pub fn gridded(
+        &self,
+        index: &[Vec<Complex64>],
+        wavelengths_nm: &[f64],
+        angles_deg: &[f64],
+    ) -> Option<optics::aniso::Gridded> {
+        let Substrate::Medium(exit) = self.substrate else {
+            return None;
+        };
+        self.coherent().then(|| {
+            aniso::gridded(
+                &self.stack,
+                self.incident,
+                exit,
+                &self.crystals,
+                index,
+                wavelengths_nm,
+                angles_deg,
+            )
+        })
+    }
+
+    /// Refuses what the 4×4 path does not take beside anisotropic layers:
+    /// incoherent layers, a substrate sheet, thickness disorder, an
+    /// anisotropic platelet.
+    fn check_anisotropy(&self) -> Result<()> {
+        if let Some(c) = &self.coating
+            && aniso::any_anisotropic(&c.platelet)
+        {
+            return Err(Error::invalid(
+                "coating.platelet",
+                "(anisotropic layers)",
+                "platelets take isotropic layers only",
+            ));
+        }
+        if !self.anisotropic() {
+            return Ok(());
+        }
+        if let Substrate::Sheet { thickness_um, .. } = self.substrate {
+            return Err(Error::invalid(
+                "substrate.thickness_um",
+                thickness_um,
+                "a substrate sheet (incoherent) cannot be combined with anisotropic layers; \
+                 give the substrate as a material name (semi-infinite)",
+            ));
+        }
+        aniso::check_periods(&self.stack, 1.0)?;
+        if aniso::any_incoherent(&self.stack) {
+            return Err(Error::invalid(
+                "stack",
+                "(an incoherent layer)",
+                "incoherent layers cannot be combined with anisotropic layers",
+            ));
+        }
+        if self.disorder.is_some() {
+            return Err(Error::invalid(
+                "disorder",
+                "(thickness disorder)",
+                "thickness disorder cannot be combined with anisotropic layers; \
+                 remove `disorder` and the layers' sigma_nm / sigma_pct",
+            ));
+        }
+        Ok(())
     }
 
     /// Refuses a coating-only scene (no `stack`) for a command that computes
@@ -379,28 +487,61 @@ impl Scene {
     /// R and T on the scene's wavelengths at `angles_deg` (each below 90°),
     /// checked like [`Scene::spectra`].
     pub fn spectra_at(&self, angles_deg: &[f64]) -> Result<Spectra> {
-        let spectra = optics::compute(
-            &self.realisations(&self.stack),
-            &self.indices(&self.wavelengths_nm)?,
-            &self.wavelengths_nm,
-            angles_deg,
-        );
+        let spectra = self.rows_at(angles_deg, false, |rows| rows.all())?;
+        check_spectra(&spectra)?;
+        Ok(spectra)
+    }
+
+    /// [`Scene::spectra`] with the Jones matrices at every point (through
+    /// the 4×4 path, for isotropic scenes too); refused for a scene that is
+    /// not [`Scene::coherent`], where light has no single amplitude.
+    pub fn spectra_with_jones(&self) -> Result<Spectra> {
+        if !self.coherent() {
+            return Err(Error::invalid(
+                "stack",
+                "(incoherent layer, substrate sheet or disorder)",
+                "polarization amplitudes (Jones matrices, circular analysers) need a coherent \
+                 stack: no incoherent layer, substrate sheet or thickness disorder",
+            ));
+        }
+        let spectra = self.rows_at(&self.angles_deg, true, |rows| rows.all_with_jones())?;
         check_spectra(&spectra)?;
         Ok(spectra)
     }
 
     /// Runs `f` on the scene's grid computation, for callers that take the
     /// spectra row by row rather than whole (they check each point with
-    /// [`check_point`]).
+    /// [`check_point`]). The rows carry the 4×4 stack and take R and T from
+    /// it when the scene is [`Scene::anisotropic`].
     pub fn with_rows<T>(&self, f: impl FnOnce(&optics::Rows) -> T) -> Result<T> {
+        self.rows_at(&self.angles_deg, false, f)
+    }
+
+    /// [`Scene::with_rows`] with the 4×4 stack attached whenever the scene
+    /// is [`Scene::coherent`], so that [`optics::Rows::has_jones`] holds for
+    /// isotropic scenes too.
+    pub fn with_jones_rows<T>(&self, f: impl FnOnce(&optics::Rows) -> T) -> Result<T> {
+        self.rows_at(&self.angles_deg, true, f)
+    }
+
+    fn rows_at<T>(
+        &self,
+        angles_deg: &[f64],
+        jones: bool,
+        f: impl FnOnce(&optics::Rows) -> T,
+    ) -> Result<T> {
         let index = self.indices(&self.wavelengths_nm)?;
         let stacks = self.realisations(&self.stack);
-        Ok(f(&optics::Rows::new(
-            &stacks,
-            &index,
-            &self.wavelengths_nm,
-            &self.angles_deg,
-        )))
+        let rows = optics::Rows::new(&stacks, &index, &self.wavelengths_nm, angles_deg);
+        let four = if jones || self.anisotropic() {
+            self.gridded(&index, &self.wavelengths_nm, angles_deg)
+        } else {
+            None
+        };
+        Ok(match &four {
+            Some(g) => f(&rows.with_four(g, self.anisotropic())),
+            None => f(&rows),
+        })
     }
 
     /// Index of the medium called `name` in [`Scene::media`].
@@ -470,12 +611,39 @@ impl Scene {
     }
 }
 
-/// Refuses spectra holding a value that is not a finite number, naming the
-/// first such point.
+/// Refuses spectra holding a value that is not a finite number (R, T or a
+/// Jones matrix), naming the first such point.
 pub fn check_spectra(spectra: &Spectra) -> Result<()> {
     for (a, &angle) in spectra.angles_deg.iter().enumerate() {
         for (x, &w) in spectra.at_angle(a).iter().zip(&spectra.wavelengths_nm) {
             check_point(x, w, angle)?;
+        }
+    }
+    check_jones(spectra)
+}
+
+/// Refuses Jones matrices holding a value that is not a finite number,
+/// naming the first such point.
+pub fn check_jones(spectra: &Spectra) -> Result<()> {
+    let Some(jones) = &spectra.jones else {
+        return Ok(());
+    };
+    let nw = spectra.wavelengths_nm.len();
+    for (i, j) in jones.iter().enumerate() {
+        if let Some(z) =
+            j.r.iter()
+                .chain(j.t.iter())
+                .find(|z| !(z.re.is_finite() && z.im.is_finite()))
+        {
+            return Err(Error::not_computable(
+                "Jones matrix",
+                format!(
+                    "{} nm, {}°",
+                    spectra.wavelengths_nm[i % nw],
+                    spectra.angles_deg[i / nw]
+                ),
+                if z.re.is_finite() { z.im } else { z.re },
+            ));
         }
     }
     Ok(())

@@ -6,6 +6,7 @@ use rand::rngs::StdRng;
 use rand_distr::{Distribution, Normal};
 use serde_json::Value;
 
+use super::aniso::{self, Anisotropy};
 use super::json::{Obj, pair, show};
 use super::media::Registry;
 use super::{Disorder, MAX_REPEAT};
@@ -46,6 +47,10 @@ pub struct Layer {
     /// A thick layer treated incoherently (intensities add; only at the
     /// top level of `stack`).
     pub incoherent: bool,
+    /// The layer's anisotropic material, orientation and helix, when its
+    /// material is anisotropic (then `medium` is the medium of its first
+    /// principal index, and only the 4×4 path computes the layer).
+    pub anisotropy: Option<Anisotropy>,
 }
 
 /// A repeat group.
@@ -156,11 +161,36 @@ fn parse_item(
         "sigma_nm",
         "sigma_pct",
         "note",
+        "orientation",
+        "helix",
     ])?;
     let name = o
         .str("material")?
         .ok_or_else(|| o.missing("material", "a material name (or `repeat` for a group)"))?;
-    let medium = media.resolve(name, &o.key("material"))?;
+    let (medium, anisotropy) = match media.crystal(name, &o.key("material"))? {
+        Some((crystal, kind, first)) => (first, Some(aniso::parse_layer(&o, crystal, kind)?)),
+        None => {
+            for key in ["orientation", "helix"] {
+                if let Some(v) = o.get(key) {
+                    return Err(Error::invalid(
+                        o.key(key),
+                        show(v),
+                        format!(
+                            "`{name}` is isotropic: {key} needs a uniaxial or biaxial material"
+                        ),
+                    ));
+                }
+            }
+            (media.resolve(name, &o.key("material"))?, None)
+        }
+    };
+    if anisotropy.is_some() && o.get("incoherent") == Some(&Value::Bool(true)) {
+        return Err(Error::invalid(
+            o.key("incoherent"),
+            "true",
+            "an anisotropic layer is computed coherently; it cannot be incoherent",
+        ));
+    }
     let (thickness_key, thickness_nm) = match (o.f64("thickness_nm")?, o.f64("thickness_um")?) {
         (Some(nm), None) => ("thickness_nm", nm),
         (None, Some(um)) => ("thickness_um", um * 1e3),
@@ -227,6 +257,7 @@ fn parse_item(
         sigma,
         pointer: pointer.to_string(),
         incoherent,
+        anisotropy,
     }))
 }
 
@@ -370,6 +401,14 @@ pub fn realise(items: &[Item], disorder: Option<&Disorder>) -> Vec<Vec<Node>> {
     }
 }
 
+/// The thickness scale of period `p` of `r` inside a part at `scale`:
+/// graded repeats scale linearly from 1 at the first period to
+/// `chirp_scale` at the last.
+pub(super) fn period_scale(r: &Repeat, p: u64, scale: f64) -> f64 {
+    let steps = (r.count.max(2) - 1) as f64;
+    scale * (1.0 + (r.chirp_scale - 1.0) * p as f64 / steps)
+}
+
 type Jitter<'r> = Option<(&'r mut StdRng, Option<Sigma>)>;
 
 /// Expands `items` at thickness `scale`, drawing jitter when `jitter` is set.
@@ -406,10 +445,8 @@ fn emit(items: &[Item], scale: f64, jitter: &mut Jitter) -> Vec<Node> {
             }
             Item::Repeat(r) => {
                 if expands(r, jitter.is_some()) {
-                    let steps = (r.count.max(2) - 1) as f64;
                     for p in 0..r.count {
-                        let s = scale * (1.0 + (r.chirp_scale - 1.0) * p as f64 / steps);
-                        out.extend(emit(&r.items, s, jitter));
+                        out.extend(emit(&r.items, period_scale(r, p, scale), jitter));
                     }
                 } else {
                     out.push(Node::Repeat {

@@ -34,6 +34,23 @@ fn q(psi: f64) -> Matrix4<C> {
     .map(|x| C::new(x, 0.0))
 }
 
+/// The product of two 4×4 complex matrices, written out on the column-major
+/// entries (the hot loop of the helix integration; nalgebra's generic
+/// product does not vectorise for complex entries).
+fn mul(a: &Matrix4<C>, b: &Matrix4<C>) -> Matrix4<C> {
+    let (x, y) = (a.as_slice(), b.as_slice());
+    let mut out = [C::new(0.0, 0.0); 16];
+    for j in 0..4 {
+        for k in 0..4 {
+            let bkj = y[4 * j + k];
+            for i in 0..4 {
+                out[4 * j + i] += x[4 * k + i] * bkj;
+            }
+        }
+    }
+    Matrix4::from_column_slice(&out)
+}
+
 /// exp(A) of a 4×4 matrix by scaling and squaring with a Taylor series
 /// summed until its terms fall below 1e-17 of the sum (common practice; the
 /// series of e^{A/2^s} with ‖A/2^s‖ ≤ ½ converges in a few terms).
@@ -44,20 +61,68 @@ pub fn exp4(a: &Matrix4<C>) -> Matrix4<C> {
     } else {
         0
     };
-    let scaled = a / C::new(2f64.powi(squarings), 0.0);
+    let scaled = a * C::new(0.5f64.powi(squarings), 0.0);
     let mut sum = Matrix4::<C>::identity();
     let mut term = Matrix4::<C>::identity();
     for k in 1..40 {
-        term = term * scaled / C::new(k as f64, 0.0);
+        term = mul(&term, &scaled) * C::new(1.0 / k as f64, 0.0);
         sum += term;
-        if term.iter().all(|z| z.norm() <= 1e-17) {
+        if term.iter().all(|z| z.norm_sqr() <= 1e-34) {
             break;
         }
     }
     for _ in 0..squarings {
-        sum = sum * sum;
+        sum = mul(&sum, &sum);
     }
     sum
+}
+
+/// Number of samples that determine A′(ψ) exactly: its entries are
+/// trigonometric polynomials of degree at most 4 in ψ (Δ's entries are of
+/// degree ≤ 2 in the turned tensor, ε₃₃ being invariant under a turn about
+/// z, and the frame rotation adds 2), so 9 equally spaced samples fix them
+/// (discrete Fourier interpolation, common practice).
+const SAMPLES: usize = 9;
+
+/// A′ as a function of the axes' azimuth ψ, from its Fourier coefficients
+/// C_k (k = −4 … 4): A′(ψ) = Σ C_k e^{ikψ}.
+struct Generator {
+    /// C_0, then (C_k, C_−k) for k = 1 … 4.
+    c0: Matrix4<C>,
+    pairs: [(Matrix4<C>, Matrix4<C>); 4],
+}
+
+impl Generator {
+    fn of(f: impl Fn(f64) -> Matrix4<C>) -> Generator {
+        let samples: Vec<(f64, Matrix4<C>)> = (0..SAMPLES)
+            .map(|j| {
+                let psi = std::f64::consts::TAU * j as f64 / SAMPLES as f64;
+                (psi, f(psi))
+            })
+            .collect();
+        let coefficient = |k: i32| {
+            samples.iter().fold(Matrix4::<C>::zeros(), |acc, (psi, m)| {
+                acc + m * C::from_polar(1.0 / SAMPLES as f64, -(k as f64) * psi)
+            })
+        };
+        Generator {
+            c0: coefficient(0),
+            pairs: std::array::from_fn(|k| {
+                (coefficient(k as i32 + 1), coefficient(-(k as i32) - 1))
+            }),
+        }
+    }
+
+    fn at(&self, psi: f64) -> Matrix4<C> {
+        let e = C::from_polar(1.0, psi);
+        let mut power = C::new(1.0, 0.0);
+        let mut out = self.c0;
+        for (plus, minus) in &self.pairs {
+            power *= e;
+            out += plus * power + minus * power.conj();
+        }
+        out
+    }
 }
 
 /// The transfer of Ψ through a helix from depth `from` to `to` (nm from the
@@ -83,9 +148,14 @@ pub fn transfer(
     let i = C::new(0.0, 1.0);
     // In the turning frame: A′(z) = Qᵀ A(z) Q − ψ′ K, constant at normal incidence.
     let spin = dq0() * C::new(rate, 0.0);
-    let a = |z: f64| {
-        let turn_by = q(psi(z));
-        turn_by.transpose() * delta(&turned(eps, psi(z)), xi) * turn_by * (i * k0) - spin
+    let generator = |p: f64| {
+        let turn_by = q(p);
+        turn_by.transpose() * delta(&turned(eps, p), xi) * turn_by * (i * k0) - spin
+    };
+    let fourier = (xi != 0.0).then(|| Generator::of(generator));
+    let a = |z: f64| match &fourier {
+        Some(g) => g.at(psi(z)),
+        None => generator(psi(z)),
     };
     // Fourth-order Magnus steps across [from, to].
     let magnus = |steps: usize| {
@@ -96,8 +166,8 @@ pub fn transfer(
             let z0 = from + h * n as f64;
             let (a1, a2) = (a(z0 + h * (0.5 - offset)), a(z0 + h * (0.5 + offset)));
             let omega = (a1 + a2) * C::new(0.5 * h, 0.0)
-                + (a2 * a1 - a1 * a2) * C::new(3f64.sqrt() / 12.0 * h * h, 0.0);
-            t = exp4(&omega) * t;
+                + (mul(&a2, &a1) - mul(&a1, &a2)) * C::new(3f64.sqrt() / 12.0 * h * h, 0.0);
+            t = mul(&exp4(&omega), &t);
         }
         t
     };

@@ -93,6 +93,54 @@ pub struct Jones {
     pub t: Matrix2<C>,
 }
 
+/// The handedness of a helix, or of circularly polarized light named by the
+/// helix its electric field traces in space at one instant (module notes).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Handedness {
+    /// Left-handed.
+    Left,
+    /// Right-handed.
+    Right,
+}
+
+impl Handedness {
+    /// The sense of turn of a helix: −1 for left, +1 for right
+    /// ([`Layer4::Helix`]'s `turn`).
+    pub fn turn(self) -> f64 {
+        match self {
+            Handedness::Left => -1.0,
+            Handedness::Right => 1.0,
+        }
+    }
+
+    /// The index of this handedness in the circular basis of
+    /// [`Jones::circular`]: 0 for left, 1 for right.
+    pub fn index(self) -> usize {
+        match self {
+            Handedness::Left => 0,
+            Handedness::Right => 1,
+        }
+    }
+
+    /// `left` or `right`.
+    pub fn name(self) -> &'static str {
+        match self {
+            Handedness::Left => "left",
+            Handedness::Right => "right",
+        }
+    }
+}
+
+/// A 4×4 stack with the dielectric tensors of its anisotropic layers on a
+/// wavelength grid, ready to evaluate at any point of the grid.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Gridded {
+    /// The stack.
+    pub stack: Stack4,
+    /// `tensors[w][t]`: tensor t (in the stack frame) at wavelength index w.
+    pub tensors: Vec<Vec<Matrix3<C>>>,
+}
+
 /// Why a point could not be computed.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Failure {
@@ -125,6 +173,29 @@ impl Jones {
             col(&self.t, 0),
             col(&self.t, 1),
         ]
+    }
+
+    /// Power seen through an ideal analyser for each outgoing basis
+    /// polarization with unpolarized incident light: `[R₀, R₁, T₀, T₁]`
+    /// with R_h = ½ Σ_in |r_{h,in}|² (half the row sums of |·|²: unpolarized
+    /// light is an equal incoherent mixture of the two incident basis
+    /// polarizations).
+    pub fn analysed(&self) -> [f64; 4] {
+        let row = |m: &Matrix2<C>, i: usize| 0.5 * (m[(i, 0)].norm_sqr() + m[(i, 1)].norm_sqr());
+        [
+            row(&self.r, 0),
+            row(&self.r, 1),
+            row(&self.t, 0),
+            row(&self.t, 1),
+        ]
+    }
+
+    /// A matrix that is not computable (every entry NaN), standing for a
+    /// point whose [`Failure`] the caller reports through its finiteness
+    /// checks.
+    pub fn not_computable() -> Jones {
+        let nan = Matrix2::from_element(C::new(f64::NAN, f64::NAN));
+        Jones { r: nan, t: nan }
     }
 
     /// The same matrices in the circular basis (left, right), with

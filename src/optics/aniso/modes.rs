@@ -106,7 +106,23 @@ impl Modes {
             unit(Vector4::new(-q / n, n, z, z)),
             unit(Vector4::new(z, z, one, -q)),
         ]);
-        let w_inv = w.try_inverse().unwrap_or_else(Matrix4::zeros);
+        // p waves live in rows 0, 1 (columns 0, 2) and s waves in rows 2, 3
+        // (columns 1, 3): the inverse is the two 2×2 blocks inverted.
+        let mut w_inv = Matrix4::zeros();
+        for (rows, cols) in [([0, 1], [0, 2]), ([2, 3], [1, 3])] {
+            let (a, b) = (w[(rows[0], cols[0])], w[(rows[0], cols[1])]);
+            let (c, d) = (w[(rows[1], cols[0])], w[(rows[1], cols[1])]);
+            let det = a * d - b * c;
+            if det == z {
+                w_inv = Matrix4::zeros();
+                break;
+            }
+            let inv = one / det;
+            w_inv[(cols[0], rows[0])] = d * inv;
+            w_inv[(cols[0], rows[1])] = -b * inv;
+            w_inv[(cols[1], rows[0])] = -c * inv;
+            w_inv[(cols[1], rows[1])] = a * inv;
+        }
         Modes {
             w,
             w_inv,
