@@ -588,8 +588,7 @@ fn helices_powered_beyond_a_million_periods_are_refused() {
     let read = |text: String| lamella::scene::Scene::from_json(&text, &|_| Err("no files".into()));
     let e = read(scene("9007199254740993", 1)).unwrap_err().to_string();
     assert!(
-        e.starts_with("stack[0].stack[0].thickness_nm = 900719925474099")
-            && e.contains("3.002e13"),
+        e.starts_with("stack[0].stack[0].thickness_nm = 900719925474099") && e.contains("3.002e13"),
         "{e}"
     );
     let e = read(scene("3000", 20_000)).unwrap_err().to_string();

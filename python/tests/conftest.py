@@ -13,10 +13,26 @@ SCENES = REPO / "scenes"
 BENCH = REPO / "bench"
 BINARY = Path(os.environ.get("LAMELLA_BIN", REPO / "target" / "release" / "lamella"))
 
-# Every demo scene, and the ones that describe a film (the others are coatings).
+# Every demo scene, the ones that describe a film (the others are coatings),
+# and those with uniaxial, biaxial or helicoidal layers, which the package
+# refuses (the command line computes them).
 ALL_SCENES = sorted(p.name for p in SCENES.glob("*.json"))
-FILM_SCENES = [n for n in ALL_SCENES if "stack" in json.loads((SCENES / n).read_text())]
-COATING_SCENES = [n for n in ALL_SCENES if n not in FILM_SCENES]
+
+
+def _anisotropic(name):
+    materials = json.loads((SCENES / name).read_text()).get("materials", {})
+    return any(isinstance(m, dict) and ("uniaxial" in m or "biaxial" in m) for m in materials.values())
+
+
+ANISOTROPIC_SCENES = [n for n in ALL_SCENES if _anisotropic(n)]
+FILM_SCENES = [
+    n
+    for n in ALL_SCENES
+    if "stack" in json.loads((SCENES / n).read_text()) and n not in ANISOTROPIC_SCENES
+]
+COATING_SCENES = [
+    n for n in ALL_SCENES if n not in FILM_SCENES and n not in ANISOTROPIC_SCENES
+]
 
 
 class Run:

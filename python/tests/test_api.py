@@ -9,7 +9,7 @@ import numpy as np
 import pytest
 
 import lamella
-from conftest import FILM_SCENES, SCENES
+from conftest import ANISOTROPIC_SCENES, FILM_SCENES, SCENES
 
 
 def test_from_dict_of_to_dict_is_the_same_scene():
@@ -101,3 +101,9 @@ def test_stubs_name_every_public_function():
 def test_every_demo_scene_loads():
     for name in FILM_SCENES:
         assert len(lamella.Scene.load(SCENES / name).color()) > 0
+
+
+@pytest.mark.parametrize("name", ANISOTROPIC_SCENES)
+def test_anisotropic_scenes_are_refused_with_a_pointer_to_the_cli(name):
+    with pytest.raises(lamella.SceneError, match="isotropic layers only.*lamella spectrum"):
+        lamella.Scene.load(SCENES / name)

@@ -98,7 +98,7 @@ def test_fit_is_the_cli_fit_from_a_file_and_from_arrays(cli, tmp_path):
 
 def test_fit_refuses_percent_readings(tmp_path):
     scene, path, s = measured_csv(tmp_path)
-    with pytest.raises(lamella.SceneError, match=r"measured\[3\] = R 45"):
+    with pytest.raises(lamella.SceneError, match=r"measured\[3\] = 45: .*looks like percent"):
         r = s.R[0].copy()
         r[3] = 45.0
         lamella.fit(scene, (s.wavelength_nm, r))
