@@ -615,3 +615,56 @@ fn twin_media_share_terms_without_changing_spectra() {
         }
     }
 }
+
+/// A thick incoherent layer's thickness is fitted in µm (`vary_um`), from
+/// the absorption it adds to the light returning from behind it, and the
+/// fitted scene keeps it in µm.
+#[test]
+fn fit_recovers_a_thick_incoherent_layer_in_micrometres() {
+    use lamella::design::fit::{FitSettings, Measured, fit};
+    use lamella::design::variables::edited_document;
+    let scene_at = |um: f64| {
+        let text = format!(
+            r#"{{"materials": {{"film": {{"n": 2.0}}, "tinted": {{"n": 1.5, "k": 2e-4}}, "glass": {{"n": 1.52}}}},
+  "stack": [{{"material": "film", "thickness_nm": 80}},
+            {{"material": "tinted", "thickness_um": {um}, "incoherent": true, "vary_um": [20, 100]}},
+            {{"material": "film", "thickness_nm": 80}}],
+  "substrate": "glass", "wavelengths_nm": {{"from": 400, "to": 700, "step": 10}}, "angles_deg": [0]}}"#
+        );
+        Scene::from_json(&text, &|_| Err("no files".into())).unwrap()
+    };
+    let truth = scene_at(60.0).spectra().unwrap();
+    let measured = vec![Measured {
+        at: At::Angle(0.0),
+        wavelengths_nm: truth.wavelengths_nm.clone(),
+        r: truth.at_angle(0).iter().map(|x| x.r()).collect(),
+    }];
+    let start = scene_at(35.0);
+    let settings = FitSettings {
+        fit_scale: false,
+        budget: Budget {
+            max_evals: 2_000,
+            good_enough: 1e-9,
+            handover: 0.0,
+            min_gain: 1e-9,
+            seed: 1,
+        },
+    };
+    let out = fit(&start, &measured, &settings).unwrap();
+    assert_eq!(
+        (out.variables[0].low_nm, out.variables[0].high_nm),
+        (20e3, 100e3)
+    );
+    assert!(
+        (out.thicknesses_nm[0] - 60e3).abs() < 100.0,
+        "{:?}",
+        out.thicknesses_nm
+    );
+    let doc = edited_document(&start.document, &out.variables, &out.thicknesses_nm).unwrap();
+    let layer = &doc["stack"][1];
+    assert!(layer.get("thickness_nm").is_none(), "{layer}");
+    assert!(
+        (layer["thickness_um"].as_f64().unwrap() - 60.0).abs() < 0.1,
+        "{layer}"
+    );
+}

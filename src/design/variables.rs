@@ -105,7 +105,9 @@ pub fn total_thickness(items: &[Item]) -> f64 {
         .sum()
 }
 
-/// The scene document with `thickness_nm` replaced at each variable's layer.
+/// The scene document with each variable's layer given its new thickness
+/// (`x` in nm), in the unit the layer was written in: `thickness_nm`, or
+/// `thickness_um` for a thick layer given in µm.
 pub fn edited_document(document: &Value, vars: &[Variable], x: &[f64]) -> Result<Value> {
     let mut doc = document.clone();
     for (v, &t) in vars.iter().zip(x) {
@@ -113,7 +115,11 @@ pub fn edited_document(document: &Value, vars: &[Variable], x: &[f64]) -> Result
             .pointer_mut(&v.pointer)
             .and_then(Value::as_object_mut)
             .ok_or_else(|| Error::invalid(&v.pointer, "(missing)", "no layer at this pointer"))?;
-        layer.insert("thickness_nm".into(), Value::from(t));
+        if layer.contains_key("thickness_um") {
+            layer.insert("thickness_um".into(), Value::from(t / 1e3));
+        } else {
+            layer.insert("thickness_nm".into(), Value::from(t));
+        }
     }
     Ok(doc)
 }

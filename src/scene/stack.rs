@@ -158,6 +158,7 @@ fn parse_item(
         "thickness_um",
         "incoherent",
         "vary_nm",
+        "vary_um",
         "sigma_nm",
         "sigma_pct",
         "note",
@@ -236,19 +237,32 @@ fn parse_item(
             "an incoherent layer must be thicker than zero",
         ));
     }
+    // Bounds for the design tools, in nm, or in µm for thick layers.
+    let (vary_key, vary_scale) = match (o.get("vary_nm"), o.get("vary_um")) {
+        (Some(_), Some(v)) => {
+            return Err(Error::invalid(
+                o.key("vary_um"),
+                show(v),
+                "give vary_nm or vary_um, not both",
+            ));
+        }
+        (None, Some(_)) => ("vary_um", 1e3),
+        _ => ("vary_nm", 1.0),
+    };
     let vary_nm = o
-        .get("vary_nm")
-        .map(|v| pair(v, &o.key("vary_nm")))
+        .get(vary_key)
+        .map(|v| pair(v, &o.key(vary_key)))
         .transpose()?;
     if let Some((lo, hi)) = vary_nm
         && (lo < 0.0 || hi < lo)
     {
         return Err(Error::invalid(
-            o.key("vary_nm"),
+            o.key(vary_key),
             format!("[{lo}, {hi}]"),
             "needs 0 ≤ low ≤ high",
         ));
     }
+    let vary_nm = vary_nm.map(|(lo, hi)| (lo * vary_scale, hi * vary_scale));
     let sigma = parse_sigma(&o)?;
     Ok(Item::Layer(Layer {
         medium,
