@@ -185,9 +185,13 @@ pub enum Command {
     /// Each flag overrides the same key of the scene's `preview` object.
     #[command(after_help = help::RENDER)]
     Render(cli::render::RenderArgs),
-    /// List the built-in materials: model, valid range, n and k at 550 nm, source.
+    /// List the built-in materials (model, valid range, n and k at 550 nm,
+    /// source), or give one material's n and k against wavelength.
+    ///
+    /// A wavelength outside the range the material's source vouches for is
+    /// tabulated (extrapolated) with a warning.
     #[command(after_help = help::MATERIALS)]
-    Materials,
+    Materials(cli::materials::Args),
     /// Draw a chart of colour against angle, spectra, the field inside the
     /// stack or its photonic bands as PNG or SVG (format from the -o
     /// extension).
@@ -253,7 +257,7 @@ pub fn run(args: Args) -> CliResult {
         Command::Fit(a) => cli::fit::run(&a),
         Command::Sweep(a) => cli::sweep::run(&a),
         Command::Render(args) => cli::render::run(&args),
-        Command::Materials => cli::materials::run(),
+        Command::Materials(a) => cli::materials::run(&a),
         Command::Chart(a) => cli::chart::run(&a),
         Command::Report(a) => cli::report::run(&a),
         Command::Compare(a) => cli::compare::run(&a),

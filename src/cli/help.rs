@@ -146,8 +146,9 @@ Example:
 
 /// `lamella materials`.
 pub const MATERIALS: &str = "\
-Example:
-  lamella materials";
+Examples (the library; the index of TiO2 film from 380 to 780 nm as CSV):
+  lamella materials
+  lamella materials tio2 --wavelengths 380:780:20 --format csv";
 
 /// `lamella chart`.
 pub const CHART: &str = "\

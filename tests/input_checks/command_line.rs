@@ -356,7 +356,7 @@ fn bound(command: &mut Command) -> bool {
                 .map(|n| if (1..=8).contains(&n) { n.min(2) } else { n });
             a.turntable = a.turntable.map(|n| n.min(2));
         }
-        Command::Materials => return false,
+        Command::Materials(a) => to_file(&mut a.output),
         Command::Chart(a) => {
             small_chart(&mut a.size);
             a.steps = a.steps.min(3);
