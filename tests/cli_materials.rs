@@ -8,7 +8,14 @@ use lamella::materials::library;
 
 #[test]
 fn a_material_is_tabulated_as_the_engine_computes_it() {
-    let out = lamella(&["materials", "melanin", "--wavelengths", "400:700:50", "--format", "csv"]);
+    let out = lamella(&[
+        "materials",
+        "melanin",
+        "--wavelengths",
+        "400:700:50",
+        "--format",
+        "csv",
+    ]);
     assert_eq!(out.status.code(), Some(0));
     let text = String::from_utf8(out.stdout).unwrap();
     let mut lines = text.lines();
@@ -26,14 +33,20 @@ fn a_material_is_tabulated_as_the_engine_computes_it() {
     let doc: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
     // The default grid: the vouched range in 10 nm steps.
     assert_eq!(doc["wavelength_nm"][0], 248.0);
-    assert_eq!(doc["n"].as_array().unwrap().len(), doc["k"].as_array().unwrap().len());
+    assert_eq!(
+        doc["n"].as_array().unwrap().len(),
+        doc["k"].as_array().unwrap().len()
+    );
 }
 
 #[test]
 fn the_library_lists_every_material_in_every_format() {
     let all = library::all();
     let csv = lamella(&["materials", "--format", "csv"]);
-    assert_eq!(String::from_utf8(csv.stdout).unwrap().lines().count(), all.len() + 1);
+    assert_eq!(
+        String::from_utf8(csv.stdout).unwrap().lines().count(),
+        all.len() + 1
+    );
     let json = lamella(&["materials", "--format", "json"]);
     let doc: serde_json::Value = serde_json::from_slice(&json.stdout).unwrap();
     assert_eq!(doc.as_array().unwrap().len(), all.len());
