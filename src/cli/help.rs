@@ -11,8 +11,8 @@ Exit codes, for every command:
   3    `match` ran but did not reach its target (the design and report are
        still written); `compare` found a point outside its tolerance (the
        report is still written)
-  130  stopped by Ctrl-C; 143 stopped by SIGTERM (temporary output files are
-       removed)
+  130  stopped by Ctrl-C; 143 by SIGTERM; 129 by SIGHUP (temporary output
+       files are removed)
 
 Example:
   lamella color scenes/teal_label_foil.json";
