@@ -201,11 +201,9 @@ pub fn reflectance_batch<'py>(
         .into());
     };
     let large = total * (layers + 2) > crate::spectrum::SMALL_WORK;
-    let (rs, rp, ts, tp) = run(py, large, |stop| {
+    let [rs, rp, r, ts, tp, t] = run(py, large, |stop| {
         compute(&media, &thick, designs, layers, &wavelengths, &angles, stop)
     })?;
-    let r: Vec<f64> = rs.par_iter().zip(&rp).map(|(s, p)| 0.5 * (s + p)).collect();
-    let t: Vec<f64> = ts.par_iter().zip(&tp).map(|(s, p)| 0.5 * (s + p)).collect();
     let out = PyDict::new(py);
     let shape = (designs, na, nw);
     for (k, v) in [
@@ -223,7 +221,8 @@ pub fn reflectance_batch<'py>(
     Ok(out)
 }
 
-type Columns = (Vec<f64>, Vec<f64>, Vec<f64>, Vec<f64>);
+/// R_s, R_p, R, T_s, T_p and T, each (D, A, W) in row-major order.
+type Columns = [Vec<f64>; 6];
 
 fn compute(
     media: &Media,
@@ -247,19 +246,19 @@ fn compute(
             .collect(),
         exit: Exit::Medium(layers + 1),
     };
-    let mut rs = vec![0.0; designs * per];
-    let mut rp = vec![0.0; designs * per];
-    let mut ts = vec![0.0; designs * per];
-    let mut tp = vec![0.0; designs * per];
-    let piece = DESIGNS_PER_PIECE * per;
-    rs.par_chunks_mut(piece.max(1))
-        .zip(rp.par_chunks_mut(piece.max(1)))
-        .zip(ts.par_chunks_mut(piece.max(1)))
-        .zip(tp.par_chunks_mut(piece.max(1)))
+    let mut columns: Columns = std::array::from_fn(|_| vec![0.0; designs * per]);
+    let piece = (DESIGNS_PER_PIECE * per).max(1);
+    let [rs, rp, r_mean, ts, tp, t_mean] = &mut columns;
+    rs.par_chunks_mut(piece)
+        .zip(rp.par_chunks_mut(piece))
+        .zip(r_mean.par_chunks_mut(piece))
+        .zip(ts.par_chunks_mut(piece))
+        .zip(tp.par_chunks_mut(piece))
+        .zip(t_mean.par_chunks_mut(piece))
         .enumerate()
         .try_for_each_init(
             || (template.clone(), vec![Rt::default(); per]),
-            |(stack, out), (p, (((rs, rp), ts), tp))| {
+            |(stack, out), (p, (((((rs, rp), r_mean), ts), tp), t_mean))| {
                 stop.check()?;
                 let first = p * DESIGNS_PER_PIECE;
                 for k in 0..rs.len() / per.max(1) {
@@ -299,12 +298,14 @@ fn compute(
                     for (i, x) in at.zip(out.iter()) {
                         rs[i] = x.rs;
                         rp[i] = x.rp;
+                        r_mean[i] = 0.5 * (x.rs + x.rp);
                         ts[i] = x.ts;
                         tp[i] = x.tp;
+                        t_mean[i] = 0.5 * (x.ts + x.tp);
                     }
                 }
                 Ok(())
             },
         )?;
-    Ok((rs, rp, ts, tp))
+    Ok(columns)
 }
