@@ -37,15 +37,7 @@ impl TargetArgs {
         };
         let digits = hex.trim_start_matches('#');
         let bad = || Failure::input(format!("--target-hex {hex}: expected #RRGGBB"));
-        if digits.len() != 6 || !digits.chars().all(|c| c.is_ascii_hexdigit()) {
-            return Err(bad());
-        }
-        let channel = |i: usize| {
-            u8::from_str_radix(&digits[2 * i..2 * i + 2], 16)
-                .map(|v| v as f64 / 255.0)
-                .map_err(|_| bad())
-        };
-        let rgb = [channel(0)?, channel(1)?, channel(2)?];
+        let rgb = lamella::colorimetry::rgb_of_hex(digits).ok_or_else(bad)?;
         let weights = viewing
             .weights(wavelengths_nm)
             .map_err(|e| Failure::input(format!("--target-hex: {e}")))?;

@@ -198,6 +198,16 @@ pub fn srgb_encode(linear: f64) -> f64 {
     <encoding::Srgb as FromLinear<f64, f64>>::from_linear(linear)
 }
 
+/// The encoded channels (0–1) of a hex colour's six digits `RRGGBB`
+/// (without `#`), or `None` when they are not six hex digits.
+pub fn rgb_of_hex(digits: &str) -> Option<[f64; 3]> {
+    if digits.len() != 6 || !digits.bytes().all(|b| b.is_ascii_hexdigit()) {
+        return None;
+    }
+    let channel = |i: usize| u8::from_str_radix(&digits[2 * i..2 * i + 2], 16).ok();
+    Some([channel(0)?, channel(1)?, channel(2)?].map(|v| f64::from(v) / 255.0))
+}
+
 /// Inverse of [`srgb_encode`] (IEC 61966-2-1); computed by `palette`.
 pub fn srgb_decode(encoded: f64) -> f64 {
     <encoding::Srgb as IntoLinear<f64, f64>>::into_linear(encoded)

@@ -14,7 +14,7 @@ mod weights;
 
 pub use colour::{
     Colour, ColourOptions, GamutMapping, RgbDisplay, RgbSpace, chromaticity, lab_to_lch,
-    lab_to_xyz, rgb_to_xyz_under, srgb_decode, srgb_encode, xyz_to_lab,
+    lab_to_xyz, rgb_of_hex, rgb_to_xyz_under, srgb_decode, srgb_encode, xyz_to_lab,
 };
 pub use difference::{
     LabComponents, NEUTRAL_CHROMA, SAME_WITHIN, Travel, TravelPoint, delta_e_cmc, delta_e76,

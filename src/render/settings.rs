@@ -68,16 +68,11 @@ impl FromStr for Base {
             "black" => Ok(Base::Black),
             "white" => Ok(Base::Diffuse([1.0; 3])),
             _ => {
-                let hex = s.strip_prefix('#').ok_or_else(bad)?;
-                if hex.len() != 6 || !hex.chars().all(|c| c.is_ascii_hexdigit()) {
-                    return Err(bad());
-                }
-                let channel =
-                    |i: usize| u8::from_str_radix(&hex[i..i + 2], 16).map(|v| v as f64 / 255.0);
-                let rgb = [channel(0), channel(2), channel(4)];
-                Ok(Base::Diffuse(
-                    rgb.map(|c| srgb_decode(c.expect("hex digits checked"))),
-                ))
+                let rgb = s
+                    .strip_prefix('#')
+                    .and_then(crate::colorimetry::rgb_of_hex)
+                    .ok_or_else(bad)?;
+                Ok(Base::Diffuse(rgb.map(srgb_decode)))
             }
         }
     }

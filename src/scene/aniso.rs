@@ -224,7 +224,7 @@ pub(super) fn check_periods(items: &[Item], enclosing: f64) -> Result<()> {
                 let total = enclosing * pitches;
                 if total > MAX_4X4_PERIODS {
                     return Err(Error::invalid(
-                        format!("{}.thickness_nm", key_of(&l.pointer)),
+                        format!("{}.thickness_nm", super::warnings::key_of(&l.pointer)),
                         l.thickness_nm,
                         format!(
                             "the 4×4 path would power this layer {total:.3e} times (helix pitches \
@@ -236,22 +236,6 @@ pub(super) fn check_periods(items: &[Item], enclosing: f64) -> Result<()> {
         }
     }
     Ok(())
-}
-
-/// The key path (`stack[0].stack[1]`) of a JSON pointer (`/stack/0/stack/1`).
-fn key_of(pointer: &str) -> String {
-    let mut key = String::new();
-    for part in pointer.split('/').filter(|p| !p.is_empty()) {
-        if part.bytes().all(|b| b.is_ascii_digit()) {
-            key.push_str(&format!("[{part}]"));
-        } else {
-            if !key.is_empty() {
-                key.push('.');
-            }
-            key.push_str(part);
-        }
-    }
-    key
 }
 
 /// True when any layer of `items` is anisotropic.

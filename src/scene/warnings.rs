@@ -140,7 +140,7 @@ fn thick_layers<'a>(items: impl Iterator<Item = &'a Item>, out: &mut Vec<Warning
 }
 
 /// `/stack/2/stack/0` → `stack[2].stack[0]`.
-fn key_of(pointer: &str) -> String {
+pub(super) fn key_of(pointer: &str) -> String {
     let mut key = String::new();
     for part in pointer.split('/').filter(|p| !p.is_empty()) {
         if part.bytes().all(|b| b.is_ascii_digit()) {
