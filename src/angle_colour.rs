@@ -180,17 +180,28 @@ impl Viewing {
         Colour::new(weights.xyz(scratch), weights.white(), &self.options)
     }
 
-    /// The fraction of light seen at one point from its Jones matrices:
-    /// through the analyser, ½ Σ_in |J_{h,in}|² in the circular basis.
     fn of_jones(&self, j: &Jones) -> f64 {
-        match self.analyzer {
-            None => self.polarization.of_jones(j, self.side),
-            Some(h) => {
-                let [r0, r1, t0, t1] = j.circular().analysed();
-                match self.side {
-                    Side::Reflect => [r0, r1][h.index()],
-                    Side::Transmit => [t0, t1][h.index()],
-                }
+        seen_in_jones(j, self.side, self.polarization, self.analyzer)
+    }
+}
+
+/// The fraction of light seen at one point from its Jones matrices, on
+/// `side`, for incident light of `polarization` or, with an analyser,
+/// for unpolarized light seen through it: ½ Σ_in |J_{h,in}|² in the
+/// circular basis.
+pub fn seen_in_jones(
+    j: &Jones,
+    side: Side,
+    polarization: Polarization,
+    analyzer: Option<Handedness>,
+) -> f64 {
+    match analyzer {
+        None => polarization.of_jones(j, side),
+        Some(h) => {
+            let [r0, r1, t0, t1] = j.circular().analysed();
+            match side {
+                Side::Reflect => [r0, r1][h.index()],
+                Side::Transmit => [t0, t1][h.index()],
             }
         }
     }

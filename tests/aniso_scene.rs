@@ -551,15 +551,6 @@ fn tools_for_isotropic_stacks_refuse_anisotropic_scenes() {
             "-o",
             png.to_str().unwrap(),
         ],
-        vec![
-            "match",
-            path,
-            "--target-lab",
-            "50,0,0",
-            "--out-scene",
-            dir.join("m.json").to_str().unwrap(),
-        ],
-        vec!["sweep", path, "--samples", "2"],
         vec!["report", path, "-o", dir.join("r").to_str().unwrap()],
     ] {
         let out = lamella(&args);

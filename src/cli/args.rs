@@ -101,11 +101,8 @@ pub enum Command {
         format: cli::RecordFormat,
         #[command(flatten)]
         view: cli::color::ViewArgs,
-        /// Unpolarized light, and the reflected (or with --side transmit,
-        /// transmitted) light seen through an ideal circular analyser
-        /// passing this handedness.
-        #[arg(long, value_enum)]
-        analyzer: Option<cli::choices::HandednessChoice>,
+        #[command(flatten)]
+        analyzer: cli::color::AnalyzerArgs,
         /// Also give Display P3 values (`display_p3`, `display_p3_hex`,
         /// `display_p3_in_gamut`) beside sRGB.
         #[arg(long)]
@@ -242,7 +239,7 @@ pub fn run(args: Args) -> CliResult {
             &scene,
             format,
             &view,
-            analyzer.map(Into::into),
+            &analyzer,
             display_p3,
             output.as_ref(),
         ),

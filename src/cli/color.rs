@@ -8,7 +8,7 @@ use lamella::colorimetry::{Colour, ColourOptions, Illuminant, RgbSpace, travel, 
 use lamella::optics::aniso::Handedness;
 use serde_json::{Value, json};
 
-use super::choices::{GamutChoice, PolarizationChoice, SideChoice};
+use super::choices::{GamutChoice, HandednessChoice, PolarizationChoice, SideChoice};
 use super::{CliResult, Failure, RecordFormat, film_scene, load_scene, write_out};
 
 /// Flags shared by every command that turns spectra into colour (flattened
@@ -32,6 +32,35 @@ pub struct ViewArgs {
     /// CIELAB lightness and hue.
     #[arg(long, value_enum, default_value_t = GamutChoice::Clip)]
     pub gamut: GamutChoice,
+}
+
+/// `--analyzer`: unpolarized light seen through an ideal circular analyser
+/// (flattened into the commands that take it).
+#[derive(Debug, Clone, Copy, clap::Args)]
+pub struct AnalyzerArgs {
+    /// Unpolarized light, and the reflected (or with --side transmit,
+    /// transmitted) light seen through an ideal circular analyser passing
+    /// this handedness.
+    #[arg(long, value_enum)]
+    pub analyzer: Option<HandednessChoice>,
+}
+
+impl AnalyzerArgs {
+    /// Puts the analyser into `viewing`; refused beside a polarized source
+    /// (`view`), which the analyser replaces.
+    pub fn apply(&self, view: &ViewArgs, viewing: &mut Viewing) -> Result<(), Failure> {
+        let Some(h) = self.analyzer.map(Handedness::from) else {
+            return Ok(());
+        };
+        if view.polarization != PolarizationChoice::Unpolarized {
+            return Err(Failure::input(format!(
+                "--analyzer {}: the analyser is for unpolarized light; leave out --polarization",
+                h.name()
+            )));
+        }
+        viewing.analyzer = Some(h);
+        Ok(())
+    }
 }
 
 impl ViewArgs {
@@ -74,24 +103,16 @@ pub fn run(
     scene_path: &Path,
     format: RecordFormat,
     view: &ViewArgs,
-    analyzer: Option<Handedness>,
+    analyzer: &AnalyzerArgs,
     display_p3: bool,
     out: Option<&PathBuf>,
 ) -> CliResult {
     let scene = load_scene(scene_path)?;
     film_scene(scene_path, &scene, "color")?;
     let mut viewing = view.viewing(&scene, scene_path)?;
-    if let Some(h) = analyzer {
-        if view.polarization != PolarizationChoice::Unpolarized {
-            return Err(Failure::input(format!(
-                "--analyzer {}: the analyser is for unpolarized light; leave out --polarization",
-                h.name()
-            )));
-        }
-        viewing.analyzer = Some(h);
-    }
+    analyzer.apply(view, &mut viewing)?;
     let bad = |e| Failure::scene(scene_path, e);
-    let spectra = if analyzer.is_some() {
+    let spectra = if viewing.analyzer.is_some() {
         scene.spectra_with_jones()
     } else {
         scene.spectra()

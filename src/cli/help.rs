@@ -117,14 +117,24 @@ still written to --out-scene and reported, with `reachable` false); 2 bad
 input or a limit that cannot be met; 1 a colour that cannot be computed or a
 file that cannot be written.
 
-Example (a teal seen at 10°, the design written to matched.json):
-  lamella match scenes/teal_label_foil.json --target-lab 68.5,-82.9,4.2 --angle 10 --out-scene matched.json";
+Helix pitches with `vary_nm` inside `helix` are variables too (pointer
+`/stack/0/helix`, quantity `pitch`); --analyzer left|right sets the goal
+for unpolarized light seen through a circular analyser.
+
+Examples (a teal seen at 10°, the design written to matched.json; the pitch
+that makes a chiral window green through a left analyser):
+  lamella match scenes/teal_label_foil.json --target-lab 68.5,-82.9,4.2 --angle 10 --out-scene matched.json
+  lamella match scenes/cnc_giftbox_window.json --target-lab 40.2,-67.9,28.8 --analyzer left --angle 0 --out-scene matched_window.json";
 
 /// `lamella tolerance`.
 pub const TOLERANCE: &str = "\
 Exit codes: 0 done; 2 bad input; 1 a colour that cannot be computed (the
 message names the sample and the angle or geometry) or a file that cannot be
 written.
+
+Every helix pitch draws its own error with the same sigma as the
+thicknesses; an index error moves all principal indices of an anisotropic
+layer together.
 
 Example (2 % thickness and 0.01 index errors, 500 samples):
   lamella tolerance scenes/teal_label_foil.json --sigma-pct 2 --sigma-n 0.01 --samples 500";

@@ -13,7 +13,7 @@ use lamella::design::search::Budget;
 use lamella::design::variables::edited_document;
 use serde_json::{Value, json};
 
-use super::color::ViewArgs;
+use super::color::{AnalyzerArgs, ViewArgs};
 use super::design_args::{Format, Progress, TargetArgs, json_bytes, parse_lab};
 use super::{CliResult, Failure, load_scene, write_out};
 
@@ -67,6 +67,8 @@ pub struct MatchArgs {
     pub format: Format,
     #[command(flatten)]
     pub view: ViewArgs,
+    #[command(flatten)]
+    pub analyzer: AnalyzerArgs,
     /// Write the report here instead of stdout.
     #[arg(short = 'o', long = "output")]
     pub output: Option<PathBuf>,
@@ -76,7 +78,8 @@ pub struct MatchArgs {
 pub fn run(args: &MatchArgs) -> CliResult {
     let started = Instant::now();
     let scene = load_scene(&args.scene)?;
-    let viewing = args.view.viewing(&scene, &args.scene)?;
+    let mut viewing = args.view.viewing(&scene, &args.scene)?;
+    args.analyzer.apply(&args.view, &mut viewing)?;
     let lab = args
         .target
         .lab(&viewing, &scene.wavelengths_nm)?

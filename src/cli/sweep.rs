@@ -7,7 +7,7 @@ use lamella::design::evaluator::Evaluator;
 use lamella::design::sweep::{Plan, lines, shard};
 use lamella::design::variables::varying;
 
-use super::color::ViewArgs;
+use super::color::{AnalyzerArgs, ViewArgs};
 use super::design_args::TargetArgs;
 use super::{CliResult, Failure, load_scene, output};
 
@@ -36,6 +36,8 @@ pub struct SweepArgs {
     pub shard: Option<String>,
     #[command(flatten)]
     pub view: ViewArgs,
+    #[command(flatten)]
+    pub analyzer: AnalyzerArgs,
     /// Write the JSON lines here (atomically) instead of stdout.
     #[arg(short = 'o', long = "output")]
     pub output: Option<PathBuf>,
@@ -44,7 +46,8 @@ pub struct SweepArgs {
 /// Runs the command.
 pub fn run(args: &SweepArgs) -> CliResult {
     let scene = load_scene(&args.scene)?;
-    let viewing = args.view.viewing(&scene, &args.scene)?;
+    let mut viewing = args.view.viewing(&scene, &args.scene)?;
+    args.analyzer.apply(&args.view, &mut viewing)?;
     let target = args.target.lab(&viewing, &scene.wavelengths_nm)?;
     let bad = |e: lamella::Error| Failure::scene(&args.scene, e);
     let vars = varying(&scene);

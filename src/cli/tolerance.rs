@@ -9,7 +9,7 @@ use lamella::design::tolerance::{ToleranceSettings, tolerance};
 use lamella::scene::Sigma;
 use serde_json::{Value, json};
 
-use super::color::ViewArgs;
+use super::color::{AnalyzerArgs, ViewArgs};
 use super::design_args::{Format, json_bytes};
 use super::{CliResult, Failure, load_scene, write_out};
 
@@ -61,6 +61,8 @@ pub struct ToleranceArgs {
     pub format: Format,
     #[command(flatten)]
     pub view: ViewArgs,
+    #[command(flatten)]
+    pub analyzer: AnalyzerArgs,
     /// Write the report here instead of stdout.
     #[arg(short = 'o', long = "output")]
     pub output: Option<PathBuf>,
@@ -70,7 +72,8 @@ pub struct ToleranceArgs {
 pub fn run(args: &ToleranceArgs) -> CliResult {
     let started = Instant::now();
     let scene = load_scene(&args.scene)?;
-    let viewing = args.view.viewing(&scene, &args.scene)?;
+    let mut viewing = args.view.viewing(&scene, &args.scene)?;
+    args.analyzer.apply(&args.view, &mut viewing)?;
     let thickness = match (args.sigma_nm, args.sigma_pct) {
         (Some(s), _) => Sigma::Nm(s),
         (_, Some(p)) => Sigma::Pct(p),

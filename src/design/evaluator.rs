@@ -1,15 +1,18 @@
 //! Fast evaluation of many designs of one scene: the per-medium terms of
 //! every (angle, wavelength) are computed once; each design only rewrites the
 //! layer thicknesses of a reused stack and runs the transfer matrices.
+//! Designs with anisotropic layers, and colours seen through a circular
+//! analyser, are computed by the 4×4 path from each design's own stack.
 
 use std::sync::Mutex;
 
 use num_complex::Complex64;
 
 use super::variables::{Variable, with_thicknesses};
-use crate::angle_colour::{Polarization, Side, Viewing};
+use crate::angle_colour::{Polarization, Side, Viewing, seen_in_jones};
 use crate::colorimetry::{ColourOptions, Weights};
-use crate::error::Result;
+use crate::error::{Error, Result};
+use crate::optics::aniso::{Handedness, Jones};
 use crate::optics::{MediumTerms, Node, Probe, Stack};
 use crate::scene::Scene;
 
@@ -65,6 +68,11 @@ pub struct Evaluator {
     distinct: usize,
     side: Side,
     polarization: Polarization,
+    /// A circular analyser in front of the observer (colour evaluators).
+    analyzer: Option<Handedness>,
+    /// True when designs go through the 4×4 path: anisotropic layers or an
+    /// analyser.
+    four: bool,
     colour: Option<(Weights, ColourOptions)>,
     fast: Option<Fast>,
     pool: Mutex<Vec<Workspace>>,
@@ -80,7 +88,6 @@ impl Evaluator {
         side: Side,
         polarization: Polarization,
     ) -> Result<Self> {
-        scene.require_isotropic("the design tools")?;
         let index = scene.indices(wavelengths_nm)?;
         let nw = wavelengths_nm.len();
         // Media with bit-identical indices share one set of terms.
@@ -126,6 +133,8 @@ impl Evaluator {
             distinct: distinct_count,
             side,
             polarization,
+            analyzer: None,
+            four: scene.anisotropic(),
             colour: None,
             fast,
             pool: Mutex::new(Vec::new()),
@@ -149,6 +158,18 @@ impl Evaluator {
             viewing.side,
             viewing.polarization,
         )?;
+        if let Some(h) = viewing.analyzer {
+            if !scene.coherent() {
+                return Err(Error::invalid(
+                    "analyzer",
+                    h.name(),
+                    "a circular analyser needs a coherent stack: no incoherent layer, \
+                     substrate sheet or thickness disorder",
+                ));
+            }
+            e.analyzer = Some(h);
+            e.four = true;
+        }
         e.colour = Some((weights, viewing.options));
         Ok(e)
     }
@@ -216,6 +237,60 @@ impl Evaluator {
     }
 
     fn fill(&self, x: &[f64], dn: Option<&[f64]>, ws: &mut Workspace) {
+        if self.four {
+            self.fill_four(x, dn, &mut ws.spectrum);
+        } else {
+            self.fill_two(x, dn, ws);
+        }
+        let nw = self.wavelengths_nm.len();
+        if let Some((weights, _)) = &self.colour {
+            for (a, xyz) in ws.xyz.iter_mut().enumerate() {
+                *xyz = weights.xyz(&ws.spectrum[a * nw..(a + 1) * nw]);
+            }
+        }
+    }
+
+    /// The 4×4 path: the design's own stack (thicknesses and pitches from
+    /// `x`, indices shifted by `dn`), Jones matrices at every point; a
+    /// point the path cannot compute gives a value that is not finite,
+    /// which the tools refuse.
+    fn fill_four(&self, x: &[f64], dn: Option<&[f64]>, spectrum: &mut [f64]) {
+        let items = with_thicknesses(&self.scene.stack, &self.vars, x);
+        let shifted: Vec<Vec<Complex64>>;
+        let index = match dn {
+            None => &self.index,
+            Some(dn) => {
+                shifted = self
+                    .index
+                    .iter()
+                    .zip(dn)
+                    .map(|(n, &d)| n.iter().map(|z| z + d).collect())
+                    .collect();
+                &shifted
+            }
+        };
+        let four = self
+            .scene
+            .gridded_design(&items, index, &self.wavelengths_nm, &self.angles_deg)
+            .expect("the 4×4 path is taken by coherent designs only");
+        let nw = self.wavelengths_nm.len();
+        let mut n = Vec::with_capacity(index.len());
+        for w in 0..nw {
+            n.clear();
+            n.extend(index.iter().map(|m| m[w]));
+            for a in 0..self.angles_deg.len() {
+                let at = a * nw + w;
+                let j = four
+                    .stack
+                    .jones(&n, &four.tensors[w], &self.probes[at])
+                    .unwrap_or_else(|_| Jones::not_computable());
+                spectrum[at] = seen_in_jones(&j, self.side, self.polarization, self.analyzer);
+            }
+        }
+    }
+
+    /// The 2×2 path: the reused stack (or the disorder ensemble).
+    fn fill_two(&self, x: &[f64], dn: Option<&[f64]>, ws: &mut Workspace) {
         let nw = self.wavelengths_nm.len();
         let nd = self.distinct;
         let ensemble;
@@ -263,11 +338,6 @@ impl Evaluator {
                     })
                     .sum::<f64>()
                     * weight;
-            }
-        }
-        if let Some((weights, _)) = &self.colour {
-            for (a, xyz) in ws.xyz.iter_mut().enumerate() {
-                *xyz = weights.xyz(&ws.spectrum[a * nw..(a + 1) * nw]);
             }
         }
     }

@@ -60,7 +60,7 @@ pub fn match_report(out: &MatchOutcome) -> Map<String, Value> {
         .zip(&out.thicknesses_nm)
         .map(|(v, t)| {
             json!({
-                "pointer": v.pointer, "material": v.material, "value": t,
+                "pointer": v.pointer, "quantity": v.quantity(), "material": v.material, "value": t,
                 "low": v.low_nm, "high": v.high_nm,
             })
         })
@@ -152,6 +152,7 @@ pub fn tolerance_report(
                 let mut entry = json!({
                     "rank": rank + 1,
                     "pointer": s.layer.pointer,
+                    "quantity": s.layer.quantity(),
                     "material": s.layer.material,
                     "thickness_nm": s.layer.nominal_nm,
                     "sigma_nm": s.sigma_nm,
@@ -192,7 +193,7 @@ pub fn fit_report(out: &FitOutcome, measured: &[Measured]) -> Map<String, Value>
             .map(|((v, t), u)| {
                 with_uncertainty(
                     json!({
-                        "pointer": v.pointer, "material": v.material, "value": t,
+                        "pointer": v.pointer, "quantity": v.quantity(), "material": v.material, "value": t,
                         "low": v.low_nm, "high": v.high_nm,
                     }),
                     *u,

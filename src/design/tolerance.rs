@@ -16,7 +16,7 @@ use rayon::prelude::*;
 
 use super::coating::{At, Colours, with_coating};
 use super::finite::check_finite;
-use super::variables::{Variable, every_layer, walk_mut};
+use super::variables::{Variable, every_layer_and_pitch, walk_mut};
 use crate::angle_colour::Viewing;
 use crate::colorimetry::{delta_e2000, xyz_to_lab};
 use crate::error::{Error, Result};
@@ -105,6 +105,10 @@ fn deposited(items: &[Item], scale: f64, mark: &str, out: &mut Vec<Item>) {
             Item::Layer(l) => {
                 let mut l = l.clone();
                 l.thickness_nm *= scale;
+                // A helix in a graded group keeps its turns per layer.
+                if let Some(h) = l.anisotropy.as_mut().and_then(|a| a.helix.as_mut()) {
+                    h.pitch_nm *= scale;
+                }
                 l.pointer.push_str(mark);
                 out.push(Item::Layer(l));
             }
@@ -208,7 +212,7 @@ pub fn tolerance_with_progress(
         Some(c) => c.platelet.clone(),
         None => own.stack.clone(),
     };
-    let written = every_layer(&own, &written_items);
+    let written = every_layer_and_pitch(&own, &written_items);
     let mut items = if settings.per_period {
         let n = deposited_count(&written_items);
         if n > MAX_DEPOSITED_LAYERS {
@@ -224,20 +228,49 @@ pub fn tolerance_with_progress(
     } else {
         written_items
     };
-    // Each deposited layer gets a medium of its own so that its index can
-    // move alone.
-    let mut layer_medium = Vec::new();
+    // Each deposited layer gets media of its own so that its index can move
+    // alone (an anisotropic layer a copy of its material, whose principal
+    // indices move together).
+    let mut layer_media = Vec::new();
     walk_mut(&mut items, &mut |l| {
-        own.media.push(own.media[l.medium].clone());
-        l.medium = own.media.len() - 1;
-        layer_medium.push(l.medium);
+        let mut own_copy = |m: usize| {
+            own.media.push(own.media[m].clone());
+            own.media.len() - 1
+        };
+        l.medium = own_copy(l.medium);
+        let mut moved = vec![l.medium];
+        if let Some(a) = l.anisotropy.as_mut() {
+            let mut crystal = own.crystals[a.crystal].clone();
+            let originals = crystal.principal;
+            for (i, m) in originals.iter().enumerate() {
+                crystal.principal[i] = match originals[..i].iter().position(|p| p == m) {
+                    Some(j) => crystal.principal[j],
+                    None => own_copy(*m),
+                };
+            }
+            moved = crystal.principal.to_vec();
+            moved.dedup();
+            own.crystals.push(crystal);
+            a.crystal = own.crystals.len() - 1;
+        }
+        layer_media.push(moved);
     });
-    let vars = every_layer(&own, &items);
-    // The written layer each deposited layer comes from.
+    let vars = every_layer_and_pitch(&own, &items);
+    // The media each variable's index error moves: its layer's for a
+    // thickness, none for a pitch.
+    let mut layers = layer_media.into_iter();
+    let var_media: Vec<Vec<usize>> = vars
+        .iter()
+        .map(|v| match v.pitch_of() {
+            Some(_) => Vec::new(),
+            None => layers.next().expect("one variable per layer"),
+        })
+        .collect();
+    // The written layer (or pitch) each deposited one comes from.
     let source: Vec<usize> = vars
         .iter()
         .map(|v| {
-            let written_pointer = v.pointer.split('@').next().unwrap_or(&v.pointer);
+            let written_pointer = as_written(v);
             written
                 .iter()
                 .position(|w| w.pointer == written_pointer)
@@ -314,8 +347,11 @@ pub fn tolerance_with_progress(
                 .collect();
             let dn = with_index.then(|| {
                 let mut dn = vec![0.0; media];
-                for &m in &layer_medium {
-                    dn[m] = settings.sigma_n * normal();
+                for moved in var_media.iter().filter(|m| !m.is_empty()) {
+                    let d = settings.sigma_n * normal();
+                    for &m in moved {
+                        dn[m] = d;
+                    }
                 }
                 dn
             });
@@ -339,12 +375,15 @@ pub fn tolerance_with_progress(
                 }
                 Ok(worst(&deltas(&labs(&x, None), &nominal_context)?))
             };
-            let index = with_index
+            let has_index = copies.iter().any(|&c| !var_media[c].is_empty());
+            let index = (with_index && has_index)
                 .then(|| -> Result<f64> {
                     let moved_n = |d: f64| -> Result<f64> {
                         let mut dn = vec![0.0; media];
                         for &c in &copies {
-                            dn[layer_medium[c]] = d;
+                            for &m in &var_media[c] {
+                                dn[m] = d;
+                            }
                         }
                         Ok(worst(&deltas(
                             &labs(&nominal, Some(&dn)),
@@ -376,6 +415,16 @@ pub fn tolerance_with_progress(
         sensitivity,
         deposited_layers: vars.len(),
     })
+}
+
+/// The pointer of the written layer (or pitch) a deposited one comes
+/// from: without the period marks (`/stack/1/stack/0@3` → `/stack/1/stack/0`).
+fn as_written(v: &Variable) -> String {
+    let unmarked = |p: &str| p.split('@').next().unwrap_or(p).to_string();
+    match v.pitch_of() {
+        Some(layer) => format!("{}{}", unmarked(layer), &v.pointer[layer.len()..]),
+        None => unmarked(&v.pointer),
+    }
 }
 
 /// Median, 95th percentile (linear interpolation between order statistics,

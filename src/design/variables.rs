@@ -1,20 +1,21 @@
-//! The design variables of a scene: layers whose thickness the design tools
-//! may change. A layer inside a repeat group is written once, so it is one
-//! variable shared by every period of the group.
+//! The design variables of a scene: layers whose thickness, and helices
+//! whose pitch, the design tools may change. A layer inside a repeat group is
+//! written once, so it is one variable shared by every period of the group.
 
 use serde_json::Value;
 
 use crate::error::{Error, Result};
-use crate::scene::{Item, Scene};
+use crate::scene::{Helix, Item, Layer, Scene};
 
-/// One layer thickness the design tools work on.
+/// One layer thickness, or one helix pitch, the design tools work on.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Variable {
-    /// JSON pointer of the layer in the scene document.
+    /// JSON pointer of the layer in the scene document, or of its `helix`
+    /// object (`/stack/0/helix`) for a pitch.
     pub pointer: String,
     /// The layer's material name.
     pub material: String,
-    /// Thickness as written in the scene, nm.
+    /// Thickness (or pitch) as written in the scene, nm.
     pub nominal_nm: f64,
     /// Lower bound, nm.
     pub low_nm: f64,
@@ -22,21 +23,53 @@ pub struct Variable {
     pub high_nm: f64,
 }
 
-/// The layers marked `vary_nm`, in document order, with their bounds.
+/// The suffix of a pitch variable's pointer.
+const HELIX: &str = "/helix";
+
+impl Variable {
+    /// The pointer of the layer whose helix pitch this variable is, or
+    /// `None` for a thickness.
+    pub fn pitch_of(&self) -> Option<&str> {
+        self.pointer.strip_suffix(HELIX)
+    }
+
+    /// What the variable is, as reports name it: `thickness` or `pitch`.
+    pub fn quantity(&self) -> &'static str {
+        match self.pitch_of() {
+            Some(_) => "pitch",
+            None => "thickness",
+        }
+    }
+}
+
+/// The layers and helix pitches marked `vary_nm`, in document order (a
+/// layer's thickness before its pitch), with their bounds.
 pub fn varying(scene: &Scene) -> Vec<Variable> {
     varying_in(scene, &scene.stack)
 }
 
-/// The layers of `items` (the scene's stack or a coating's platelet)
-/// marked `vary_nm`.
+/// The layers and helix pitches of `items` (the scene's stack or a
+/// coating's platelet) marked `vary_nm`.
 pub fn varying_in(scene: &Scene, items: &[Item]) -> Vec<Variable> {
     let mut out = Vec::new();
     walk(items, &mut |l| {
+        let material = material_of(scene, l);
         if let Some((low_nm, high_nm)) = l.vary_nm {
             out.push(Variable {
                 pointer: l.pointer.clone(),
-                material: scene.media[l.medium].name.clone(),
+                material: material.clone(),
                 nominal_nm: l.thickness_nm,
+                low_nm,
+                high_nm,
+            });
+        }
+        if let Some(h) = helix_of(l)
+            && let Some((low_nm, high_nm)) = h.vary_nm
+        {
+            out.push(Variable {
+                pointer: format!("{}{HELIX}", l.pointer),
+                material,
+                nominal_nm: h.pitch_nm,
                 low_nm,
                 high_nm,
             });
@@ -52,7 +85,7 @@ pub fn every_layer(scene: &Scene, items: &[Item]) -> Vec<Variable> {
     walk(items, &mut |l| {
         out.push(Variable {
             pointer: l.pointer.clone(),
-            material: scene.media[l.medium].name.clone(),
+            material: material_of(scene, l),
             nominal_nm: l.thickness_nm,
             low_nm: 0.0,
             high_nm: f64::INFINITY,
@@ -61,7 +94,46 @@ pub fn every_layer(scene: &Scene, items: &[Item]) -> Vec<Variable> {
     out
 }
 
-fn walk(items: &[Item], f: &mut dyn FnMut(&crate::scene::Layer)) {
+/// [`every_layer`] followed, after each helicoidal layer, by its pitch
+/// (bounded below by zero): what a process may get wrong.
+pub fn every_layer_and_pitch(scene: &Scene, items: &[Item]) -> Vec<Variable> {
+    let mut out = Vec::new();
+    walk(items, &mut |l| {
+        let material = material_of(scene, l);
+        out.push(Variable {
+            pointer: l.pointer.clone(),
+            material: material.clone(),
+            nominal_nm: l.thickness_nm,
+            low_nm: 0.0,
+            high_nm: f64::INFINITY,
+        });
+        if let Some(h) = helix_of(l) {
+            out.push(Variable {
+                pointer: format!("{}{HELIX}", l.pointer),
+                material,
+                nominal_nm: h.pitch_nm,
+                low_nm: 0.0,
+                high_nm: f64::INFINITY,
+            });
+        }
+    });
+    out
+}
+
+/// The material a layer is made of as the scene names it (an anisotropic
+/// material by its own name, not by its principal indices').
+fn material_of(scene: &Scene, l: &Layer) -> String {
+    match &l.anisotropy {
+        Some(a) => scene.crystals[a.crystal].name.clone(),
+        None => scene.media[l.medium].name.clone(),
+    }
+}
+
+fn helix_of(l: &Layer) -> Option<&Helix> {
+    l.anisotropy.as_ref().and_then(|a| a.helix.as_ref())
+}
+
+fn walk(items: &[Item], f: &mut dyn FnMut(&Layer)) {
     for item in items {
         match item {
             Item::Layer(l) => f(l),
@@ -70,7 +142,7 @@ fn walk(items: &[Item], f: &mut dyn FnMut(&crate::scene::Layer)) {
     }
 }
 
-pub(super) fn walk_mut(items: &mut [Item], f: &mut dyn FnMut(&mut crate::scene::Layer)) {
+pub(super) fn walk_mut(items: &mut [Item], f: &mut dyn FnMut(&mut Layer)) {
     for item in items {
         match item {
             Item::Layer(l) => f(l),
@@ -79,12 +151,19 @@ pub(super) fn walk_mut(items: &mut [Item], f: &mut dyn FnMut(&mut crate::scene::
     }
 }
 
-/// `items` with the layer of each variable set to the thickness in `x`.
+/// `items` with the layer (or helix) of each variable set to the thickness
+/// (or pitch) in `x`.
 pub fn with_thicknesses(items: &[Item], vars: &[Variable], x: &[f64]) -> Vec<Item> {
     let mut out = items.to_vec();
     walk_mut(&mut out, &mut |l| {
-        if let Some(i) = vars.iter().position(|v| v.pointer == l.pointer) {
-            l.thickness_nm = x[i];
+        for (v, &t) in vars.iter().zip(x) {
+            if v.pointer == l.pointer {
+                l.thickness_nm = t;
+            } else if v.pitch_of() == Some(&l.pointer)
+                && let Some(h) = l.anisotropy.as_mut().and_then(|a| a.helix.as_mut())
+            {
+                h.pitch_nm = t;
+            }
         }
     });
     out
@@ -107,15 +186,20 @@ pub fn total_thickness(items: &[Item]) -> f64 {
 
 /// The scene document with each variable's layer given its new thickness
 /// (`x` in nm), in the unit the layer was written in: `thickness_nm`, or
-/// `thickness_um` for a thick layer given in µm.
+/// `thickness_um` for a thick layer given in µm; a pitch variable's helix
+/// its new `pitch_nm`.
 pub fn edited_document(document: &Value, vars: &[Variable], x: &[f64]) -> Result<Value> {
     let mut doc = document.clone();
     for (v, &t) in vars.iter().zip(x) {
         let layer = doc
             .pointer_mut(&v.pointer)
             .and_then(Value::as_object_mut)
-            .ok_or_else(|| Error::invalid(&v.pointer, "(missing)", "no layer at this pointer"))?;
-        if layer.contains_key("thickness_um") {
+            .ok_or_else(|| {
+                Error::invalid(&v.pointer, "(missing)", "no layer or helix at this pointer")
+            })?;
+        if v.pitch_of().is_some() {
+            layer.insert("pitch_nm".into(), Value::from(t));
+        } else if layer.contains_key("thickness_um") {
             layer.insert("thickness_um".into(), Value::from(t / 1e3));
         } else {
             layer.insert("thickness_nm".into(), Value::from(t));

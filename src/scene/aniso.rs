@@ -14,7 +14,7 @@ use nalgebra::Matrix3;
 use num_complex::Complex64 as C;
 use serde_json::Value;
 
-use super::json::{Obj, number, show};
+use super::json::{Obj, number, pair, show};
 use super::stack::{Item, period_scale};
 use crate::error::{Error, Result};
 use crate::optics::Probe;
@@ -53,6 +53,8 @@ pub struct Helix {
     pub handedness: Handedness,
     /// Azimuth the axes are turned by at the layer's front face, degrees.
     pub start_azimuth_deg: f64,
+    /// Bounds the design tools may move the pitch within, nm.
+    pub vary_nm: Option<(f64, f64)>,
 }
 
 /// What makes a layer anisotropic.
@@ -174,7 +176,7 @@ fn parse_orientation(v: &Value, path: &str, kind: CrystalKind) -> Result<[[f64; 
 
 fn parse_helix(v: &Value, path: &str) -> Result<Helix> {
     let o = Obj::new(v, path)?;
-    o.only(&["pitch_nm", "handedness", "start_azimuth_deg"])?;
+    o.only(&["pitch_nm", "handedness", "start_azimuth_deg", "vary_nm"])?;
     let pitch_nm = o.req_f64("pitch_nm")?;
     if !(pitch_nm > 0.0) {
         return Err(Error::invalid(
@@ -195,10 +197,24 @@ fn parse_helix(v: &Value, path: &str) -> Result<Helix> {
         }
         None => return Err(o.missing("handedness", "\"left\" or \"right\"")),
     };
+    let vary_nm = o
+        .get("vary_nm")
+        .map(|v| pair(v, &o.key("vary_nm")))
+        .transpose()?;
+    if let Some((lo, hi)) = vary_nm
+        && !(lo > 0.0 && hi >= lo)
+    {
+        return Err(Error::invalid(
+            o.key("vary_nm"),
+            format!("[{lo}, {hi}]"),
+            "a pitch's bounds need 0 < low ≤ high",
+        ));
+    }
     Ok(Helix {
         pitch_nm,
         handedness,
         start_azimuth_deg: o.f64("start_azimuth_deg")?.unwrap_or(0.0),
+        vary_nm,
     })
 }
 

@@ -333,12 +333,24 @@ impl Scene {
         wavelengths_nm: &[f64],
         angles_deg: &[f64],
     ) -> Option<optics::aniso::Gridded> {
+        self.gridded_design(&self.stack, index, wavelengths_nm, angles_deg)
+    }
+
+    /// [`Scene::gridded`] for the design `items` (the scene's stack with
+    /// other thicknesses or pitches) in place of the scene's own stack.
+    pub fn gridded_design(
+        &self,
+        items: &[Item],
+        index: &[Vec<Complex64>],
+        wavelengths_nm: &[f64],
+        angles_deg: &[f64],
+    ) -> Option<optics::aniso::Gridded> {
         let Substrate::Medium(exit) = self.substrate else {
             return None;
         };
         self.coherent().then(|| {
             aniso::gridded(
-                &self.stack,
+                items,
                 self.incident,
                 exit,
                 &self.crystals,
