@@ -12,6 +12,7 @@
 //! (for e^{i(k·r − ωt)}); [`Jones::circular`] changes basis.
 
 pub mod helix;
+pub mod isotropic;
 pub mod modes;
 pub mod smatrix;
 
@@ -246,7 +247,8 @@ impl Stack4 {
         let xi = at.beta();
         let inc = Modes::isotropic(n[self.incident], xi);
         let exit = Modes::isotropic(n[self.exit], xi);
-        let s = match parts(&self.nodes, n, tensors, at)? {
+        let mut cache = isotropic::Cache::new(n.len(), xi, at.k0());
+        let s = match parts(&self.nodes, n, tensors, at, &mut cache)? {
             None => S::interface(&inc, &exit)?,
             Some(body) => S::interface(&inc, &body.front)?
                 .then(&body.s)?
@@ -266,16 +268,34 @@ impl Stack4 {
     }
 }
 
-/// The parts of `nodes` combined into one (`None` when there are none).
+/// The parts of `nodes` combined into one (`None` when there are none);
+/// `cache` holds the point's isotropic waves and interfaces.
 fn parts(
     nodes: &[Layer4],
     n: &[C],
     tensors: &[Matrix3<C>],
     at: &Probe,
+    cache: &mut isotropic::Cache,
 ) -> Result<Option<Part>, Failure> {
     let mut acc: Option<Part> = None;
-    for node in nodes {
-        let Some(part) = part(node, n, tensors, at)? else {
+    let mut rest = nodes;
+    while let Some(first) = rest.first() {
+        // Consecutive isotropic layers (and repeats of them) go as one run.
+        let taken = match rest.iter().position(|node| !isotropic::is_isotropic(node)) {
+            Some(0) => 1,
+            Some(k) => k,
+            None => rest.len(),
+        };
+        let found = if isotropic::is_isotropic(first) {
+            isotropic::run(&rest[..taken], n, cache)?.map(|r| {
+                let (front, s, back) = r.into_part(n, cache);
+                Part { front, s, back }
+            })
+        } else {
+            part(first, n, tensors, at, cache)?
+        };
+        rest = &rest[taken..];
+        let Some(part) = found else {
             continue;
         };
         acc = Some(match acc {
@@ -291,6 +311,7 @@ fn part(
     n: &[C],
     tensors: &[Matrix3<C>],
     at: &Probe,
+    cache: &mut isotropic::Cache,
 ) -> Result<Option<Part>, Failure> {
     let (xi, k0) = (at.beta(), at.k0());
     let homogeneous = |modes: Modes, d: f64| {
@@ -302,10 +323,13 @@ fn part(
         }
     };
     Ok(Some(match *node {
-        Layer4::Isotropic {
-            medium,
-            thickness_nm,
-        } => homogeneous(Modes::isotropic(n[medium], xi), thickness_nm),
+        Layer4::Isotropic { .. } => {
+            let Some(r) = isotropic::run(std::slice::from_ref(node), n, cache)? else {
+                return Ok(None);
+            };
+            let (front, s, back) = r.into_part(n, cache);
+            Part { front, s, back }
+        }
         Layer4::Tensor {
             tensor,
             thickness_nm,
@@ -394,7 +418,7 @@ fn part(
             }
         }
         Layer4::Repeat { count, ref nodes } => {
-            let Some(period) = parts(nodes, n, tensors, at)? else {
+            let Some(period) = parts(nodes, n, tensors, at, cache)? else {
                 return Ok(None);
             };
             // Close the period on itself, power count − 1 of them, then the last.

@@ -26,6 +26,8 @@
 use nalgebra::{Matrix2, Matrix3, Matrix4, Vector4};
 use num_complex::Complex64 as C;
 
+use super::isotropic::Waves;
+
 /// Relative size of Im q below which a wave counts as propagating, and its
 /// direction is taken from its energy flux.
 const PROPAGATING: f64 = 1e-10;
@@ -86,48 +88,27 @@ impl Modes {
     /// scaled to unit normal flux where it carries any, so that squared
     /// amplitudes are powers. q = √(n² − ξ²) on the decaying branch.
     pub fn isotropic(n: C, xi: f64) -> Modes {
-        let mut q = (n * n - xi * xi).sqrt();
-        if q.im < 0.0 || (q.im == 0.0 && q.re < 0.0) {
-            q = -q;
-        }
-        let z = C::new(0.0, 0.0);
-        let one = C::new(1.0, 0.0);
-        let unit = |v: Vector4<C>| {
-            let f = flux(&v).abs();
-            if f > 1e-300 {
-                v / C::new(f.sqrt(), 0.0)
-            } else {
-                v
-            }
-        };
-        let w = Matrix4::from_columns(&[
-            unit(Vector4::new(q / n, n, z, z)),
-            unit(Vector4::new(z, z, one, q)),
-            unit(Vector4::new(-q / n, n, z, z)),
-            unit(Vector4::new(z, z, one, -q)),
-        ]);
-        // p waves live in rows 0, 1 (columns 0, 2) and s waves in rows 2, 3
-        // (columns 1, 3): the inverse is the two 2×2 blocks inverted.
+        Modes::of_waves(&Waves::new(n, xi))
+    }
+
+    /// The 4×4 wave basis of an isotropic medium's [`Waves`]: p waves in
+    /// rows 0, 1 (columns 0, 2), s waves in rows 2, 3 (columns 1, 3).
+    pub fn of_waves(waves: &Waves) -> Modes {
+        let mut w = Matrix4::zeros();
         let mut w_inv = Matrix4::zeros();
-        for (rows, cols) in [([0, 1], [0, 2]), ([2, 3], [1, 3])] {
-            let (a, b) = (w[(rows[0], cols[0])], w[(rows[0], cols[1])]);
-            let (c, d) = (w[(rows[1], cols[0])], w[(rows[1], cols[1])]);
-            let det = a * d - b * c;
-            if det == z {
-                w_inv = Matrix4::zeros();
-                break;
+        for (k, (rows, cols)) in [([0, 1], [0, 2]), ([2, 3], [1, 3])].into_iter().enumerate() {
+            for i in 0..2 {
+                for j in 0..2 {
+                    w[(rows[i], cols[j])] = waves.blocks[k][(i, j)];
+                    w_inv[(cols[i], rows[j])] = waves.inverses[k][(i, j)];
+                }
             }
-            let inv = one / det;
-            w_inv[(cols[0], rows[0])] = d * inv;
-            w_inv[(cols[0], rows[1])] = -b * inv;
-            w_inv[(cols[1], rows[0])] = -c * inv;
-            w_inv[(cols[1], rows[1])] = a * inv;
         }
         Modes {
             w,
             w_inv,
-            g_forward: Matrix2::from_diagonal_element(q),
-            g_backward: Matrix2::from_diagonal_element(-q),
+            g_forward: Matrix2::from_diagonal_element(waves.q),
+            g_backward: Matrix2::from_diagonal_element(-waves.q),
         }
     }
 
