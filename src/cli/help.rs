@@ -131,8 +131,8 @@ Example (2 % thickness and 0.01 index errors, 500 samples):
 
 /// `lamella fit`.
 pub const FIT: &str = "\
-Example:
-  lamella fit scenes/teal_label_foil.json --measured scenes/measured/teal_label_foil_sample.csv --out-scene fitted.json";
+Example (with the chart of measured against fitted spectra and residuals):
+  lamella fit scenes/teal_label_foil.json --measured scenes/measured/teal_label_foil_sample.csv --out-scene fitted.json --chart fit.png";
 
 /// `lamella sweep`.
 pub const SWEEP: &str = "\
@@ -158,8 +158,9 @@ Examples:
 
 /// `lamella report`.
 pub const REPORT: &str = "\
-Example:
-  lamella report scenes/teal_label_foil.json -o foil-report/";
+Examples (a film; an effect-pigment coating):
+  lamella report scenes/teal_label_foil.json -o foil-report/
+  lamella report scenes/pearl_compact_lid.json -o pearl-report/";
 
 /// `lamella compare`.
 pub const COMPARE: &str = "\
