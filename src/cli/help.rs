@@ -166,9 +166,10 @@ Examples (a film; an effect-pigment coating):
 pub const COMPARE: &str = "\
 Tolerance file (--tolerances): {\"formula\": \"de00\", \"limits\": {\"0\": 1.0, \"45\": 1.5},
 \"default\": 2.0}: limits keyed by angle in degrees or by geometry name (\"45as15\");
-`default` covers the points not listed (without it every point in both must be
-listed); `formula` is de00 (default), de76, de94 or cmc. A key naming no point in
-both files, a negative limit or an unknown key is refused (exit code 2).
+`default` covers the points not listed (alone, every point; without it every
+point in both must be listed); `formula` is de00 (default), de76, de94 or cmc. A
+key naming no point in both files, two limits for one point, a negative limit or
+an unknown key is refused (exit code 2).
 Components are sample minus reference: ΔL* > 0 lighter, ΔC* > 0 more chromatic,
 ΔH* > 0 a counterclockwise hue turn; the hue word names the a*b* axis the hue turns
 toward (redder +a*, yellower +b*, greener -a*, bluer -b*).
