@@ -197,6 +197,33 @@ fn bad_chart_requests_exit_2_before_fitting() {
     );
     assert_eq!(err.trim_end().lines().count(), 1, "{err}");
     assert!(!fitted.exists() && !jpg.exists());
+    // More angles than a chart holds.
+    let many = d.join("thirteen.csv");
+    let mut rows = String::from("wavelength_nm,R,angle_deg\n");
+    for a in 0..13 {
+        rows.push_str(&format!("500,0.1,{a}\n510,0.1,{a}\n"));
+    }
+    std::fs::write(&many, rows).unwrap();
+    let png = d.join("fit.png");
+    let out = lamella(&[
+        "fit",
+        FOIL,
+        "--measured",
+        many.to_str().unwrap(),
+        "--out-scene",
+        fitted.to_str().unwrap(),
+        "--chart",
+        png.to_str().unwrap(),
+    ]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(
+        err.contains(
+            "thirteen.csv: measured = 13 angles or geometries: a fit chart draws 1 to 12 of them"
+        ),
+        "{err}"
+    );
+    assert!(!fitted.exists() && !png.exists());
     // A chart size without a chart, and a size out of range.
     for extra in [
         vec!["--chart-size", "900x700"],

@@ -49,13 +49,7 @@ impl FitChart {
     /// The chart of `outcome`, the fit of the scene titled `title` to
     /// `measured` (the data the fit was given).
     pub fn new(title: &str, outcome: &FitOutcome, measured: &[Measured]) -> Result<Self> {
-        if measured.is_empty() || measured.len() > MOST_PANELS {
-            return Err(Error::invalid(
-                "measured",
-                format!("{} angles or geometries", measured.len()),
-                format!("a fit chart draws 1 to {MOST_PANELS} of them"),
-            ));
-        }
+        Self::check(measured)?;
         let coating = measured.iter().any(|m| m.at.geometry().is_some());
         let pct = |v: &[f64]| v.iter().map(|x| 100.0 * x).collect::<Vec<_>>();
         let panels = measured
@@ -111,6 +105,19 @@ impl FitChart {
             factor: coating,
             panels,
         })
+    }
+
+    /// Ok when a chart can hold `measured`: 1 to [`MOST_PANELS`] angles or
+    /// geometries (front ends check before fitting).
+    pub fn check(measured: &[Measured]) -> Result<()> {
+        if measured.is_empty() || measured.len() > MOST_PANELS {
+            return Err(Error::invalid(
+                "measured",
+                format!("{} angles or geometries", measured.len()),
+                format!("a fit chart draws 1 to {MOST_PANELS} of them"),
+            ));
+        }
+        Ok(())
     }
 
     /// Columns and rows of the panel grid.

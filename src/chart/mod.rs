@@ -27,7 +27,7 @@ pub use ab::AbTravel;
 pub use bands::BandsChart;
 pub use chromaticity::Chromaticity;
 pub use field::{FieldChart, Region};
-pub use fit::{FitChart, FitPanel};
+pub use fit::{FitChart, FitPanel, MOST_PANELS};
 pub use map::ReflectanceMap;
 pub use spectra::SpectraChart;
 pub use strip::AngleStrip;

@@ -89,6 +89,10 @@ pub fn run(args: &FitArgs) -> CliResult {
         )));
     }
     let measured = reading.groups;
+    if args.chart.is_some() {
+        FitChart::check(&measured)
+            .map_err(|e| Failure::input(format!("{}: {e}", args.measured.display())))?;
+    }
     let settings = FitSettings {
         fit_scale: args.scale,
         budget: Budget {
