@@ -118,6 +118,16 @@ def test_fit_refuses_a_chart_it_cannot_write_before_fitting(tmp_path):
     assert not (tmp_path / "fit.jpg").exists()
 
 
+def test_fit_chart_holds_at_most_twelve_angles(tmp_path):
+    scene, _, s = measured_csv(tmp_path)
+    n = len(s.wavelength_nm)
+    data = (np.tile(s.wavelength_nm, 13), np.tile(s.R[0], 13), np.repeat(np.arange(13.0), n))
+    with pytest.raises(lamella.SceneError, match="measured = 13 angles or geometries: a fit chart draws 1 to 12"):
+        lamella.fit(scene, data, max_evals=50, chart=tmp_path / "fit.png")
+    assert not (tmp_path / "fit.png").exists()
+    assert "chart" not in lamella.fit(scene, data, max_evals=50)
+
+
 def test_fit_refuses_percent_readings(tmp_path):
     scene, path, s = measured_csv(tmp_path)
     with pytest.raises(lamella.SceneError, match=r"measured\[3\] = 45: .*looks like percent"):
