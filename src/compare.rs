@@ -199,12 +199,9 @@ impl Tolerances {
     /// `limits` keyed by angle in degrees or geometry name; `default`
     /// optional, the limit of points not listed).
     pub fn from_json(text: &str) -> Result<Tolerances> {
-        let doc: Value = serde_json::from_str(text.strip_prefix('\u{feff}').unwrap_or(text))
-            .map_err(|e| Error::Syntax {
-                line: e.line(),
-                column: e.column(),
-                message: e.to_string(),
-            })?;
+        // The scenes' strict parse: a key given twice is refused, not
+        // silently overwritten.
+        let doc: Value = crate::scene::json::parse(text)?;
         let obj = doc
             .as_object()
             .ok_or_else(|| Error::invalid("(document)", &doc, "expected a JSON object"))?;
@@ -223,23 +220,25 @@ impl Tolerances {
             Some(Value::String(s)) => Formula::parse(s, "formula")?,
             Some(v) => return Err(Error::invalid("formula", v, "expected a string")),
         };
-        let limits = obj
-            .get("limits")
-            .and_then(Value::as_object)
-            .ok_or_else(|| {
-                Error::invalid(
-                    "limits",
-                    obj.get("limits").map_or("(missing)".into(), Value::to_string),
-                    "expected an object of limits by angle or geometry, e.g. {\"0\": 1.0, \"45\": 1.5}",
-                )
-            })?
-            .iter()
-            .map(|(k, v)| Ok((k.clone(), check_limit(&format!("limits.{k}"), v)?)))
-            .collect::<Result<Vec<_>>>()?;
         let default = obj
             .get("default")
             .map(|v| check_limit("default", v))
             .transpose()?;
+        let empty = serde_json::Map::new();
+        let limits = match obj.get("limits") {
+            // A default alone holds for every point.
+            None if default.is_some() => &empty,
+            v => v.and_then(Value::as_object).ok_or_else(|| {
+                Error::invalid(
+                    "limits",
+                    v.map_or("(missing)".into(), Value::to_string),
+                    "expected an object of limits by angle or geometry, e.g. {\"0\": 1.0, \"45\": 1.5} (or a \"default\" for every point)",
+                )
+            })?,
+        }
+        .iter()
+        .map(|(k, v)| Ok((k.clone(), check_limit(&format!("limits.{k}"), v)?)))
+        .collect::<Result<Vec<_>>>()?;
         Ok(Tolerances {
             formula,
             limits: Limits::Per { limits, default },
@@ -255,6 +254,7 @@ impl Tolerances {
             Limits::Per { limits, default } => {
                 let names = || points.iter().map(point_name).collect::<Vec<_>>().join(", ");
                 let mut out = vec![*default; points.len()];
+                let mut keys: Vec<Option<&str>> = vec![None; points.len()];
                 for (k, l) in limits {
                     let i = points
                         .iter()
@@ -269,6 +269,17 @@ impl Tolerances {
                                 ),
                             )
                         })?;
+                    if let Some(first) = keys[i] {
+                        return Err(Error::invalid(
+                            format!("limits.{k}"),
+                            l,
+                            format!(
+                                "a second limit for {} (limits.{first} gives one)",
+                                points[i].describe()
+                            ),
+                        ));
+                    }
+                    keys[i] = Some(k);
                     out[i] = Some(*l);
                 }
                 if let Some(i) = out.iter().position(Option::is_none) {

@@ -248,3 +248,63 @@ fn bad_input_exits_2_naming_file_key_and_value() {
         assert_eq!(err.trim_end().lines().count(), 1, "{err}");
     }
 }
+
+/// A tolerance file with only a `default` sets every point's limit; a key
+/// given twice, two keys for one angle and a negative default are refused
+/// with one line naming the file, key and value.
+#[test]
+fn tolerance_files_with_a_default_alone_and_their_refusals() {
+    let only = scratch("default-only.json");
+    std::fs::write(&only, r#"{"formula": "de76", "default": 0.5}"#).unwrap();
+    let out = lamella(&[
+        "compare",
+        BATCH,
+        BATCH,
+        "--tolerances",
+        only.to_str().unwrap(),
+        "--format",
+        "json",
+    ]);
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let doc = json(&out);
+    let limits: Vec<f64> = doc["points"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|p| p["limit"].as_f64().unwrap())
+        .collect();
+    assert_eq!(limits, [0.5, 0.5, 0.5]);
+    let cases = [
+        (
+            r#"{"limits": {"0": 1, "0": 5}, "default": 1}"#,
+            "limits.0 = (given again at line 1, column 23): duplicate key",
+        ),
+        (
+            r#"{"limits": {"0": 1, "0.0": 2}, "default": 1}"#,
+            "limits.0.0 = 2: a second limit for angle 0° (limits.0 gives one)",
+        ),
+        (
+            r#"{"default": -1}"#,
+            "default = -1: a tolerance is a colour difference ≥ 0",
+        ),
+        (
+            r#"{"formula": "de00"}"#,
+            "limits = (missing): expected an object of limits",
+        ),
+    ];
+    for (i, (text, want)) in cases.iter().enumerate() {
+        let path = scratch(&format!("tolerances-{i}.json"));
+        std::fs::write(&path, text).unwrap();
+        let p = path.to_str().unwrap();
+        let out = lamella(&["compare", BATCH, BATCH, "--tolerances", p]);
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{text}: {err}");
+        assert!(err.contains(&format!("{p}: {want}")), "{text}: {err}");
+        assert_eq!(err.trim_end().lines().count(), 1, "{err}");
+    }
+}

@@ -225,8 +225,10 @@ def fit(
     scale: bool = False,
     seed: int = 1,
     max_evals: int = 20000,
+    chart: str | PathLike[str] | None = None,
 ) -> dict[str, Any]:
-    """`lamella fit`: the report as a dict, with `scene` the fitted Scene."""
+    """`lamella fit`: the report as a dict, with `scene` the fitted Scene and
+    `chart` the measured-against-fitted Chart (also written to `chart`)."""
 
 def multiangle(
     scene: Scene,

@@ -5,8 +5,8 @@ use std::path::PathBuf;
 
 use lamella::angle_colour::{Polarization, Viewing};
 use lamella::chart::{
-    self, AbTravel, AngleStrip, BandsChart, Chromaticity, FieldChart, Format, ReflectanceMap,
-    SpectraChart, ThicknessAngle, Variation,
+    self, AbTravel, AngleStrip, BandsChart, Chromaticity, FieldChart, FitChart, Format,
+    ReflectanceMap, SpectraChart, ThicknessAngle, Variation,
 };
 use pyo3::prelude::*;
 use pyo3::types::PyBytes;
@@ -26,6 +26,7 @@ enum Kind {
     Ab(AbTravel),
     Field(FieldChart),
     Bands(BandsChart),
+    Fit(FitChart),
 }
 
 impl Kind {
@@ -39,6 +40,7 @@ impl Kind {
             Kind::Ab(c) => chart::render(c, size, format),
             Kind::Field(c) => chart::render(c, size, format),
             Kind::Bands(c) => chart::render(c, size, format),
+            Kind::Fit(c) => chart::render(c, size, format),
         }
     }
 
@@ -52,6 +54,7 @@ impl Kind {
             Kind::Ab(c) => chart::rgb(c, size),
             Kind::Field(c) => chart::rgb(c, size),
             Kind::Bands(c) => chart::rgb(c, size),
+            Kind::Fit(c) => chart::rgb(c, size),
         }
     }
 }
@@ -78,6 +81,17 @@ impl Chart {
             kind.render(size, format)
                 .map_err(|e| Failure::engine("", e))
         })
+    }
+}
+
+impl Chart {
+    /// The chart of a fit (`lamella.fit`'s `chart`), at its default size.
+    pub fn of_fit(chart: FitChart) -> Chart {
+        Chart {
+            size: chart.default_size(),
+            kind: Kind::Fit(chart),
+            name: "fit".into(),
+        }
     }
 }
 
@@ -108,10 +122,8 @@ impl Chart {
 
     /// save(path): writes the chart atomically, as PNG or SVG by the
     /// extension (.png, .svg).
-    fn save(&self, py: Python<'_>, path: PathBuf) -> PyResult<()> {
-        let ext = path.extension().and_then(|e| e.to_str()).unwrap_or("");
-        let format = Format::from_extension(ext)
-            .map_err(|e| Failure::input(format!("{}: {e}", path.display())))?;
+    pub fn save(&self, py: Python<'_>, path: PathBuf) -> PyResult<()> {
+        let format = format_of(&path)?;
         let bytes = self.draw(py, format)?;
         crate::files::write_atomic(&path, &bytes)
     }
@@ -130,6 +142,12 @@ impl Chart {
             self.name, self.size.0, self.size.1
         )
     }
+}
+
+/// The chart format a file name asks for (.png or .svg).
+pub fn format_of(path: &std::path::Path) -> Outcome<Format> {
+    let ext = path.extension().and_then(|e| e.to_str()).unwrap_or("");
+    Format::from_extension(ext).map_err(|e| Failure::input(format!("{}: {e}", path.display())))
 }
 
 fn polarizations(names: &[String]) -> Outcome<Vec<Polarization>> {

@@ -5,6 +5,7 @@
 use std::time::Instant;
 
 use lamella::angle_colour::Viewing;
+use lamella::chart::FitChart;
 use lamella::colorimetry::{rgb_to_xyz_under, xyz_to_lab};
 use lamella::design::coating::At;
 use lamella::design::evaluator::Evaluator;
@@ -441,11 +442,18 @@ fn measured(py: Python<'_>, obj: &Bound<'_, PyAny>, angle: f64) -> Outcome<Vec<M
 /// - scale: also fit a multiplicative intensity scale.
 /// - seed, max_evals: the global search's seed and its most evaluations.
 ///
+/// - chart: also write the chart of measured against fitted spectra with
+///   residuals to this path (.png or .svg), as `lamella fit --chart` does
+///   (for 1 to 12 measured angles or geometries).
+///
 /// Returns the report as a dict (`rms`, `points`, `thicknesses_nm` with
 /// `uncertainty` where determined, `scale`, `evaluations`, …) with `scene`,
-/// the fitted `Scene`.
+/// the fitted `Scene`, and `chart`, that chart as a `lamella.Chart` (shown
+/// inline in Jupyter; `save`, `png`, `svg`; left out beyond 12 angles or
+/// geometries).
 #[pyfunction]
-#[pyo3(signature = (scene, measured, angle=0.0, scale=false, seed=1, max_evals=20000))]
+#[pyo3(signature = (scene, measured, angle=0.0, scale=false, seed=1, max_evals=20000, chart=None))]
+#[allow(clippy::too_many_arguments)]
 pub fn fit<'py>(
     py: Python<'py>,
     scene: &Scene,
@@ -454,10 +462,17 @@ pub fn fit<'py>(
     scale: bool,
     seed: u64,
     max_evals: usize,
+    chart: Option<std::path::PathBuf>,
 ) -> PyResult<Bound<'py, PyDict>> {
+    if let Some(path) = &chart {
+        crate::chart::format_of(path)?;
+    }
     let started = Instant::now();
     let s = &scene.inner;
     let data = self::measured(py, measured, angle)?;
+    if chart.is_some() {
+        FitChart::check(&data).map_err(|e| Failure::input(e.to_string()))?;
+    }
     let settings = FitSettings {
         fit_scale: scale,
         budget: Budget {
@@ -481,6 +496,14 @@ pub fn fit<'py>(
         json!({"seed": seed, "wall_time_s": started.elapsed().as_secs_f64()}),
     )?;
     d.set_item("scene", fitted)?;
+    // More angles than a chart holds: no `chart` (checked above when asked for).
+    if let Ok(drawn) = FitChart::new(&s.title, &out, &data) {
+        let drawn = crate::chart::Chart::of_fit(drawn);
+        if let Some(path) = &chart {
+            drawn.save(py, path.clone())?;
+        }
+        d.set_item("chart", Py::new(py, drawn)?)?;
+    }
     Ok(d)
 }
 

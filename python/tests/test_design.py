@@ -9,7 +9,7 @@ import lamella
 from conftest import BENCH, COATING_SCENES, SCENES
 
 # Keys only a front end knows (file names, its own wall time).
-CONTEXT = {"scene", "out_scene", "wall_time_s"}
+CONTEXT = {"scene", "out_scene", "wall_time_s", "chart"}
 
 
 def same_report(py, cli_report):
@@ -94,6 +94,38 @@ def test_fit_is_the_cli_fit_from_a_file_and_from_arrays(cli, tmp_path):
         assert {k: v for k, v in other.items() if k not in CONTEXT} == {
             k: v for k, v in from_file.items() if k not in CONTEXT
         }
+
+
+def test_fit_chart_is_the_cli_chart(cli, tmp_path):
+    scene, path, _ = measured_csv(tmp_path)
+    run = cli("fit", BENCH / "design_5layer.json", "--measured", path, "--max-evals", "3000",
+              "--out-scene", tmp_path / "fitted.json", "--chart", tmp_path / "cli.svg")
+    assert run.code == 0, run.stderr
+    out = lamella.fit(scene, path, max_evals=3000, chart=tmp_path / "py.svg")
+    assert (tmp_path / "py.svg").read_bytes() == (tmp_path / "cli.svg").read_bytes()
+    chart = out["chart"]
+    assert isinstance(chart, lamella.Chart)
+    assert (chart.name, chart.size) == ("fit", (1200, 800))
+    assert chart.svg().encode() == (tmp_path / "cli.svg").read_bytes()
+    assert chart._repr_png_()[:8] == b"\x89PNG\r\n\x1a\n"
+    assert chart.to_array().shape == (800, 1200, 3)
+
+
+def test_fit_refuses_a_chart_it_cannot_write_before_fitting(tmp_path):
+    scene, path, _ = measured_csv(tmp_path)
+    with pytest.raises(lamella.SceneError, match=r"fit\.jpg: output extension = jpg: charts are written as \.png or \.svg"):
+        lamella.fit(scene, path, max_evals=3000, chart=tmp_path / "fit.jpg")
+    assert not (tmp_path / "fit.jpg").exists()
+
+
+def test_fit_chart_holds_at_most_twelve_angles(tmp_path):
+    scene, _, s = measured_csv(tmp_path)
+    n = len(s.wavelength_nm)
+    data = (np.tile(s.wavelength_nm, 13), np.tile(s.R[0], 13), np.repeat(np.arange(13.0), n))
+    with pytest.raises(lamella.SceneError, match="measured = 13 angles or geometries: a fit chart draws 1 to 12"):
+        lamella.fit(scene, data, max_evals=50, chart=tmp_path / "fit.png")
+    assert not (tmp_path / "fit.png").exists()
+    assert "chart" not in lamella.fit(scene, data, max_evals=50)
 
 
 def test_fit_refuses_percent_readings(tmp_path):

@@ -8,6 +8,7 @@ use super::style::{self, Caption, FRAME, SERIES, Series, Style, frame, legend, m
 use super::{Chart, DrawResult};
 use crate::angle_colour::Viewing;
 use crate::error::Result;
+use crate::pigment::Measurement;
 use crate::scene::Scene;
 
 /// Trajectories on the a*b* plane.
@@ -17,6 +18,8 @@ pub struct AbTravel {
     pub caption: Caption,
     /// One trajectory per scene.
     pub series: Vec<Series>,
+    /// Title of the lightness panel's angle axis.
+    pub angle_axis: String,
 }
 
 impl AbTravel {
@@ -34,7 +37,41 @@ impl AbTravel {
                 scenes[0].1,
             ),
             series,
+            angle_axis: "Angle of incidence (degrees)".into(),
         })
+    }
+
+    /// The trajectory of a coating across its geometries (in their order),
+    /// each point labelled with its geometry's name, and L* against the
+    /// aspecular angle; `title` heads the chart and `viewing` names the light.
+    pub fn of_coating(title: &str, m: &Measurement, viewing: &Viewing) -> Self {
+        let mut caption = Caption::new(
+            &[title],
+            "CIELAB a*, b* across the geometries and lightness L* against aspecular angle",
+            viewing,
+        );
+        caption.viewing = format!(
+            "{} · reflectance factor, surface gloss excluded",
+            style::light(viewing)
+        );
+        AbTravel {
+            caption,
+            series: vec![Series {
+                label: title.to_owned(),
+                angles: m
+                    .geometries
+                    .iter()
+                    .map(|g| g.geometry.aspecular_deg)
+                    .collect(),
+                colours: m.geometries.iter().map(|g| g.colour.clone()).collect(),
+                names: m
+                    .geometries
+                    .iter()
+                    .map(|g| g.geometry.name.clone())
+                    .collect(),
+            }],
+            angle_axis: "Aspecular angle (degrees)".into(),
+        }
     }
 
     /// a*, b* range holding the data and the neutral point, padded, with
@@ -138,17 +175,22 @@ impl AbTravel {
                 (l.min(a), h.max(a))
             });
         let hi = if hi > lo { hi } else { lo + 1.0 };
+        // L* may pass 100 near the specular direction of an effect coating.
+        let brightest = (self.series.iter().flat_map(|x| &x.colours))
+            .map(|c| c.lab[0])
+            .fold(100.0, f64::max);
+        let top = (brightest / 10.0).ceil() * 10.0;
         let mut chart = ChartBuilder::on(area)
             .margin_top(s.px(8.0))
             .margin_left(s.px(20.0))
             .margin_right(s.px(26.0))
             .x_label_area_size(s.px(62.0))
             .y_label_area_size(s.px(64.0))
-            .build_cartesian_2d(lo..hi, 0.0..100.0)?;
+            .build_cartesian_2d(lo..hi, 0.0..top)?;
         mesh(
             &mut chart,
             s,
-            "Angle of incidence (degrees)",
+            &self.angle_axis,
             "Lightness L* (CIELAB)",
             &|v| format!("{}°", style::tick(v)),
             &|v| style::num(*v, 0),

@@ -1,5 +1,5 @@
-//! Charts of colour against angle, of spectra and of what happens inside
-//! the stack: drawn into a plotters backend from computed data, returned as
+//! Charts of colour against angle, of spectra (and of a fit's residuals)
+//! and of what happens inside the stack: drawn into a plotters backend from computed data, returned as
 //! an SVG document, an RGB buffer or PNG bytes (no file I/O).
 //!
 //! Each kind has a data type that computes what it shows from a scene and a
@@ -11,6 +11,7 @@ mod bands;
 pub mod canvas;
 mod chromaticity;
 mod field;
+mod fit;
 mod font;
 pub mod gamut;
 mod map;
@@ -26,10 +27,11 @@ pub use ab::AbTravel;
 pub use bands::BandsChart;
 pub use chromaticity::Chromaticity;
 pub use field::{FieldChart, Region};
+pub use fit::{FitChart, FitPanel, MOST_PANELS};
 pub use map::ReflectanceMap;
 pub use spectra::SpectraChart;
 pub use strip::AngleStrip;
-pub use style::{Caption, Series, describe};
+pub use style::{Caption, Series, describe, light};
 pub use thickness::{ThicknessAngle, Variation};
 
 use crate::error::{Error, Result};
@@ -77,6 +79,9 @@ impl Format {
         }
     }
 }
+
+/// Most series a chart tells apart by colour.
+pub const MOST_SERIES: usize = style::SERIES.len();
 
 /// Smallest and largest chart side in pixels.
 pub const SIZE_LIMITS: (u32, u32) = (320, 8000);

@@ -39,6 +39,10 @@ pub struct SpectraChart {
     pub curves: Vec<Curve>,
     /// Whether a transmittance panel is drawn.
     pub transmittance: bool,
+    /// Whether the values are a coating's reflectance factors (the
+    /// perfect white diffuser is 100 %; near the specular direction they
+    /// may pass 100 %).
+    pub factor: bool,
 }
 
 fn dash(p: Polarization) -> (u32, u32) {
@@ -158,6 +162,7 @@ impl SpectraChart {
             polarizations: polarizations.to_vec(),
             curves,
             transmittance,
+            factor: false,
         })
     }
 
@@ -201,7 +206,58 @@ impl SpectraChart {
             polarizations: vec![Polarization::Unpolarized],
             curves,
             transmittance: false,
+            factor: false,
         })
+    }
+
+    /// A coating's reflectance factor spectra on `wavelengths_nm` (the
+    /// scene's grid) at `geometries` (at most seven), labelled with the
+    /// geometry names; `title` heads the chart and `viewing` names the light.
+    pub fn of_coating(
+        title: &str,
+        wavelengths_nm: &[f64],
+        geometries: &[crate::pigment::GeometryColour],
+        viewing: &Viewing,
+    ) -> Result<Self> {
+        let spectra: Vec<crate::measured::Measured> = geometries
+            .iter()
+            .map(|g| crate::measured::Measured {
+                at: crate::design::coating::At::Geometry(g.geometry.clone()),
+                wavelengths_nm: wavelengths_nm.to_vec(),
+                r: g.reflectance_factor.clone(),
+            })
+            .collect();
+        let series: Vec<(String, &crate::measured::Measured)> = geometries
+            .iter()
+            .zip(&spectra)
+            .map(|(g, m)| (g.geometry.name.clone(), m))
+            .collect();
+        let mut chart = Self::of_series(
+            &[title],
+            "Reflectance factor against wavelength at each geometry",
+            &series,
+            viewing,
+        )?;
+        chart.caption.viewing = format!(
+            "{} · reflectance factor (perfect white diffuser = 100 %), surface gloss excluded",
+            style::light(viewing)
+        );
+        chart.legend_heading = "Geometry".into();
+        chart.factor = true;
+        Ok(chart)
+    }
+
+    /// Top of the value axis: 100 %, or for reflectance factors above
+    /// that, the next multiple of 20 %.
+    fn top(&self) -> f64 {
+        let most = (self.curves.iter().flat_map(|c| c.r.iter().chain(&c.t)))
+            .map(|p| p.1)
+            .fold(100.0, f64::max);
+        if self.factor {
+            (most / 20.0).ceil() * 20.0
+        } else {
+            100.0
+        }
     }
 
     fn panel<DB: DrawingBackend>(
@@ -222,9 +278,11 @@ impl SpectraChart {
             .margin_right(s.px(12.0))
             .x_label_area_size(s.px(62.0))
             .y_label_area_size(s.px(74.0))
-            .build_cartesian_2d(lo..hi, 0.0..100.0)?;
+            .build_cartesian_2d(lo..hi, 0.0..self.top())?;
         let y = if transmitted {
             "Transmittance (%)"
+        } else if self.factor {
+            "Reflectance factor (%)"
         } else {
             "Reflectance (%)"
         };
@@ -287,6 +345,10 @@ impl SpectraChart {
                 s.text(14.0, INK).pos(label),
             ))?;
             y += line;
+        }
+        if self.factor {
+            // A coating's reflectance factor is for unpolarized light only.
+            return Ok(());
         }
         y += line / 2;
         area.draw(&Text::new(

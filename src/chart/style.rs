@@ -170,7 +170,7 @@ pub fn frame<DB: DrawingBackend>(
     ))?;
     let x = left + s.px(16.0);
     root.draw(&Text::new(
-        caption.title.clone(),
+        fitted(&caption.title, s.size(27.0), (w - x - s.px(24.0)) as f64),
         (x, s.px(22.0)),
         s.bold(27.0, INK).pos(Pos::new(HPos::Left, VPos::Top)),
     ))?;
@@ -190,6 +190,26 @@ pub fn frame<DB: DrawingBackend>(
         s.text(12.0, FRAME).pos(Pos::new(HPos::Right, VPos::Bottom)),
     ))?;
     Ok(root.margin(s.px(112.0), s.px(34.0), s.px(24.0), s.px(30.0)))
+}
+
+/// `text` in bold at `size` pixels, cut at a word with an ellipsis where it
+/// would be wider than `room` pixels.
+fn fitted(text: &str, size: f64, room: f64) -> String {
+    let wide = |t: &str| super::font::width(t, size, FontStyle::Bold) > room;
+    if !wide(text) {
+        return text.to_string();
+    }
+    let mut cut = text.to_string();
+    while !cut.is_empty() && wide(&format!("{cut}…")) {
+        cut = match cut.trim_end().rsplit_once(' ') {
+            Some((head, _)) if !head.is_empty() => head.to_string(),
+            _ => {
+                cut.pop();
+                cut
+            }
+        };
+    }
+    format!("{}…", cut.trim_end_matches([' ', ':', ',', ';']))
 }
 
 /// Grid and tick styling for a Cartesian chart, with axis titles.
@@ -252,6 +272,9 @@ pub struct Series {
     pub angles: Vec<f64>,
     /// The colour at each angle.
     pub colours: Vec<Colour>,
+    /// The points' labels along the trajectory (geometry names); empty:
+    /// the angles in degrees.
+    pub names: Vec<String>,
 }
 
 impl Series {
@@ -266,6 +289,7 @@ impl Series {
             },
             angles: spectra.angles_deg.clone(),
             colours: angle_colours(&spectra, viewing)?,
+            names: Vec::new(),
         })
     }
 }
@@ -526,7 +550,11 @@ pub fn angle_labels<DB: DrawingBackend>(
     let mut texts = Vec::new();
     for (l, (line, x)) in lines.iter().zip(series).enumerate() {
         for i in sparse_labels(line, s.px(46.0) as f64) {
-            let t = format!("{}°", tick(&x.angles[i]));
+            let t = x
+                .names
+                .get(i)
+                .cloned()
+                .unwrap_or_else(|| format!("{}°", tick(&x.angles[i])));
             wanted.push((
                 l,
                 i,

@@ -162,7 +162,8 @@ pub enum Command {
     /// The measured CSV has columns wavelength_nm and R (0–1), and angle_deg
     /// or geometry for readings at several angles or geometries; the fitted
     /// scene is written to --out-scene and the report (rms, thicknesses,
-    /// their uncertainties where the data determine them) to stdout.
+    /// their uncertainties where the data determine them) to stdout; --chart
+    /// draws measured against fitted spectra with their residuals.
     #[command(after_help = help::FIT)]
     Fit(Box<cli::fit::FitArgs>),
     /// Evaluate many designs over the `vary_nm` ranges as JSON lines.
@@ -198,7 +199,10 @@ pub enum Command {
     ///
     /// The report (index.html) holds the stack, the colour per angle, the
     /// travel summary, gamut warnings, the cautions on using computed colour,
-    /// the lamella version, the date and the command that made it.
+    /// the lamella version, the date and the command that made it. For a
+    /// scene with a `coating`: the coating's make-up, the colour at each
+    /// geometry (as `multiangle`), the flop index, the hue travel, and the
+    /// a*b* travel and reflectance factor spectra across the geometries.
     #[command(after_help = help::REPORT)]
     Report(cli::report::Args),
     /// Compare a sample's colour with a reference's at every angle or

@@ -4,6 +4,7 @@
 use std::path::PathBuf;
 use std::time::Instant;
 
+use lamella::chart::FitChart;
 use lamella::design::fit::{FitSettings, fit};
 use lamella::design::report::fit_report;
 use lamella::design::search::Budget;
@@ -11,6 +12,7 @@ use lamella::design::variables::edited_document;
 use lamella::measured::{Quantity, ReadOptions};
 use serde_json::{Value, json};
 
+use super::chart::format_of;
 use super::design_args::{Format, json_bytes};
 use super::measured::read_file;
 use super::{CliResult, Failure, load_scene, write_out};
@@ -56,11 +58,21 @@ pub struct FitArgs {
     /// Write the report here instead of stdout.
     #[arg(short = 'o', long = "output")]
     pub output: Option<PathBuf>,
+    /// Also draw measured against fitted spectra with their residuals
+    /// (a panel pair per angle or geometry) into this file, PNG or SVG by
+    /// its extension; the report names it under `chart`.
+    #[arg(long, value_name = "FILE")]
+    pub chart: Option<PathBuf>,
+    /// Size of the --chart in pixels, WIDTHxHEIGHT (default 1200x800 for up
+    /// to three panel pairs, taller for more rows).
+    #[arg(long, value_parser = super::chart::parse_size, requires = "chart")]
+    pub chart_size: Option<(u32, u32)>,
 }
 
 /// Runs the command.
 pub fn run(args: &FitArgs) -> CliResult {
     let started = Instant::now();
+    let chart_format = args.chart.as_deref().map(format_of).transpose()?;
     let scene = load_scene(&args.scene)?;
     let reading = read_file(
         &args.measured,
@@ -77,6 +89,10 @@ pub fn run(args: &FitArgs) -> CliResult {
         )));
     }
     let measured = reading.groups;
+    if args.chart.is_some() {
+        FitChart::check(&measured)
+            .map_err(|e| Failure::input(format!("{}: {e}", args.measured.display())))?;
+    }
     let settings = FitSettings {
         fit_scale: args.scale,
         budget: Budget {
@@ -92,6 +108,13 @@ pub fn run(args: &FitArgs) -> CliResult {
     let doc = edited_document(&scene.document, &out.variables, &out.thicknesses_nm).map_err(bad)?;
     write_out(Some(&args.out_scene), &[json_bytes(&doc)])?;
     let mut report = fit_report(&out, &measured);
+    if let (Some(path), Some(format)) = (&args.chart, chart_format) {
+        let chart = FitChart::new(&scene.title, &out, &measured).map_err(bad)?;
+        let size = args.chart_size.unwrap_or_else(|| chart.default_size());
+        let bytes = lamella::chart::render(&chart, size, format).map_err(bad)?;
+        write_out(Some(path), &[bytes])?;
+        report.insert("chart".into(), json!(path.display().to_string()));
+    }
     report.insert("wall_time_s".into(), json!(started.elapsed().as_secs_f64()));
     report.insert("seed".into(), json!(args.seed));
     write_out(

@@ -141,8 +141,8 @@ Example (2 % thickness and 0.01 index errors, 500 samples):
 
 /// `lamella fit`.
 pub const FIT: &str = "\
-Example:
-  lamella fit scenes/teal_label_foil.json --measured scenes/measured/teal_label_foil_sample.csv --out-scene fitted.json";
+Example (with the chart of measured against fitted spectra and residuals):
+  lamella fit scenes/teal_label_foil.json --measured scenes/measured/teal_label_foil_sample.csv --out-scene fitted.json --chart fit.png";
 
 /// `lamella sweep`.
 pub const SWEEP: &str = "\
@@ -168,16 +168,18 @@ Examples:
 
 /// `lamella report`.
 pub const REPORT: &str = "\
-Example:
-  lamella report scenes/teal_label_foil.json -o foil-report/";
+Examples (a film; an effect-pigment coating):
+  lamella report scenes/teal_label_foil.json -o foil-report/
+  lamella report scenes/pearl_compact_lid.json -o pearl-report/";
 
 /// `lamella compare`.
 pub const COMPARE: &str = "\
 Tolerance file (--tolerances): {\"formula\": \"de00\", \"limits\": {\"0\": 1.0, \"45\": 1.5},
 \"default\": 2.0}: limits keyed by angle in degrees or by geometry name (\"45as15\");
-`default` covers the points not listed (without it every point in both must be
-listed); `formula` is de00 (default), de76, de94 or cmc. A key naming no point in
-both files, a negative limit or an unknown key is refused (exit code 2).
+`default` covers the points not listed (alone, every point; without it every
+point in both must be listed); `formula` is de00 (default), de76, de94 or cmc. A
+key naming no point in both files, two limits for one point, a negative limit or
+an unknown key is refused (exit code 2).
 Components are sample minus reference: ΔL* > 0 lighter, ΔC* > 0 more chromatic,
 ΔH* > 0 a counterclockwise hue turn; the hue word names the a*b* axis the hue turns
 toward (redder +a*, yellower +b*, greener -a*, bluer -b*).

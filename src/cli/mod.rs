@@ -4,6 +4,7 @@ pub mod args;
 pub mod bands;
 pub mod chart;
 pub mod choices;
+pub mod coating_report;
 pub mod color;
 pub mod compare;
 pub mod design_args;

@@ -4,8 +4,9 @@
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 
+use lamella::angle_colour::Viewing;
 use lamella::pigment::{Coating, Measurement, Model, TABLE_STEP_DEG, measure, parse_name};
-use lamella::scene::GRID_BYTES_PER_POINT;
+use lamella::scene::{GRID_BYTES_PER_POINT, Scene};
 use serde_json::{Value, json};
 
 use super::choices::{GamutChoice, PolarizationChoice, SideChoice};
@@ -47,25 +48,7 @@ pub fn run(
     args: &Args,
     out: Option<&PathBuf>,
 ) -> CliResult {
-    let bad = |e| Failure::scene(scene_path, e);
     let scene = load_scene(scene_path)?;
-    let mut coating = Coating::from_scene(&scene).map_err(bad)?;
-    // The platelet model tabulates every wavelength at each internal angle.
-    scene
-        .check_grid_size(
-            (90.0 / TABLE_STEP_DEG) as usize + 1,
-            GRID_BYTES_PER_POINT,
-            "multiangle",
-        )
-        .map_err(bad)?;
-    if let Some(list) = &args.geometries {
-        coating.geometries = list
-            .split(',')
-            .map(|t| parse_name(t, "--geometries"))
-            .collect::<Result<Vec<_>, _>>()
-            .map_err(|e| Failure::input(e.to_string()))?
-            .concat();
-    }
     let view = ViewArgs {
         side: SideChoice::Reflect,
         illuminant: args.illuminant.clone(),
@@ -74,9 +57,7 @@ pub fn run(
         gamut: args.gamut,
     };
     let viewing = view.viewing(&scene, scene_path)?;
-    let weights = viewing.weights(&scene.wavelengths_nm).map_err(bad)?;
-    let model = Model::new(&scene, &coating).map_err(bad)?;
-    let m = measure(&model, &coating.geometries, &weights, &viewing.options).map_err(bad)?;
+    let m = measure_coating(scene_path, &scene, args.geometries.as_deref(), &viewing)?;
     let text = match format {
         RecordFormat::Json => {
             let mut doc = json!({
@@ -121,6 +102,38 @@ pub fn run(
         ),
     };
     write_out(out.map(PathBuf::as_path), &[text.into_bytes()])
+}
+
+/// The colour of the scene's coating at `geometries` (a comma-separated
+/// list of names; default the scene's `coating.geometries`) under
+/// `viewing`, with the flop index, hue travel and surface gloss.
+pub fn measure_coating(
+    scene_path: &Path,
+    scene: &Scene,
+    geometries: Option<&str>,
+    viewing: &Viewing,
+) -> Result<Measurement, Failure> {
+    let bad = |e| Failure::scene(scene_path, e);
+    let mut coating = Coating::from_scene(scene).map_err(bad)?;
+    // The platelet model tabulates every wavelength at each internal angle.
+    scene
+        .check_grid_size(
+            (90.0 / TABLE_STEP_DEG) as usize + 1,
+            GRID_BYTES_PER_POINT,
+            "multiangle",
+        )
+        .map_err(bad)?;
+    if let Some(list) = geometries {
+        coating.geometries = list
+            .split(',')
+            .map(|t| parse_name(t, "--geometries"))
+            .collect::<Result<Vec<_>, _>>()
+            .map_err(|e| Failure::input(e.to_string()))?
+            .concat();
+    }
+    let weights = viewing.weights(&scene.wavelengths_nm).map_err(bad)?;
+    let model = Model::new(scene, &coating).map_err(bad)?;
+    measure(&model, &coating.geometries, &weights, &viewing.options).map_err(bad)
 }
 
 /// Record keys in output order (`srgb` is three columns in CSV).

@@ -3,7 +3,7 @@
 //! where the page came from (version, date, command).
 
 use std::fmt::Write;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 use lamella::angle_colour::{Polarization, Viewing};
 use lamella::chart::canvas::escape;
@@ -70,15 +70,42 @@ impl Provenance {
 }
 
 /// A drawn chart: file stem, heading and SVG text.
-struct Drawn {
-    stem: &'static str,
-    heading: &'static str,
+pub(super) struct Drawn {
+    stem: String,
+    heading: String,
     svg: String,
+}
+
+/// Draws a chart as `STEM.png` and `STEM.svg` in `dir` (`render` gives it
+/// in either format; its errors are about the scene at `scene_path`).
+pub(super) fn write_chart(
+    dir: &Path,
+    scene_path: &Path,
+    stem: String,
+    heading: String,
+    render: &dyn Fn(Format) -> lamella::Result<Vec<u8>>,
+) -> Result<Drawn, Failure> {
+    let at = |e| Failure::scene(scene_path, e);
+    let png = render(Format::Png).map_err(at)?;
+    write_out(Some(&dir.join(format!("{stem}.png"))), &[png])?;
+    let svg = render(Format::Svg).map_err(at)?;
+    write_out(
+        Some(&dir.join(format!("{stem}.svg"))),
+        std::slice::from_ref(&svg),
+    )?;
+    Ok(Drawn {
+        stem,
+        heading,
+        svg: String::from_utf8(svg).expect("SVG is UTF-8"),
+    })
 }
 
 /// Runs the command.
 pub fn run(args: &Args) -> CliResult {
     let scene = load_scene(&args.scene)?;
+    if scene.coating.is_some() {
+        return super::coating_report::run(args, &scene);
+    }
     super::film_scene(&args.scene, &scene, "report")?;
     scene
         .require_isotropic("`lamella report`")
@@ -94,18 +121,13 @@ pub fn run(args: &Args) -> CliResult {
                     heading: &'static str,
                     c: &dyn Fn(Format) -> lamella::Result<Vec<u8>>|
      -> CliResult {
-        let png = c(Format::Png).map_err(at)?;
-        write_out(Some(&args.output.join(format!("{stem}.png"))), &[png])?;
-        let svg = c(Format::Svg).map_err(at)?;
-        write_out(
-            Some(&args.output.join(format!("{stem}.svg"))),
-            std::slice::from_ref(&svg),
-        )?;
-        drawn.push(Drawn {
-            stem,
-            heading,
-            svg: String::from_utf8(svg).expect("SVG is UTF-8"),
-        });
+        drawn.push(write_chart(
+            &args.output,
+            &args.scene,
+            stem.into(),
+            heading.into(),
+            c,
+        )?);
         bar.set(drawn.len() as u64, stem.to_string());
         Ok(())
     };
@@ -182,7 +204,13 @@ fn spectra_angles(grid: &[f64]) -> Vec<f64> {
     a
 }
 
-fn stack_rows(scene: &Scene, items: &[Item], depth: usize, next: &mut usize, out: &mut String) {
+pub(super) fn stack_rows(
+    scene: &Scene,
+    items: &[Item],
+    depth: usize,
+    next: &mut usize,
+    out: &mut String,
+) {
     for item in items {
         match item {
             Item::Layer(l) => {
@@ -228,21 +256,12 @@ fn page(
         scene.title.as_str()
     };
     let mut h = String::new();
-    let _ = write!(
-        h,
-        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">\
-<title>{t} — colour report</title>\n<style>{CSS}</style></head><body>\n\
-<header><h1>{t}</h1><p class=meta>{v}</p>\
-<p class=meta>lamella {VERSION} · {d}</p></header>\n",
-        t = escape(title),
-        v = escape(&lamella::chart::describe(viewing)),
-        d = made.date,
+    open_page(
+        &mut h,
+        title,
+        &lamella::chart::describe(viewing),
+        &made.date,
     );
-    h.push_str("<section class=caution><h2>Cautions</h2><ul>\n");
-    for c in CAUTIONS {
-        let _ = writeln!(h, "<li>{}</li>", escape(c));
-    }
-    h.push_str("</ul></section>\n");
     // Design.
     h.push_str("<section><h2>Design</h2><table><thead><tr><th>Layer</th><th>Material</th><th>Thickness (nm)</th></tr></thead><tbody>\n");
     let _ = writeln!(
@@ -327,6 +346,32 @@ fn page(
     if let Some(a) = absorption {
         absorption_table(scene, a, &mut h);
     }
+    close_page(&mut h, drawn, made);
+    h
+}
+
+/// The page's head, title block (`meta`: the viewing line; then version
+/// and `date`) and the cautions.
+pub(super) fn open_page(h: &mut String, title: &str, meta: &str, date: &str) {
+    let _ = write!(
+        h,
+        "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">\
+<title>{t} — colour report</title>\n<style>{CSS}</style></head><body>\n\
+<header><h1>{t}</h1><p class=meta>{v}</p>\
+<p class=meta>lamella {VERSION} · {date}</p></header>\n",
+        t = escape(title),
+        v = escape(meta),
+    );
+    h.push_str("<section class=caution><h2>Cautions</h2><ul>\n");
+    for c in CAUTIONS {
+        let _ = writeln!(h, "<li>{}</li>", escape(c));
+    }
+    h.push_str("</ul></section>\n");
+}
+
+/// The charts inline with links to their files, the footer with where the
+/// page came from, and the end of the page.
+pub(super) fn close_page(h: &mut String, drawn: &[Drawn], made: &Provenance) {
     for d in drawn {
         let svg = d
             .svg
@@ -335,7 +380,7 @@ fn page(
         let _ = writeln!(
             h,
             "<section class=chart><h2>{}</h2>{svg}<p class=files>Files: <a href=\"{s}.png\">{s}.png</a> · <a href=\"{s}.svg\">{s}.svg</a></p></section>",
-            escape(d.heading),
+            escape(&d.heading),
             s = d.stem
         );
     }
@@ -345,7 +390,6 @@ fn page(
         made.date,
         escape(&made.command)
     );
-    h
 }
 
 /// The mean absorptance of each layer as written (and the sheet and

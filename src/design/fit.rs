@@ -41,6 +41,19 @@ pub struct FitOutcome {
     pub points: usize,
     /// Model evaluations spent.
     pub evaluations: usize,
+    /// The fitted model (the scale applied) at each measured point, one
+    /// list per measured group in the order of the measured data.
+    pub fitted: Vec<Vec<f64>>,
+}
+
+impl FitOutcome {
+    /// Root-mean-square residual of measured group `i` (`measured[i]`, the
+    /// data the fit was given).
+    pub fn rms_of(&self, i: usize, measured: &[Measured]) -> f64 {
+        let (m, f) = (&measured[i].r, &self.fitted[i]);
+        let sse: f64 = m.iter().zip(f).map(|(a, b)| (a - b).powi(2)).sum();
+        (sse / m.len().max(1) as f64).sqrt()
+    }
 }
 
 /// Model values at the measured points for thicknesses `x`.
@@ -215,15 +228,17 @@ pub fn fit_with_progress(
     });
     let n = vars.len();
     let rms = (lm.sse / points as f64).sqrt();
-    if !rms.is_finite() || !lm.p[n].is_finite() {
+    let model = predict(&lm.p[..n]);
+    let mut fitted = Vec::with_capacity(measured.len());
+    let mut start = 0;
+    for m in measured {
+        let end = start + m.r.len();
         // Name the first point where the fitted model cannot be computed.
-        let model = predict(&lm.p[..n]);
-        let mut start = 0;
-        for m in measured {
-            let end = start + m.r.len();
-            check_finite(&model[start..end], &m.at, "", "the model reflectance")?;
-            start = end;
-        }
+        check_finite(&model[start..end], &m.at, "", "the model reflectance")?;
+        fitted.push(model[start..end].iter().map(|v| lm.p[n] * v).collect());
+        start = end;
+    }
+    if !rms.is_finite() || !lm.p[n].is_finite() {
         return Err(Error::NotComputable {
             what: "the residual".into(),
             at: "the fit".into(),
@@ -239,6 +254,7 @@ pub fn fit_with_progress(
         rms,
         points,
         evaluations: found.evaluations + count.load(std::sync::atomic::Ordering::Relaxed),
+        fitted,
     })
 }
 

@@ -336,6 +336,9 @@ fn bound(command: &mut Command) -> bool {
         Command::Fit(a) => {
             a.max_evals = a.max_evals.min(60);
             to_file(&mut a.output);
+            if a.chart.is_some() {
+                small_chart(a.chart_size.get_or_insert((320, 320)));
+            }
         }
         Command::Sweep(a) => {
             a.samples = a.samples.map(|n| n.min(16));
