@@ -47,9 +47,40 @@ pub fn run(
     args: &Args,
     out: Option<&PathBuf>,
 ) -> CliResult {
-    let bad = |e| Failure::scene(scene_path, e);
     let scene = load_scene(scene_path)?;
-    let mut coating = Coating::from_scene(&scene).map_err(bad)?;
+    let (viewing, m) = measurement(&scene, scene_path, args)?;
+    let text = match format {
+        RecordFormat::Json => {
+            let doc = document(&scene, &viewing, &m, args.spectra);
+            serde_json::to_string_pretty(&doc).expect("records serialise") + "\n"
+        }
+        RecordFormat::Csv => csv(&m, &scene.wavelengths_nm, args.spectra),
+        RecordFormat::Cgats => {
+            let points: Vec<_> = (m.geometries.iter())
+                .map(|g| (At::Geometry(g.geometry.clone()), &g.colour))
+                .collect();
+            super::cgats_colours(&scene.title, &viewing, &points)
+        }
+        RecordFormat::Table => table(
+            &scene.title,
+            &m,
+            viewing.illuminant.name(),
+            viewing.observer.name(),
+            out.is_none() && std::io::stdout().is_terminal(),
+        ),
+    };
+    write_out(out.map(PathBuf::as_path), &[text.into_bytes()])
+}
+
+/// The coating of `scene` measured at its geometries (or those of
+/// `--geometries`) under the flags' light and observer.
+pub fn measurement(
+    scene: &lamella::scene::Scene,
+    scene_path: &Path,
+    args: &Args,
+) -> Result<(lamella::angle_colour::Viewing, Measurement), Failure> {
+    let bad = |e| Failure::scene(scene_path, e);
+    let mut coating = Coating::from_scene(scene).map_err(bad)?;
     // The platelet model tabulates every wavelength at each internal angle.
     scene
         .check_grid_size(
@@ -73,54 +104,45 @@ pub fn run(
         polarization: PolarizationChoice::Unpolarized,
         gamut: args.gamut,
     };
-    let viewing = view.viewing(&scene, scene_path)?;
+    let viewing = view.viewing(scene, scene_path)?;
     let weights = viewing.weights(&scene.wavelengths_nm).map_err(bad)?;
-    let model = Model::new(&scene, &coating).map_err(bad)?;
+    let model = Model::new(scene, &coating).map_err(bad)?;
     let m = measure(&model, &coating.geometries, &weights, &viewing.options).map_err(bad)?;
-    let text = match format {
-        RecordFormat::Json => {
-            let mut doc = json!({
-                "title": scene.title,
-                "illuminant": viewing.illuminant.name(),
-                "observer": viewing.observer.name(),
-                "geometries": records(&m, args.spectra),
-            });
-            // A summary that is undefined is left out (its note says why),
-            // never written as null.
-            match (m.flop_index, &m.flop_note) {
-                (Some(f), _) => doc["flop_index"] = json!(f),
-                (None, Some(note)) => doc["flop_note"] = json!(note),
-                (None, None) => {}
-            }
-            if let Some(h) = m.hue_travel_deg {
-                doc["hue_travel_deg"] = json!(h);
-            }
-            doc["surface_gloss_Y"] = m
-                .surface_gloss_y
-                .iter()
-                .map(|(a, y)| json!({"illumination_deg": a, "Y": y}))
-                .collect();
-            if args.spectra {
-                doc["wavelength_nm"] = json!(scene.wavelengths_nm);
-            }
-            serde_json::to_string_pretty(&doc).expect("records serialise") + "\n"
-        }
-        RecordFormat::Csv => csv(&m, &scene.wavelengths_nm, args.spectra),
-        RecordFormat::Cgats => {
-            let points: Vec<_> = (m.geometries.iter())
-                .map(|g| (At::Geometry(g.geometry.clone()), &g.colour))
-                .collect();
-            super::cgats_colours(&scene.title, &viewing, &points)
-        }
-        RecordFormat::Table => table(
-            &scene.title,
-            &m,
-            viewing.illuminant.name(),
-            viewing.observer.name(),
-            out.is_none() && std::io::stdout().is_terminal(),
-        ),
-    };
-    write_out(out.map(PathBuf::as_path), &[text.into_bytes()])
+    Ok((viewing, m))
+}
+
+/// `lamella multiangle --format json` of a measurement.
+pub fn document(
+    scene: &lamella::scene::Scene,
+    viewing: &lamella::angle_colour::Viewing,
+    m: &Measurement,
+    spectra: bool,
+) -> Value {
+    let mut doc = json!({
+        "title": scene.title,
+        "illuminant": viewing.illuminant.name(),
+        "observer": viewing.observer.name(),
+        "geometries": records(m, spectra),
+    });
+    // A summary that is undefined is left out (its note says why),
+    // never written as null.
+    match (m.flop_index, &m.flop_note) {
+        (Some(f), _) => doc["flop_index"] = json!(f),
+        (None, Some(note)) => doc["flop_note"] = json!(note),
+        (None, None) => {}
+    }
+    if let Some(h) = m.hue_travel_deg {
+        doc["hue_travel_deg"] = json!(h);
+    }
+    doc["surface_gloss_Y"] = m
+        .surface_gloss_y
+        .iter()
+        .map(|(a, y)| json!({"illumination_deg": a, "Y": y}))
+        .collect();
+    if spectra {
+        doc["wavelength_nm"] = json!(scene.wavelengths_nm);
+    }
+    doc
 }
 
 /// Record keys in output order (`srgb` is three columns in CSV).

@@ -1,0 +1,77 @@
+//! The checks every request passes before a handler sees it: the Host
+//! header names this server, an Origin (when sent) is this server's own,
+//! and API calls carry the session token.
+
+use std::sync::Arc;
+
+use axum::extract::{Request, State};
+use axum::http::{HeaderMap, StatusCode, header};
+use axum::middleware::Next;
+use axum::response::{IntoResponse, Response};
+use rand::Rng;
+
+use super::Server;
+use super::api::ApiError;
+
+/// Largest request body accepted, bytes: a scene document with inline
+/// tables fits many times over.
+pub const MAX_BODY_BYTES: usize = 2 << 20;
+
+/// The header that carries the token.
+pub const TOKEN_HEADER: &str = "x-lamella-token";
+
+/// A fresh random token: 128 bits from the operating system's generator
+/// (through `rand`'s thread generator), as hex.
+pub fn new_token() -> String {
+    let bytes: [u8; 16] = rand::rng().random();
+    bytes.iter().map(|b| format!("{b:02x}")).collect()
+}
+
+/// Refuses a request whose Host or Origin is foreign (403) or an API call
+/// without the token (401), with a JSON error.
+pub async fn check(State(server): State<Arc<Server>>, request: Request, next: Next) -> Response {
+    match refusal(&server, request.headers(), request.uri().path()) {
+        Some(e) => e.into_response(),
+        None => next.run(request).await,
+    }
+}
+
+fn refusal(server: &Server, headers: &HeaderMap, path: &str) -> Option<ApiError> {
+    let text = |name: &str| headers.get(name).and_then(|v| v.to_str().ok());
+    let host = text(header::HOST.as_str()).unwrap_or("");
+    if !server.hosts.iter().any(|h| h.eq_ignore_ascii_case(host)) {
+        return Some(ApiError::new(
+            StatusCode::FORBIDDEN,
+            format!("Host `{host}` is not this server; open the address lamella serve printed"),
+        ));
+    }
+    if let Some(origin) = text(header::ORIGIN.as_str()) {
+        let own = server
+            .hosts
+            .iter()
+            .any(|h| origin.eq_ignore_ascii_case(&format!("http://{h}")));
+        if !own {
+            return Some(ApiError::new(
+                StatusCode::FORBIDDEN,
+                format!(
+                    "Origin `{origin}` is not this server: requests from other pages are refused"
+                ),
+            ));
+        }
+    }
+    if path.starts_with("/api/") {
+        let given = text(TOKEN_HEADER).unwrap_or("");
+        if !same(given.as_bytes(), server.token.as_bytes()) {
+            return Some(ApiError::new(
+                StatusCode::UNAUTHORIZED,
+                "missing or wrong token: open the full address lamella serve printed (with #token=…)",
+            ));
+        }
+    }
+    None
+}
+
+/// Byte strings compared in time independent of where they differ.
+fn same(a: &[u8], b: &[u8]) -> bool {
+    a.len() == b.len() && a.iter().zip(b).fold(0u8, |acc, (x, y)| acc | (x ^ y)) == 0
+}
