@@ -118,8 +118,15 @@ fn run_all(commands: &[String], label: &str) {
 /// answer the page there, and is then stopped.
 fn serves(args: &[String], dir: &Path, command: &str) {
     use std::io::{BufRead, Read, Write};
+    // A busy default port on the test machine must not fail the test.
+    let port: &[&str] = if args.iter().any(|a| a == "--port") {
+        &[]
+    } else {
+        &["--port", "0"]
+    };
     let mut child = Command::new(env!("CARGO_BIN_EXE_lamella"))
         .args(&args[1..])
+        .args(port)
         .current_dir(dir)
         .stdout(std::process::Stdio::piped())
         .stderr(std::process::Stdio::null())

@@ -12,7 +12,7 @@ Exit codes, for every command:
        still written); `compare` found a point outside its tolerance (the
        report is still written)
   130  stopped by Ctrl-C; 143 by SIGTERM; 129 by SIGHUP (temporary output
-       files are removed)
+       files are removed); `serve` runs until stopped so
 
 Example:
   lamella color scenes/teal_label_foil.json";

@@ -26,6 +26,7 @@ use lamella::scene::Scene;
 use serde::Deserialize;
 use serde_json::{Value, json};
 
+use super::super::chart::chartable;
 use super::super::choices::{GamutChoice, HandednessChoice, PolarizationChoice, SideChoice};
 use super::super::color::{self, ViewArgs};
 use super::super::design_args::TargetArgs;
@@ -266,6 +267,7 @@ pub async fn session(State(server): State<Arc<Server>>) -> Json<Value> {
             "max_render_pixels": MAX_RENDER_PIXELS,
         },
         "version": lamella::report::VERSION,
+        "cautions": lamella::report::CAUTIONS,
     }))
 }
 
@@ -327,17 +329,23 @@ pub fn live_answer(server: &Server, request: &Request, ticket: &Ticket) -> Answe
             out["target_lab"] = json!(lab);
             out["delta_e00"] = colours.iter().map(|c| delta_e2000(c.lab, lab)).collect();
         }
-        ticket.current()?;
-        out["strip"] = drawn(
-            &label,
-            AngleStrip::compute_sampled(&scene, &viewing, None, STRIP_SAMPLES)
-                .and_then(|c| chart::svg(&c, STRIP_SIZE)),
-        );
-        ticket.current()?;
-        out["ab"] = drawn(
-            &label,
-            AbTravel::compute(&[(&scene, &viewing)]).and_then(|c| chart::svg(&c, AB_SIZE)),
-        );
+        // The charts refuse what `lamella chart` refuses, each in its place.
+        if let Err(f) = chartable(&path, &scene) {
+            out["strip"] = json!({"error": f.message});
+            out["ab"] = json!({"error": f.message});
+        } else {
+            ticket.current()?;
+            out["strip"] = drawn(
+                &label,
+                AngleStrip::compute_sampled(&scene, &viewing, None, STRIP_SAMPLES)
+                    .and_then(|c| chart::svg(&c, STRIP_SIZE)),
+            );
+            ticket.current()?;
+            out["ab"] = drawn(
+                &label,
+                AbTravel::compute(&[(&scene, &viewing)]).and_then(|c| chart::svg(&c, AB_SIZE)),
+            );
+        }
     }
     out["server_ms"] = json!(started.elapsed().as_secs_f64() * 1e3);
     Ok(out)
@@ -410,7 +418,7 @@ pub async fn spectra_chart(
         let scene = design(&server, &request)?;
         let label = server.files.label();
         let path = PathBuf::from(&label);
-        film_scene(&path, &scene, "serve")?;
+        chartable(&path, &scene)?;
         let viewing = viewing_of(&scene, &path, &request.view)?;
         let angles = request
             .angles

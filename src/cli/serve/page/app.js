@@ -53,11 +53,12 @@ function design() {
 
 // ---- messages ----------------------------------------------------------------
 
-function say(text, ok) {
+// A message: an error, or with `kind` "ok" (done) or "note" (a warning).
+function say(text, kind) {
   const m = $("message");
   m.hidden = !text;
   m.textContent = text || "";
-  m.classList.toggle("ok", !!ok);
+  m.className = kind ? `message ${kind}` : "message";
 }
 
 function status(text) {
@@ -262,8 +263,7 @@ function fmt(x, d) { return Number(x).toFixed(d).replace("-", "−"); }
 
 function showLive(r) {
   lastLive = r;
-  say(r.warnings.length ? r.warnings.join("\n") : "", false);
-  if (r.warnings.length) $("message").classList.add("ok");
+  say(r.warnings.join("\n"), "note");
   chart($("strip"), r.strip);
   chart($("ab"), r.ab);
   const sw = $("swatches");
@@ -397,7 +397,7 @@ function text() { return JSON.stringify(doc, null, 2) + "\n"; }
 async function save() {
   try {
     const r = await (await call("/api/save", { scene: doc })).json();
-    say(`Saved to ${r.saved}.`, true);
+    say(`Saved to ${r.saved}.`, "ok");
     document.body.dataset.saved = r.saved;
   } catch (e) { say(e.message); }
 }
@@ -471,6 +471,8 @@ async function start() {
   $("file").textContent = info.file ? `${info.file} — ${doc.title || "untitled"}` : `starter design (not saved to a file) — ${doc.title || ""}`;
   $("save").disabled = !info.can_save;
   if (!info.can_save) $("save").title = "Started without a scene file: download the JSON instead";
+  $("cautions").replaceChildren(...info.cautions.map((c) => el("li", {}, c)));
+  $("version").textContent = `lamella ${info.version}`;
   fillChoices();
   wire();
   renderStack();
