@@ -578,3 +578,66 @@ fn remote_addresses_need_allow_remote() {
     assert_eq!(code, Some(2));
     assert!(stderr.contains("--allow-remote"), "{stderr}");
 }
+
+#[test]
+fn every_address_with_allow_remote_warns_and_still_needs_the_token() {
+    let mut child = Command::new(BIN)
+        .args([
+            "serve",
+            "--host",
+            "0.0.0.0",
+            "--allow-remote",
+            "--port",
+            "0",
+        ])
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    use std::io::{BufRead, Read};
+    let mut line = String::new();
+    std::io::BufReader::new(child.stdout.take().unwrap())
+        .read_line(&mut line)
+        .unwrap();
+    assert!(line.contains("http://0.0.0.0:"), "{line}");
+    let port = line
+        .split("0.0.0.0:")
+        .nth(1)
+        .unwrap()
+        .split('/')
+        .next()
+        .unwrap()
+        .to_owned();
+    let ask = |headers: &str| {
+        let mut s =
+            std::net::TcpStream::connect(("127.0.0.1", port.parse::<u16>().unwrap())).unwrap();
+        use std::io::Write;
+        write!(
+            s,
+            "GET /api/session HTTP/1.1\r\n{headers}Connection: close\r\n\r\n"
+        )
+        .unwrap();
+        let mut reply = String::new();
+        let _ = s.read_to_string(&mut reply);
+        reply
+    };
+    let token = line.split("#token=").nth(1).unwrap().trim().to_owned();
+    let name = format!("Host: designer.lan:{port}\r\n");
+    assert!(ask(&format!("{name}x-lamella-token: {token}\r\n")).starts_with("HTTP/1.1 200"));
+    assert!(ask(&name).starts_with("HTTP/1.1 401"));
+    let foreign = format!("{name}Origin: http://example.com\r\nx-lamella-token: {token}\r\n");
+    assert!(ask(&foreign).starts_with("HTTP/1.1 403"));
+    let _ = child.kill();
+    let _ = child.wait();
+    let mut stderr = String::new();
+    child
+        .stderr
+        .take()
+        .unwrap()
+        .read_to_string(&mut stderr)
+        .unwrap();
+    assert!(
+        stderr.contains("warning") && stderr.contains("reachable from other machines"),
+        "{stderr}"
+    );
+}

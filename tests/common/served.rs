@@ -66,8 +66,9 @@ impl Served {
             .find(|w| w.starts_with("http://"))
             .unwrap_or_else(|| panic!("no address in {line:?}"))
             .to_owned();
-        let rest = url.trim_start_matches("http://127.0.0.1:");
-        let (port, token) = rest.split_once("/#token=").expect("port and token");
+        let rest = url.trim_start_matches("http://");
+        let (address, token) = rest.split_once("/#token=").expect("address and token");
+        let port = address.rsplit(':').next().expect("a port");
         Served {
             child,
             port: port.parse().expect("a port number"),

@@ -1,6 +1,6 @@
 //! The checks every request passes before a handler sees it: the Host
-//! header names this server, an Origin (when sent) is this server's own,
-//! and API calls carry the session token.
+//! header names this server, an Origin (when sent) is the page's own (the
+//! address in Host), and API calls carry the session token.
 
 use std::sync::Arc;
 
@@ -39,18 +39,19 @@ pub async fn check(State(server): State<Arc<Server>>, request: Request, next: Ne
 fn refusal(server: &Server, headers: &HeaderMap, path: &str) -> Option<ApiError> {
     let text = |name: &str| headers.get(name).and_then(|v| v.to_str().ok());
     let host = text(header::HOST.as_str()).unwrap_or("");
-    if !server.hosts.iter().any(|h| h.eq_ignore_ascii_case(host)) {
+    let known = match &server.hosts {
+        Some(hosts) => hosts.iter().any(|h| h.eq_ignore_ascii_case(host)),
+        None => !host.is_empty(),
+    };
+    if !known {
         return Some(ApiError::new(
             StatusCode::FORBIDDEN,
             format!("Host `{host}` is not this server; open the address lamella serve printed"),
         ));
     }
     if let Some(origin) = text(header::ORIGIN.as_str()) {
-        let own = server
-            .hosts
-            .iter()
-            .any(|h| origin.eq_ignore_ascii_case(&format!("http://{h}")));
-        if !own {
+        // The page's own origin is the address it was loaded from.
+        if !origin.eq_ignore_ascii_case(&format!("http://{host}")) {
             return Some(ApiError::new(
                 StatusCode::FORBIDDEN,
                 format!(

@@ -56,8 +56,10 @@ pub struct Args {
 pub struct Server {
     /// The token every API call must carry (`x-lamella-token`).
     token: String,
-    /// Host header values that name this server (`127.0.0.1:PORT`, …).
-    hosts: Vec<String>,
+    /// Host header values that name this server (`127.0.0.1:PORT`, …);
+    /// `None` when listening on every address (`--host 0.0.0.0
+    /// --allow-remote`), where any name may reach it.
+    hosts: Option<Vec<String>>,
     /// The scene file given on the command line and its confined folder.
     files: files::Files,
     /// Generation counters of live requests, and the match job.
@@ -107,14 +109,19 @@ async fn serve(args: &Args, files: files::Files) -> CliResult {
     }
     let server = Arc::new(Server {
         token: guard::new_token(),
-        hosts,
+        hosts: (!args.host.is_unspecified()).then_some(hosts),
         files,
         jobs: jobs::Jobs::default(),
     });
     if !args.host.is_loopback() {
         eprintln!(
             "lamella: warning: listening on {shown}, reachable from other machines: \
-             anyone with the URL below can drive the designer and save over the scene"
+             anyone with the URL below can drive the designer and save over the scene{}",
+            if args.host.is_unspecified() {
+                " (on every address, so requests are not checked for the server's name)"
+            } else {
+                ""
+            }
         );
     }
     // Ctrl-C, SIGTERM and SIGHUP end the process as for every command,
