@@ -35,9 +35,10 @@ fn main() {
     let mut move_to = |t: f64| {
         doc["stack"][0]["thickness_nm"] = json!(t);
         let started = Instant::now();
+        // As the page asks while a slider moves: the strip at the width shown.
         let r = server.post(
             "/api/live",
-            &json!({"scene": doc, "target": {"hex": "#2A9D8F"}}),
+            &json!({"scene": doc, "target": {"hex": "#2A9D8F"}, "strip_width": 820}),
         );
         let round = started.elapsed().as_secs_f64() * 1e3;
         assert_eq!(r.status, 200, "{}", String::from_utf8_lossy(&r.body));

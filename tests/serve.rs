@@ -499,6 +499,14 @@ fn work_per_request_is_bounded() {
     assert_eq!(r.status, 400);
     let e = r.json()["error"].as_str().unwrap().to_owned();
     assert!(e.contains("wavelengths_nm") && e.contains(&scene), "{e}");
+    let r = server.post("/api/live", &json!({"scene": doc, "strip_width": 100000}));
+    assert_eq!(r.status, 400);
+    assert!(
+        r.json()["error"]
+            .as_str()
+            .unwrap()
+            .contains("strip_width = 100000")
+    );
     let r = server.post("/api/render", &json!({"scene": doc, "size": "4000x4000"}));
     assert_eq!(r.status, 400);
     assert!(

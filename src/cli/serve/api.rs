@@ -47,12 +47,15 @@ const MAX_RENDER_SSAA: u32 = 2;
 /// Most angles of the spectra chart.
 const MAX_SPECTRA_ANGLES: usize = 6;
 
-/// Angles of the page's colour strip: about one per 5 pixels of the strip
-/// as the page shows it (the command draws 720).
+/// Angles of the page's colour strip while the design changes: about one
+/// per 3 pixels of the strip as the page shows it. At rest (`fine`) the
+/// strip is drawn as `lamella chart` draws it.
 const STRIP_SAMPLES: usize = 240;
 
 /// Chart sizes in pixels (drawn as SVG, scaled by the page).
 const STRIP_SIZE: (u32, u32) = (900, 420);
+/// Widest strip the page may ask for.
+const MAX_STRIP_WIDTH: u32 = 2400;
 const AB_SIZE: (u32, u32) = (1200, 560);
 const SPECTRA_SIZE: (u32, u32) = (1200, 600);
 
@@ -139,6 +142,11 @@ pub struct Request {
     angles: Option<Vec<f64>>,
     curves: Option<Vec<String>>,
     transmittance: bool,
+    /// Live: the strip at the chart's full angle sampling (the design at rest).
+    fine: bool,
+    /// Live: the strip's width in pixels, to be shown at its own size (its
+    /// colour columns then meet without seams).
+    strip_width: Option<u32>,
     /// Render: `WxH`.
     size: Option<String>,
     /// Match: the target's angle or geometry, budget and seed.
@@ -329,6 +337,17 @@ pub fn live_answer(server: &Server, request: &Request, ticket: &Ticket) -> Answe
             out["target_lab"] = json!(lab);
             out["delta_e00"] = colours.iter().map(|c| delta_e2000(c.lab, lab)).collect();
         }
+        let strip_size = match request.strip_width {
+            Some(w) if (chart::SIZE_LIMITS.0..=MAX_STRIP_WIDTH).contains(&w) => (w, STRIP_SIZE.1),
+            Some(w) => {
+                return Err(Failure::input(format!(
+                    "strip_width = {w}: give {} to {MAX_STRIP_WIDTH} pixels",
+                    chart::SIZE_LIMITS.0
+                ))
+                .into());
+            }
+            None => STRIP_SIZE,
+        };
         // The charts refuse what `lamella chart` refuses, each in its place.
         if let Err(f) = chartable(&path, &scene) {
             out["strip"] = json!({"error": f.message});
@@ -337,8 +356,12 @@ pub fn live_answer(server: &Server, request: &Request, ticket: &Ticket) -> Answe
             ticket.current()?;
             out["strip"] = drawn(
                 &label,
-                AngleStrip::compute_sampled(&scene, &viewing, None, STRIP_SAMPLES)
-                    .and_then(|c| chart::svg(&c, STRIP_SIZE)),
+                if request.fine {
+                    AngleStrip::compute(&scene, &viewing, None)
+                } else {
+                    AngleStrip::compute_sampled(&scene, &viewing, None, STRIP_SAMPLES)
+                }
+                .and_then(|c| chart::svg(&c, strip_size)),
             );
             ticket.current()?;
             out["ab"] = drawn(

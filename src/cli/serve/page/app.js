@@ -225,23 +225,26 @@ function changed(structure) {
   if (structure) renderStack();
   scheduleLive();
   clearTimeout(slowTimer);
-  slowTimer = setTimeout(updateSlow, 350);
+  slowTimer = setTimeout(atRest, 350);
 }
 
 function scheduleLive() {
   if (liveQueued) return;
   liveQueued = true;
-  requestAnimationFrame(() => { liveQueued = false; sendLive(); });
+  requestAnimationFrame(() => { liveQueued = false; sendLive(false); });
 }
 
-async function sendLive() {
+// `fine`: the design is at rest, so the strip is drawn at full sampling.
+async function sendLive(fine) {
   // A newer request supersedes the one in flight: the server drops the
   // older one at its next check.
   if (liveCtl) liveCtl.abort();
   const ctl = (liveCtl = new AbortController());
   const started = performance.now();
   try {
-    const r = await (await call("/api/live", design(), ctl.signal)).json();
+    // The strip is drawn at the width it is shown, so its columns meet cleanly.
+    const width = Math.min(2400, Math.max(320, Math.round($("strip").clientWidth)));
+    const r = await (await call("/api/live", { ...design(), fine, strip_width: width }, ctl.signal)).json();
     if (ctl !== liveCtl) return;
     liveCtl = null;
     showLive(r);
@@ -310,6 +313,13 @@ function showCoating(c) {
 
 function currentTab() {
   return document.querySelector(".tabs [aria-selected=true]").dataset.tab;
+}
+
+// The design has not changed for a moment: the fine strip, and the view in
+// the open tab.
+function atRest() {
+  sendLive(true);
+  updateSlow();
 }
 
 async function updateSlow() {
