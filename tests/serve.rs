@@ -485,7 +485,14 @@ fn guards_refuse_token_host_origin_and_size() {
     );
     // Oversize body.
     let big = vec![b' '; 3 << 20];
-    assert_eq!(server.call("POST", "/api/live", &big).status, 413);
+    let r = server.call("POST", "/api/live", &big);
+    assert_eq!(r.status, 413);
+    assert!(
+        r.json()["error"]
+            .as_str()
+            .unwrap()
+            .starts_with("request body: larger than")
+    );
 }
 
 #[test]

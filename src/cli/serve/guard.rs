@@ -72,6 +72,23 @@ fn refusal(server: &Server, headers: &HeaderMap, path: &str) -> Option<ApiError>
     None
 }
 
+/// A body refused for its size (by the limit layer, before any handler) is
+/// answered with a JSON error like every other refusal.
+pub async fn json_refusals(response: Response) -> Response {
+    let json = response
+        .headers()
+        .get(header::CONTENT_TYPE)
+        .is_some_and(|t| t.as_bytes().starts_with(b"application/json"));
+    if response.status() == StatusCode::PAYLOAD_TOO_LARGE && !json {
+        return ApiError::new(
+            StatusCode::PAYLOAD_TOO_LARGE,
+            format!("request body: larger than the {MAX_BODY_BYTES} bytes the page may send"),
+        )
+        .into_response();
+    }
+    response
+}
+
 /// Byte strings compared in time independent of where they differ.
 fn same(a: &[u8], b: &[u8]) -> bool {
     a.len() == b.len() && a.iter().zip(b).fold(0u8, |acc, (x, y)| acc | (x ^ y)) == 0

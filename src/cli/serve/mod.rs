@@ -166,5 +166,6 @@ fn router(server: Arc<Server>) -> Router {
         .layer(tower_http::limit::RequestBodyLimitLayer::new(
             guard::MAX_BODY_BYTES,
         ))
+        .layer(axum::middleware::map_response(guard::json_refusals))
         .with_state(server)
 }
