@@ -17,6 +17,7 @@ use clap::ValueEnum;
 use lamella::angle_colour::{Polarization, Viewing};
 use lamella::chart::{self, AbTravel, AngleStrip, Caption, Series, SpectraChart};
 use lamella::colorimetry::{BUILT_IN_ILLUMINANTS, delta_e2000};
+use lamella::design::coating::design_items;
 use lamella::design::matching::{Goal, MatchSettings, match_colour};
 use lamella::design::report::match_report;
 use lamella::design::variables::{edited_document, varying_in};
@@ -162,6 +163,15 @@ fn parse(body: &Bytes) -> Answer<Request> {
 }
 
 impl Request {
+    /// The target as `--target-lab` and `--target-hex`.
+    fn target_args(&self) -> TargetArgs {
+        let target = self.target.clone().unwrap_or_default();
+        TargetArgs {
+            target_lab: target.lab,
+            target_hex: target.hex,
+        }
+    }
+
     fn document(&self) -> Answer<&Value> {
         self.scene.as_ref().ok_or_else(|| {
             ApiError::new(
@@ -306,7 +316,7 @@ pub fn live_answer(server: &Server, request: &Request, ticket: &Ticket) -> Answe
     let label = server.files.label();
     let path = PathBuf::from(&label);
     let (view, analyzer) = request.view.args()?;
-    let items = scene.coating.as_ref().map_or(&scene.stack, |c| &c.platelet);
+    let items = design_items(&scene, scene.coating.as_ref());
     let variables: Vec<Value> = varying_in(&scene, items)
         .iter()
         .map(|v| {
@@ -319,11 +329,7 @@ pub fn live_answer(server: &Server, request: &Request, ticket: &Ticket) -> Answe
         "warnings": server.files.warnings(&scene),
         "variables": variables,
     });
-    let target = request.target.clone().unwrap_or_default();
-    let target = TargetArgs {
-        target_lab: target.lab,
-        target_hex: target.hex,
-    };
+    let target = request.target_args();
     if scene.coating.is_some() {
         ticket.current()?;
         out["coating"] = coating_answer(&scene, &path, &view)?;
@@ -569,13 +575,9 @@ pub async fn start_match(State(server): State<Arc<Server>>, body: Bytes) -> Answ
         );
     }
     let viewing = view.viewing(&scene, &path)?;
-    let target = request.target.clone().unwrap_or_default();
-    let lab = TargetArgs {
-        target_lab: target.lab,
-        target_hex: target.hex,
-    }
-    .lab(&viewing, &scene.wavelengths_nm)?
-    .ok_or_else(|| Failure::input("target: give a target colour (hex or lab)"))?;
+    let lab = (request.target_args())
+        .lab(&viewing, &scene.wavelengths_nm)?
+        .ok_or_else(|| Failure::input("target: give a target colour (hex or lab)"))?;
     let at = matching::main_point(&scene, request.geometry.as_deref(), request.angle)?;
     let max_evals = request.max_evals.unwrap_or(MAX_MATCH_EVALS);
     if !(1..=MAX_MATCH_EVALS).contains(&max_evals) {
