@@ -656,3 +656,26 @@ fn every_address_with_allow_remote_warns_and_still_needs_the_token() {
         "{stderr}"
     );
 }
+
+#[test]
+fn ctrl_c_stops_the_server_with_exit_code_130() {
+    let mut child = Command::new(BIN)
+        .args(["serve", "--port", "0"])
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::null())
+        .spawn()
+        .unwrap();
+    let mut line = String::new();
+    std::io::BufRead::read_line(
+        &mut std::io::BufReader::new(child.stdout.take().unwrap()),
+        &mut line,
+    )
+    .unwrap();
+    assert!(line.contains("http://127.0.0.1:"), "{line}");
+    let sent = Command::new("kill")
+        .args(["-INT", &child.id().to_string()])
+        .status()
+        .unwrap();
+    assert!(sent.success());
+    assert_eq!(child.wait().unwrap().code(), Some(130));
+}
