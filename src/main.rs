@@ -22,9 +22,16 @@ fn main() -> ExitCode {
     };
     // This thread joins the pool as worker 0, so a 2-core machine starts one
     // extra thread rather than two and never waits on a sleeping main thread.
-    let _ = rayon::ThreadPoolBuilder::new()
-        .use_current_thread()
-        .build_global();
+    // The server keeps this thread for its event loop, so its pool gets
+    // threads of its own.
+    let serving = matches!(args.command, cli::args::Command::Serve(_));
+    let pool = rayon::ThreadPoolBuilder::new();
+    let _ = if serving {
+        pool
+    } else {
+        pool.use_current_thread()
+    }
+    .build_global();
     let result = cli::args::run(args);
     match result {
         Ok(()) => ExitCode::SUCCESS,

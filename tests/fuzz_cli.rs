@@ -127,8 +127,16 @@ fn fuzz_crate_has_every_dependency_of_the_cli_module() {
     };
     let fuzz = dependencies(&manifest("fuzz/Cargo.toml"));
     let mut sources = String::new();
-    for entry in std::fs::read_dir(root.join("src/cli")).unwrap() {
-        sources.push_str(&std::fs::read_to_string(entry.unwrap().path()).unwrap());
+    let mut folders = vec![root.join("src/cli")];
+    while let Some(folder) = folders.pop() {
+        for entry in std::fs::read_dir(folder).unwrap() {
+            let path = entry.unwrap().path();
+            if path.is_dir() {
+                folders.push(path);
+            } else if path.extension().is_some_and(|e| e == "rs") {
+                sources.push_str(&std::fs::read_to_string(path).unwrap());
+            }
+        }
     }
     for name in dependencies(&manifest("Cargo.toml")) {
         let path = name.replace('-', "_");

@@ -2,7 +2,8 @@
 //! worked examples of `--help` runs as written, from a folder holding the
 //! repository's shipped files, and exits 0 (or 3 for a `compare` outside
 //! its tolerance or a `match` whose target is not reached, which the README
-//! documents). Every subcommand's help
+//! documents); `lamella serve`, which runs until stopped, serves its page
+//! at the address it prints. Every subcommand's help
 //! opens with what it does and ends with an example.
 
 use std::path::Path;
@@ -93,6 +94,10 @@ fn run_all(commands: &[String], label: &str) {
     }
     for command in commands {
         let args = words(command);
+        if args[1] == "serve" {
+            serves(&args, &dir, command);
+            continue;
+        }
         let out = Command::new(env!("CARGO_BIN_EXE_lamella"))
             .args(&args[1..])
             .current_dir(&dir)
@@ -107,6 +112,52 @@ fn run_all(commands: &[String], label: &str) {
         );
     }
     std::fs::remove_dir_all(&dir).unwrap();
+}
+
+/// `lamella serve` runs until stopped: it must print the page's address,
+/// answer the page there, and is then stopped.
+fn serves(args: &[String], dir: &Path, command: &str) {
+    use std::io::{BufRead, Read, Write};
+    // A busy default port on the test machine must not fail the test.
+    let port: &[&str] = if args.iter().any(|a| a == "--port") {
+        &[]
+    } else {
+        &["--port", "0"]
+    };
+    let mut child = Command::new(env!("CARGO_BIN_EXE_lamella"))
+        .args(&args[1..])
+        .args(port)
+        .current_dir(dir)
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::null())
+        .spawn()
+        .unwrap();
+    let mut line = String::new();
+    std::io::BufReader::new(child.stdout.take().unwrap())
+        .read_line(&mut line)
+        .unwrap();
+    let address = line
+        .split_whitespace()
+        .find_map(|w| w.strip_prefix("http://"))
+        .and_then(|w| w.split_once('/'))
+        .map(|(host, _)| host.to_owned());
+    let page = address.as_ref().map(|host| {
+        let mut s = std::net::TcpStream::connect(host).unwrap();
+        write!(
+            s,
+            "GET / HTTP/1.1\r\nHost: {host}\r\nConnection: close\r\n\r\n"
+        )
+        .unwrap();
+        let mut reply = String::new();
+        let _ = s.read_to_string(&mut reply);
+        reply
+    });
+    let _ = child.kill();
+    let _ = child.wait();
+    assert!(
+        page.is_some_and(|p| p.starts_with("HTTP/1.1 200")),
+        "`{command}` did not serve its page: {line:?}"
+    );
 }
 
 #[test]

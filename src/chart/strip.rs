@@ -62,6 +62,18 @@ impl AngleStrip {
     /// angle grid (every grid angle included) and at `ticks` (default: a
     /// round step giving at most nine).
     pub fn compute(scene: &Scene, viewing: &Viewing, ticks: Option<&[f64]>) -> Result<Self> {
+        Self::compute_sampled(scene, viewing, ticks, SAMPLES)
+    }
+
+    /// Like [`AngleStrip::compute`] with about `samples` angles (at least
+    /// one between grid angles): fewer for a quick view, as on a page that
+    /// redraws while a slider moves.
+    pub fn compute_sampled(
+        scene: &Scene,
+        viewing: &Viewing,
+        ticks: Option<&[f64]>,
+        samples: usize,
+    ) -> Result<Self> {
         let grid = &scene.angles_deg;
         let (lo, hi) = grid
             .iter()
@@ -98,7 +110,7 @@ impl AngleStrip {
         let mut sorted = grid.clone();
         sorted.sort_by(f64::total_cmp);
         sorted.dedup();
-        let sub = SAMPLES.div_ceil(sorted.len() - 1);
+        let sub = samples.div_ceil(sorted.len() - 1).max(1);
         let mut angles: Vec<(f64, bool)> = sorted
             .windows(2)
             .flat_map(|w| {

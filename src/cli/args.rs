@@ -218,6 +218,17 @@ pub enum Command {
     /// reported. Exit code 3 when any point fails.
     #[command(after_help = help::COMPARE)]
     Compare(Box<cli::compare::Args>),
+    /// A local web page for designing by eye: sliders for the `vary_nm`
+    /// layers, the colour against angle, a*b* travel, spectra, a preview
+    /// and `match`, all computed by lamella as the commands compute them.
+    ///
+    /// Listens on 127.0.0.1 and prints the page's address with a random
+    /// token; serves until Ctrl-C (exit code 130). The page can download
+    /// the edited scene, or write it back over SCENE on an explicit Save
+    /// (atomically); nothing else is written. Files a scene names are read
+    /// only from inside its folder.
+    #[command(after_help = help::SERVE)]
+    Serve(cli::serve::Args),
 }
 
 /// Runs the subcommand.
@@ -262,5 +273,6 @@ pub fn run(args: Args) -> CliResult {
         Command::Chart(a) => cli::chart::run(&a),
         Command::Report(a) => cli::report::run(&a),
         Command::Compare(a) => cli::compare::run(&a),
+        Command::Serve(a) => cli::serve::run(&a),
     }
 }

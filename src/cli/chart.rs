@@ -145,15 +145,21 @@ pub fn format_of(path: &Path) -> Result<Format, Failure> {
     Format::from_extension(ext).map_err(|e| Failure::input(format!("{}: {e}", path.display())))
 }
 
+/// Refuses a scene the charts cannot draw (no film, a grid too large to
+/// hold, anisotropic layers).
+pub fn chartable(path: &Path, scene: &Scene) -> Result<(), Failure> {
+    film_scene(path, scene, "chart")?;
+    scene
+        .require_isotropic("`lamella chart`")
+        .map_err(|e| Failure::scene(path, e))
+}
+
 /// Loads scenes with their viewings; several scenes must share light and observer.
 pub fn load_all(paths: &[PathBuf], view: &ViewArgs) -> Result<Vec<(Scene, Viewing)>, Failure> {
     let mut out: Vec<(Scene, Viewing)> = Vec::new();
     for p in paths {
         let scene = load_scene(p)?;
-        film_scene(p, &scene, "chart")?;
-        scene
-            .require_isotropic("`lamella chart`")
-            .map_err(|e| Failure::scene(p, e))?;
+        chartable(p, &scene)?;
         let viewing = view.viewing(&scene, p)?;
         if let Some((_, first)) = out.first()
             && (first.illuminant.name() != viewing.illuminant.name()

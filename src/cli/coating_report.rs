@@ -5,6 +5,7 @@
 //! with the cautions and where the page came from.
 
 use std::fmt::Write;
+use std::path::Path;
 
 use lamella::angle_colour::Viewing;
 use lamella::chart::canvas::escape;
@@ -13,36 +14,53 @@ use lamella::pigment::{Background, Coating, Measurement, Orientation};
 use lamella::scene::{Scene, Sigma};
 
 use super::choices::{PolarizationChoice, SideChoice};
+use super::color::ViewArgs;
 use super::report::{Args, Drawn, Provenance, close_page, open_page, stack_rows, write_chart};
 use super::{CliResult, Failure, write_out};
 
 /// Writes the coating report of `scene` (read from `args.scene`).
 pub fn run(args: &Args, scene: &Scene) -> CliResult {
-    if args.view.side != SideChoice::Reflect
-        || args.view.polarization != PolarizationChoice::Unpolarized
-    {
+    std::fs::create_dir_all(&args.output).map_err(|e| Failure::io(&args.output, e))?;
+    let html = build(
+        scene,
+        &args.scene,
+        &args.view,
+        args.size,
+        Some(&args.output),
+    )?;
+    write_out(Some(&args.output.join("index.html")), &[html.into_bytes()])
+}
+
+/// Draws the coating's charts (into `folder` as PNG and SVG, when given)
+/// and returns its report page.
+pub fn build(
+    scene: &Scene,
+    scene_path: &Path,
+    view: &ViewArgs,
+    size: (u32, u32),
+    folder: Option<&Path>,
+) -> Result<String, Failure> {
+    if view.side != SideChoice::Reflect || view.polarization != PolarizationChoice::Unpolarized {
         return Err(Failure::input(format!(
             "{}: coating = (present): a coating is reported in unpolarized reflected light \
              at its geometries; leave out --side and --polarization",
-            args.scene.display()
+            scene_path.display()
         )));
     }
-    let at = |e| Failure::scene(&args.scene, e);
+    let at = |e| Failure::scene(scene_path, e);
     let coating = Coating::from_scene(scene).map_err(at)?;
-    let viewing = args.view.viewing(scene, &args.scene)?;
-    let m = super::multiangle::measure_coating(&args.scene, scene, None, &viewing)?;
-    std::fs::create_dir_all(&args.output).map_err(|e| Failure::io(&args.output, e))?;
+    let viewing = view.viewing(scene, scene_path)?;
+    let m = super::multiangle::measure_coating(scene_path, scene, None, &viewing)?;
     let title = if scene.title.trim().is_empty() {
         "Untitled scene"
     } else {
         scene.title.as_str()
     };
-    let size = args.size;
     let mut drawn = Vec::new();
     let ab = AbTravel::of_coating(title, &m, &viewing);
     drawn.push(write_chart(
-        &args.output,
-        &args.scene,
+        folder,
+        scene_path,
         "ab-travel".into(),
         "CIELAB travel across the geometries".into(),
         &|f| chart::render(&ab, size, f),
@@ -68,23 +86,18 @@ pub fn run(args: &Args, scene: &Scene) -> CliResult {
         } else {
             ("spectra".into(), "Reflectance factor spectra".into())
         };
-        drawn.push(write_chart(
-            &args.output,
-            &args.scene,
-            stem,
-            heading,
-            &|f| chart::render(&spectra, size, f),
-        )?);
+        drawn.push(write_chart(folder, scene_path, stem, heading, &|f| {
+            chart::render(&spectra, size, f)
+        })?);
     }
-    let html = page(
+    Ok(page(
         scene,
         &coating,
         &viewing,
         &m,
         &drawn,
         &Provenance::of_this_run(),
-    );
-    write_out(Some(&args.output.join("index.html")), &[html.into_bytes()])
+    ))
 }
 
 fn page(

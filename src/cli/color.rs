@@ -49,18 +49,28 @@ impl AnalyzerArgs {
     /// Puts the analyser into `viewing`; refused beside a polarized source
     /// (`view`), which the analyser replaces.
     pub fn apply(&self, view: &ViewArgs, viewing: &mut Viewing) -> Result<(), Failure> {
-        let Some(h) = self.analyzer.map(Handedness::from) else {
-            return Ok(());
-        };
-        if view.polarization != PolarizationChoice::Unpolarized {
-            return Err(Failure::input(format!(
-                "--analyzer {}: the analyser is for unpolarized light; leave out --polarization",
-                h.name()
-            )));
-        }
-        viewing.analyzer = Some(h);
-        Ok(())
+        with_analyzer(view, viewing, self.analyzer.map(Handedness::from))
     }
+}
+
+/// Puts `analyzer` into `viewing`; refused beside a polarized source
+/// (`view`), which the analyser replaces.
+fn with_analyzer(
+    view: &ViewArgs,
+    viewing: &mut Viewing,
+    analyzer: Option<Handedness>,
+) -> Result<(), Failure> {
+    let Some(h) = analyzer else {
+        return Ok(());
+    };
+    if view.polarization != PolarizationChoice::Unpolarized {
+        return Err(Failure::input(format!(
+            "--analyzer {}: the analyser is for unpolarized light; leave out --polarization",
+            h.name()
+        )));
+    }
+    viewing.analyzer = Some(h);
+    Ok(())
 }
 
 impl ViewArgs {
@@ -109,16 +119,9 @@ pub fn run(
 ) -> CliResult {
     let scene = load_scene(scene_path)?;
     film_scene(scene_path, &scene, "color")?;
-    let mut viewing = view.viewing(&scene, scene_path)?;
-    analyzer.apply(view, &mut viewing)?;
+    let (viewing, spectra, colours) =
+        colours_of(&scene, scene_path, view, analyzer.analyzer.map(Into::into))?;
     let bad = |e| Failure::scene(scene_path, e);
-    let spectra = if viewing.analyzer.is_some() {
-        scene.spectra_with_jones()
-    } else {
-        scene.spectra()
-    }
-    .map_err(bad)?;
-    let colours = angle_colours(&spectra, &viewing).map_err(bad)?;
     let mut records = records(&spectra.angles_deg, &colours);
     if display_p3 {
         let white = viewing
@@ -159,8 +162,29 @@ pub fn run(
     write_out(out.map(PathBuf::as_path), &[text.into_bytes()])
 }
 
-/// One JSON object per angle.
-fn records(angles: &[f64], colours: &[Colour]) -> Vec<Value> {
+/// The viewing the flags ask for, the scene's spectra and the colour at
+/// every angle, as `lamella color` reports them.
+pub fn colours_of(
+    scene: &lamella::scene::Scene,
+    scene_path: &Path,
+    view: &ViewArgs,
+    analyzer: Option<Handedness>,
+) -> Result<(Viewing, lamella::optics::Spectra, Vec<Colour>), Failure> {
+    let mut viewing = view.viewing(scene, scene_path)?;
+    with_analyzer(view, &mut viewing, analyzer)?;
+    let bad = |e| Failure::scene(scene_path, e);
+    let spectra = if analyzer.is_some() {
+        scene.spectra_with_jones()
+    } else {
+        scene.spectra()
+    }
+    .map_err(bad)?;
+    let colours = angle_colours(&spectra, &viewing).map_err(bad)?;
+    Ok((viewing, spectra, colours))
+}
+
+/// One JSON object per angle (`lamella color --format json`).
+pub fn records(angles: &[f64], colours: &[Colour]) -> Vec<Value> {
     let samples: Vec<(f64, [f64; 3])> = angles
         .iter()
         .copied()

@@ -12,7 +12,7 @@ Exit codes, for every command:
        still written); `compare` found a point outside its tolerance (the
        report is still written)
   130  stopped by Ctrl-C; 143 by SIGTERM; 129 by SIGHUP (temporary output
-       files are removed)
+       files are removed); `serve` runs until stopped so
 
 Example:
   lamella color scenes/teal_label_foil.json";
@@ -192,3 +192,18 @@ Exit codes: 0 every point passes; 3 a point is outside its tolerance; 2 bad inpu
 
 Example (the teal label foil's design against a measured production batch):
   lamella compare scenes/teal_label_foil.json scenes/measured/teal_label_foil_batch.csv --tolerances scenes/measured/teal_label_foil_tolerances.json";
+
+/// `lamella serve`.
+pub const SERVE: &str = "\
+The page: the stack as a table (material, thickness, repeat count; add, remove,
+reorder), a slider for every vary_nm layer, the colour strip with swatches, the
+a*b* travel with L* against angle, spectra at chosen angles, a preview render, a
+target colour with ΔE2000 per angle and a Match button; coatings show their
+geometries. Light, observer, side, polarization and analyser as for `color`.
+
+Security: loopback only unless --host ADDR --allow-remote; every API call needs
+the token of the printed address; requests naming another Host or Origin are
+refused; request bodies, grids, match budgets and render sizes are bounded.
+
+Example (the teal foil's designer on a free port; open the address it prints):
+  lamella serve scenes/teal_label_foil.json --port 0";

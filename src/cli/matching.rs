@@ -84,15 +84,7 @@ pub fn run(args: &MatchArgs) -> CliResult {
         .target
         .lab(&viewing, &scene.wavelengths_nm)?
         .ok_or_else(|| Failure::input("give --target-lab L,a,b or --target-hex #RRGGBB"))?;
-    let main = match (&args.geometry, args.angle) {
-        (Some(g), _) => geometry(g, "--geometry")?,
-        (None, _) if scene.coating.is_some() => {
-            return Err(Failure::input(
-                "this scene has a coating: give the target's geometry with --geometry (e.g. 45as15)",
-            ));
-        }
-        (None, a) => At::Angle(a.unwrap_or(0.0)),
-    };
+    let main = main_point(&scene, args.geometry.as_deref(), args.angle)?;
     let mut goals = vec![Goal { at: main, lab }];
     for g in &args.goals {
         let bad = |why: String| Failure::input(format!("--goal {g}: {why}"));
@@ -130,13 +122,7 @@ pub fn run(args: &MatchArgs) -> CliResult {
         goals,
         max_total_nm: args.max_total_nm,
         brightness_weight: args.brightness_weight,
-        budget: Budget {
-            max_evals: args.max_evals,
-            good_enough: 0.03,
-            handover: 0.5,
-            min_gain: MIN_GAIN_DELTA_E,
-            seed: args.seed,
-        },
+        budget: budget(args.max_evals, args.seed),
     };
     let bar = Progress::new(settings.budget.max_evals as u64, "match");
     let bad = |e: lamella::Error| match e {
@@ -181,6 +167,33 @@ pub fn run(args: &MatchArgs) -> CliResult {
         ),
         code: 3,
     })
+}
+
+/// Where the main target is: at `geometry` (coatings, which need one) or
+/// at `angle` (films; default normal incidence).
+pub fn main_point(
+    scene: &lamella::scene::Scene,
+    geometry_name: Option<&str>,
+    angle: Option<f64>,
+) -> Result<At, Failure> {
+    match (geometry_name, angle) {
+        (Some(g), _) => geometry(g, "--geometry"),
+        (None, _) if scene.coating.is_some() => Err(Failure::input(
+            "this scene has a coating: give the target's geometry with --geometry (e.g. 45as15)",
+        )),
+        (None, a) => Ok(At::Angle(a.unwrap_or(0.0))),
+    }
+}
+
+/// The search budget of `lamella match` for `max_evals` evaluations and `seed`.
+pub fn budget(max_evals: usize, seed: u64) -> Budget {
+    Budget {
+        max_evals,
+        good_enough: 0.03,
+        handover: 0.5,
+        min_gain: MIN_GAIN_DELTA_E,
+        seed,
+    }
 }
 
 /// One geometry name (`45as15`) as a point.

@@ -18,6 +18,7 @@ pub mod multiangle;
 pub mod output;
 pub mod render;
 pub mod report;
+pub mod serve;
 pub mod spectrum;
 pub mod sweep;
 pub mod tolerance;

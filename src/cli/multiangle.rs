@@ -49,41 +49,10 @@ pub fn run(
     out: Option<&PathBuf>,
 ) -> CliResult {
     let scene = load_scene(scene_path)?;
-    let view = ViewArgs {
-        side: SideChoice::Reflect,
-        illuminant: args.illuminant.clone(),
-        observer: args.observer.clone(),
-        polarization: PolarizationChoice::Unpolarized,
-        gamut: args.gamut,
-    };
-    let viewing = view.viewing(&scene, scene_path)?;
-    let m = measure_coating(scene_path, &scene, args.geometries.as_deref(), &viewing)?;
+    let (viewing, m) = measurement(&scene, scene_path, args)?;
     let text = match format {
         RecordFormat::Json => {
-            let mut doc = json!({
-                "title": scene.title,
-                "illuminant": viewing.illuminant.name(),
-                "observer": viewing.observer.name(),
-                "geometries": records(&m, args.spectra),
-            });
-            // A summary that is undefined is left out (its note says why),
-            // never written as null.
-            match (m.flop_index, &m.flop_note) {
-                (Some(f), _) => doc["flop_index"] = json!(f),
-                (None, Some(note)) => doc["flop_note"] = json!(note),
-                (None, None) => {}
-            }
-            if let Some(h) = m.hue_travel_deg {
-                doc["hue_travel_deg"] = json!(h);
-            }
-            doc["surface_gloss_Y"] = m
-                .surface_gloss_y
-                .iter()
-                .map(|(a, y)| json!({"illumination_deg": a, "Y": y}))
-                .collect();
-            if args.spectra {
-                doc["wavelength_nm"] = json!(scene.wavelengths_nm);
-            }
+            let doc = document(&scene, &viewing, &m, args.spectra);
             serde_json::to_string_pretty(&doc).expect("records serialise") + "\n"
         }
         RecordFormat::Csv => csv(&m, &scene.wavelengths_nm, args.spectra),
@@ -102,6 +71,54 @@ pub fn run(
         ),
     };
     write_out(out.map(PathBuf::as_path), &[text.into_bytes()])
+}
+
+/// The coating of `scene` measured at its geometries (or those of
+/// `--geometries`) under the flags' light and observer.
+pub fn measurement(
+    scene: &Scene,
+    scene_path: &Path,
+    args: &Args,
+) -> Result<(Viewing, Measurement), Failure> {
+    let view = ViewArgs {
+        side: SideChoice::Reflect,
+        illuminant: args.illuminant.clone(),
+        observer: args.observer.clone(),
+        polarization: PolarizationChoice::Unpolarized,
+        gamut: args.gamut,
+    };
+    let viewing = view.viewing(scene, scene_path)?;
+    let m = measure_coating(scene_path, scene, args.geometries.as_deref(), &viewing)?;
+    Ok((viewing, m))
+}
+
+/// `lamella multiangle --format json` of a measurement.
+pub fn document(scene: &Scene, viewing: &Viewing, m: &Measurement, spectra: bool) -> Value {
+    let mut doc = json!({
+        "title": scene.title,
+        "illuminant": viewing.illuminant.name(),
+        "observer": viewing.observer.name(),
+        "geometries": records(m, spectra),
+    });
+    // A summary that is undefined is left out (its note says why),
+    // never written as null.
+    match (m.flop_index, &m.flop_note) {
+        (Some(f), _) => doc["flop_index"] = json!(f),
+        (None, Some(note)) => doc["flop_note"] = json!(note),
+        (None, None) => {}
+    }
+    if let Some(h) = m.hue_travel_deg {
+        doc["hue_travel_deg"] = json!(h);
+    }
+    doc["surface_gloss_Y"] = m
+        .surface_gloss_y
+        .iter()
+        .map(|(a, y)| json!({"illumination_deg": a, "Y": y}))
+        .collect();
+    if spectra {
+        doc["wavelength_nm"] = json!(scene.wavelengths_nm);
+    }
+    doc
 }
 
 /// The colour of the scene's coating at `geometries` (a comma-separated

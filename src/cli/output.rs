@@ -21,7 +21,7 @@ fn temporary() -> MutexGuard<'static, Vec<PathBuf>> {
 /// Starts, once, the thread that waits for a stopping signal, removes the
 /// temporary files and exits. Files are created, renamed and removed under
 /// the same lock, so none is left behind whenever the signal comes.
-fn clean_up_on_signal() {
+pub fn clean_up_on_signal() {
     static START: Once = Once::new();
     START.call_once(|| {
         let Ok(mut signals) = Signals::new([SIGINT, SIGTERM, SIGHUP]) else {

@@ -76,23 +76,26 @@ pub(super) struct Drawn {
     svg: String,
 }
 
-/// Draws a chart as `STEM.png` and `STEM.svg` in `dir` (`render` gives it
-/// in either format; its errors are about the scene at `scene_path`).
+/// Draws a chart (`render` gives it in either format; its errors are about
+/// the scene at `scene_path`), and writes it as `STEM.png` and `STEM.svg`
+/// in `dir` when given.
 pub(super) fn write_chart(
-    dir: &Path,
+    dir: Option<&Path>,
     scene_path: &Path,
     stem: String,
     heading: String,
     render: &dyn Fn(Format) -> lamella::Result<Vec<u8>>,
 ) -> Result<Drawn, Failure> {
     let at = |e| Failure::scene(scene_path, e);
-    let png = render(Format::Png).map_err(at)?;
-    write_out(Some(&dir.join(format!("{stem}.png"))), &[png])?;
     let svg = render(Format::Svg).map_err(at)?;
-    write_out(
-        Some(&dir.join(format!("{stem}.svg"))),
-        std::slice::from_ref(&svg),
-    )?;
+    if let Some(dir) = dir {
+        let png = render(Format::Png).map_err(at)?;
+        write_out(Some(&dir.join(format!("{stem}.png"))), &[png])?;
+        write_out(
+            Some(&dir.join(format!("{stem}.svg"))),
+            std::slice::from_ref(&svg),
+        )?;
+    }
     Ok(Drawn {
         stem,
         heading,
@@ -106,41 +109,78 @@ pub fn run(args: &Args) -> CliResult {
     if scene.coating.is_some() {
         return super::coating_report::run(args, &scene);
     }
-    super::film_scene(&args.scene, &scene, "report")?;
+    std::fs::create_dir_all(&args.output).map_err(|e| Failure::io(&args.output, e))?;
+    let html = build(
+        &scene,
+        &args.scene,
+        &args.view,
+        args.size,
+        Some(&args.output),
+    )?;
+    write_out(Some(&args.output.join("index.html")), &[html.into_bytes()])
+}
+
+/// The chart size of a report unless told otherwise.
+pub const SIZE: (u32, u32) = (1200, 800);
+
+/// The report page of `scene` (`index.html`, charts inline; a coating's
+/// own page for a scene with a `coating`) without writing anything.
+pub fn html(
+    scene: &Scene,
+    scene_path: &std::path::Path,
+    view: &ViewArgs,
+    size: (u32, u32),
+) -> Result<String, Failure> {
+    match scene.coating {
+        Some(_) => super::coating_report::build(scene, scene_path, view, size, None),
+        None => build(scene, scene_path, view, size, None),
+    }
+}
+
+/// Draws every chart (into `folder` as PNG and SVG, when given) and
+/// returns the report page.
+fn build(
+    scene: &Scene,
+    scene_path: &std::path::Path,
+    view: &ViewArgs,
+    size: (u32, u32),
+    folder: Option<&std::path::Path>,
+) -> Result<String, Failure> {
+    super::film_scene(scene_path, scene, "report")?;
     scene
         .require_isotropic("`lamella report`")
-        .map_err(|e| Failure::scene(&args.scene, e))?;
-    let viewing = args.view.viewing(&scene, &args.scene)?;
-    let at = |e| Failure::scene(&args.scene, e);
-    std::fs::create_dir_all(&args.output).map_err(|e| Failure::io(&args.output, e))?;
-    let pair = [(&scene, &viewing)];
+        .map_err(|e| Failure::scene(scene_path, e))?;
+    let viewing = view.viewing(scene, scene_path)?;
+    let at = |e| Failure::scene(scene_path, e);
+    let pair = [(scene, &viewing)];
     let periodic = scene.stack.iter().any(|i| matches!(i, Item::Repeat(_)));
-    let bar = Progress::new(6 + periodic as u64, "charts");
+    let bar = folder.map(|_| Progress::new(6 + periodic as u64, "charts"));
     let mut drawn = Vec::new();
     let mut emit = |stem: &'static str,
                     heading: &'static str,
                     c: &dyn Fn(Format) -> lamella::Result<Vec<u8>>|
      -> CliResult {
         drawn.push(write_chart(
-            &args.output,
-            &args.scene,
+            folder,
+            scene_path,
             stem.into(),
             heading.into(),
             c,
         )?);
-        bar.set(drawn.len() as u64, stem.to_string());
+        if let Some(b) = &bar {
+            b.set(drawn.len() as u64, stem.to_string());
+        }
         Ok(())
     };
-    let size = args.size;
     // A strip needs a range of angles; a single-angle scene gets the rest.
     if scene.angles_deg.len() >= 2 {
-        let strip = AngleStrip::compute(&scene, &viewing, None).map_err(at)?;
+        let strip = AngleStrip::compute(scene, &viewing, None).map_err(at)?;
         emit("angle-strip", "Colour against angle", &|f| {
             chart::render(&strip, size, f)
         })?;
     }
     let grid = ThicknessAngle::compute(
-        &scene,
+        scene,
         &viewing,
         &Variation::Scale { from: 0.9, to: 1.1 },
         ThicknessAngle::DEFAULT_STEPS,
@@ -160,7 +200,7 @@ pub fn run(args: &Args) -> CliResult {
     )
     .map_err(at)?;
     emit("spectra", "Spectra", &|f| chart::render(&spectra, size, f))?;
-    let map = ReflectanceMap::compute(&scene, &viewing).map_err(at)?;
+    let map = ReflectanceMap::compute(scene, &viewing).map_err(at)?;
     emit("map", "Map over wavelength and angle", &|f| {
         chart::render(&map, size, f)
     })?;
@@ -173,28 +213,29 @@ pub fn run(args: &Args) -> CliResult {
         chart::render(&ab, size, f)
     })?;
     if periodic {
-        let bands = BandsChart::compute(&scene, Some(&viewing)).map_err(at)?;
+        let bands = BandsChart::compute(scene, Some(&viewing)).map_err(at)?;
         emit("bands", "Photonic stop bands of the repeat group", &|f| {
             chart::render(&bands, size, f)
         })?;
     }
-    bar.finish();
-    let series = Series::of_scene(&scene, &viewing).map_err(at)?;
+    if let Some(b) = &bar {
+        b.finish();
+    }
+    let series = Series::of_scene(scene, &viewing).map_err(at)?;
     // A stack too long to resolve layer by layer goes without the table.
     let absorption = match scene.layer_absorption() {
         Ok(a) => Some(a),
         Err(lamella::Error::Invalid { .. }) => None,
         Err(e) => return Err(at(e)),
     };
-    let html = page(
-        &scene,
+    Ok(page(
+        scene,
         &viewing,
         &series,
         absorption.as_ref().filter(|a| a.absorbs()),
         &drawn,
         &Provenance::of_this_run(),
-    );
-    write_out(Some(&args.output.join("index.html")), &[html.into_bytes()])
+    ))
 }
 
 /// First, middle and last angle of the grid.

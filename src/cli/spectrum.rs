@@ -100,17 +100,7 @@ pub fn run(
             .with_rows(|rows| output::emit_with(out, |w| write_csv(rows, basis, per_layer, w)))
             .map_err(at_scene)?,
         Format::Json => {
-            scene
-                .check_grid_size(
-                    scene.angles_deg.len(),
-                    JSON_BYTES_PER_POINT,
-                    "spectrum --format json",
-                )
-                .map_err(at_scene)?;
-            let text = scene
-                .with_jones_rows(|rows| json(&scene.title, rows, basis, per_layer))
-                .and_then(|t| t)
-                .map_err(at_scene)?;
+            let text = json_document(&scene, basis, per_layer).map_err(at_scene)?;
             output::emit(out, &[text.into_bytes()])
         }
         Format::Cgats => {
@@ -276,6 +266,23 @@ fn write_csv(
         buffers[..count].iter().try_for_each(|b| out.write_all(b))?;
     }
     Ok(())
+}
+
+/// `lamella spectrum --format json` of a film scene: the grid size checked,
+/// then [`json`].
+pub fn json_document(
+    scene: &lamella::scene::Scene,
+    basis: Basis,
+    per_layer: Option<&LayerAbsorption>,
+) -> lamella::Result<String> {
+    scene.check_grid_size(
+        scene.angles_deg.len(),
+        JSON_BYTES_PER_POINT,
+        "spectrum --format json",
+    )?;
+    scene
+        .with_jones_rows(|rows| json(&scene.title, rows, basis, per_layer))
+        .and_then(|t| t)
 }
 
 /// The whole grid as one JSON object, with the columns of `layers` after

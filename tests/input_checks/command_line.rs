@@ -366,6 +366,8 @@ fn bound(command: &mut Command) -> bool {
         }
         Command::Report(a) => small_chart(&mut a.size),
         Command::Compare(a) => to_file(&mut a.output),
+        // Serves until stopped: driven by tests/serve.rs instead.
+        Command::Serve(_) => return false,
     }
     true
 }
