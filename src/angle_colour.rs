@@ -174,7 +174,7 @@ impl Viewing {
     ) -> Colour {
         scratch.clear();
         match jones {
-            Some(js) => scratch.extend(js.iter().map(|j| self.of_jones(j))),
+            Some(js) => scratch.extend(js.iter().map(|j| self.fraction(j))),
             None => scratch.extend(rt.iter().map(|x| self.polarization.of(x, self.side))),
         }
         Colour::new(weights.xyz(scratch), weights.white(), &self.options)
@@ -182,7 +182,7 @@ impl Viewing {
 
     /// The fraction of light seen at one point from its Jones matrices:
     /// through the analyser, ½ Σ_in |J_{h,in}|² in the circular basis.
-    fn of_jones(&self, j: &Jones) -> f64 {
+    pub fn fraction(&self, j: &Jones) -> f64 {
         match self.analyzer {
             None => self.polarization.of_jones(j, self.side),
             Some(h) => {

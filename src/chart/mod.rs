@@ -11,7 +11,7 @@ mod bands;
 pub mod canvas;
 mod chromaticity;
 mod field;
-mod font;
+pub(crate) mod font;
 pub mod gamut;
 mod map;
 mod spectra;

@@ -1,0 +1,266 @@
+//! Image-based lighting: the film's colour tables per region of the
+//! environment, the environment's maps (sharp, blurred for rough films,
+//! irradiance for diffuse light), and the floor that replaces the lower
+//! hemisphere when there is one.
+//!
+//! A mirror film toward the eye at angle θ shows the environment's radiance
+//! L(r) in the mirror direction r times R(θ); per region i with spectrum
+//! S_i(λ) and scalar radiance L_i(r), the pixel is Σ_i L_i(r)·RGB[R(θ,λ) S_i(λ)],
+//! so a few tables hold the whole spectral product. A rough film uses the
+//! facet-averaged table with the environment blurred by the reflection lobe
+//! (the split-sum approximation: B. Karis, "Real shading in Unreal Engine 4",
+//! SIGGRAPH 2013 course notes). Transmitted light comes straight through a
+//! thin clear shell: L_i(−v)·RGB[T(θ_front)·T(θ_back)·S_i] for a closed
+//! object, one pass for an open one.
+
+use glam::{Mat3, Vec3};
+use rayon::prelude::*;
+
+use super::environment::{BAKE_WIDTH, Environment};
+use super::floor::{Floor, FloorFrame};
+use super::maps::{Maps, Texel};
+use super::pigment::{Body, Convert};
+use super::settings::ViewMode;
+use super::shading::{PerAngle, STEP, Table, Table2, facet_average, hemispherical, products};
+use crate::angle_colour::Viewing;
+use crate::colorimetry::{RgbDisplay, RgbSpace, Weights};
+use crate::error::{Error, Result};
+
+/// One region's light as linear display RGB of a spectrum.
+type Region = Box<Convert<'static>>;
+
+/// The environment's part of the shading.
+pub(super) struct Surround {
+    whites: Vec<Vec3>,
+    sharp: Maps,
+    blurred: Option<Maps>,
+    irradiance: Maps,
+    coarse: Maps,
+    reflect: Vec<Table>,
+    through: Vec<Table>,
+    body_sky: Vec<Table>,
+    transmit: Vec<(Table, Table2)>,
+    mode: ViewMode,
+}
+
+/// What [`Surround::new`] needs from the shader.
+pub(super) struct Inputs<'a> {
+    pub(super) r: &'a PerAngle,
+    pub(super) t: &'a PerAngle,
+    pub(super) slope: f32,
+    pub(super) base: bool,
+    pub(super) body: Option<&'a Body>,
+    pub(super) mode: ViewMode,
+    /// The display's white (the scene's illuminant, for [`RgbDisplay::new`]).
+    pub(super) display_white: [f64; 3],
+    pub(super) viewing: &'a Viewing,
+    pub(super) wavelengths_nm: &'a [f64],
+    pub(super) floor: Option<f64>,
+}
+
+impl Surround {
+    /// The maps and tables of `env` for the film `r`, `t`.
+    pub(super) fn new(env: &Environment, x: Inputs) -> Result<Surround> {
+        let baked = env.bake(BAKE_WIDTH);
+        let wl = x.wavelengths_nm;
+        let regions: Vec<Region> = baked
+            .regions
+            .iter()
+            .map(|region| {
+                let weights = match &region.illuminant {
+                    None => x.viewing.weights(wl)?,
+                    Some(i) => Weights::new(wl, i, x.viewing.observer)?,
+                };
+                let mask: Vec<f64> = wl
+                    .iter()
+                    .map(|&l| match region.band_nm {
+                        Some((a, b)) if !(a..b).contains(&l) => 0.0,
+                        _ => 1.0,
+                    })
+                    .collect();
+                let display = RgbDisplay::new(x.display_white, RgbSpace::Srgb);
+                Ok(Box::new(move |s: &[f64]| {
+                    let cut: Vec<f64> = s.iter().zip(&mask).map(|(a, m)| a * m).collect();
+                    Vec3::from(display.linear(weights.xyz(&cut)).map(|c| c as f32))
+                }) as Region)
+            })
+            .collect::<Result<_>>()?;
+        let ones = vec![1.0; wl.len()];
+        let whites: Vec<Vec3> = regions.iter().map(|c| c(&ones)).collect();
+        let mut maps = baked.maps;
+        if baked.is_image {
+            // Pixel RGB → weights of the three band spectra: the bands'
+            // own colours are the columns of M, so (1, 1, 1) stays the white.
+            let m = Mat3::from_cols(whites[0], whites[1], whites[2]);
+            if m.determinant().abs() < 1e-6 {
+                return Err(Error::invalid(
+                    "environment",
+                    env.describe(),
+                    "the image's white gives no colour in some band on this wavelength grid",
+                ));
+            }
+            let inv = m.inverse();
+            maps.values
+                .par_iter_mut()
+                .for_each(|v| *v = (inv * Vec3::from(*v)).to_array());
+        }
+        if let Some(albedo) = x.floor {
+            // Below the horizon: the floor, lit by the sky above it.
+            let e = maps.irradiance().at(Vec3::Y).map(|v| v * albedo as f32);
+            for row in 0..maps.height {
+                if maps.direction(0, row).y < 0.0 {
+                    let w = maps.width;
+                    maps.values[row * w..(row + 1) * w].fill(e);
+                }
+            }
+        }
+        let irradiance = maps.irradiance();
+        let mut coarse = maps.clone();
+        while coarse.width > 64 {
+            coarse = coarse.halved();
+        }
+        let blurred = (x.slope > 0.0).then(|| maps.blurred(std::f32::consts::SQRT_2 * x.slope));
+        let table = |values: Vec<Vec3>| Table {
+            step: STEP as f32,
+            values,
+        };
+        let reflect = regions
+            .iter()
+            .map(|c| {
+                let t = table(x.r.par_iter().map(|s| c(s)).collect());
+                if x.slope > 0.0 {
+                    facet_average(&t, x.slope)
+                } else {
+                    t
+                }
+            })
+            .collect();
+        let through = if x.base && x.body.is_none() && !x.mode.transmits() {
+            let hemi = hemispherical(x.t);
+            regions
+                .iter()
+                .map(|c| {
+                    table(
+                        x.t.par_iter()
+                            .map(|tv| {
+                                c(&hemi.iter().zip(tv).map(|(a, b)| a * b).collect::<Vec<_>>())
+                            })
+                            .collect(),
+                    )
+                })
+                .collect()
+        } else {
+            Vec::new()
+        };
+        let body_sky = match x.body {
+            Some(body) => {
+                let refs: Vec<&Convert> = regions.iter().map(|c| c.as_ref()).collect();
+                body.lobes(&refs)
+                    .iter()
+                    .map(|lobe| body.sky(lobe, STEP))
+                    .collect()
+            }
+            None => Vec::new(),
+        };
+        let transmit = if x.mode.transmits() && x.body.is_none() {
+            regions
+                .iter()
+                .map(|c| {
+                    (
+                        table(x.t.par_iter().map(|s| c(s)).collect()),
+                        products(x.t, c),
+                    )
+                })
+                .collect()
+        } else {
+            Vec::new()
+        };
+        Ok(Surround {
+            whites,
+            sharp: maps,
+            blurred,
+            irradiance,
+            coarse,
+            reflect,
+            through,
+            body_sky,
+            transmit,
+            mode: x.mode,
+        })
+    }
+
+    /// The shading for a camera at `orbit_deg`, with the floor's shadow.
+    pub(super) fn frame(&self, orbit_deg: f64, floor: Option<&Floor>) -> SurroundFrame<'_> {
+        let to_env = Mat3::from_rotation_y(-(orbit_deg.to_radians() as f32));
+        SurroundFrame {
+            surround: self,
+            to_env,
+            floor: floor.map(|f| (f.y, f.frame(&self.coarse, to_env))),
+        }
+    }
+}
+
+/// The environment placed for one frame.
+pub(super) struct SurroundFrame<'a> {
+    surround: &'a Surround,
+    to_env: Mat3,
+    floor: Option<(f32, FloorFrame)>,
+}
+
+fn sum(v: Texel, tables: impl Iterator<Item = Vec3>) -> Vec3 {
+    tables.zip(v).fold(Vec3::ZERO, |acc, (t, w)| acc + w * t)
+}
+
+impl SurroundFrame<'_> {
+    /// Light from the environment leaving a surface point with normal `n`
+    /// (facing the eye) toward the eye along `v`; `theta_v` the angle
+    /// between them in degrees, `theta_back` the angle at the far side of a
+    /// closed clear object, `base` the diffuse colour under the film.
+    pub(super) fn shade(
+        &self,
+        n: Vec3,
+        v: Vec3,
+        theta_v: f32,
+        theta_back: Option<f32>,
+        base: Option<Vec3>,
+    ) -> Vec3 {
+        let s = self.surround;
+        let lobe = s.blurred.as_ref().unwrap_or(&s.sharp);
+        let mut rgb = Vec3::ZERO;
+        if s.mode.reflects() {
+            let r = 2.0 * n.dot(v) * n - v;
+            let l = lobe.at(self.to_env * r);
+            rgb += sum(l, s.reflect.iter().map(|t| t.at(theta_v)));
+        }
+        if !s.through.is_empty() || !s.body_sky.is_empty() {
+            let e = s.irradiance.at(self.to_env * n);
+            if let Some(base) = base {
+                rgb += base * sum(e, s.through.iter().map(|t| t.at(theta_v)));
+            }
+            rgb += sum(e, s.body_sky.iter().map(|t| t.at(theta_v)));
+        }
+        if !s.transmit.is_empty() {
+            let l = lobe.at(self.to_env * -v);
+            rgb += match theta_back {
+                Some(b) => sum(l, s.transmit.iter().map(|(_, t2)| t2.at(theta_v, b))),
+                None => sum(l, s.transmit.iter().map(|(t1, _)| t1.at(theta_v))),
+            };
+        }
+        rgb
+    }
+
+    /// What the eye at `eye` sees along `dir` past the object: the floor
+    /// (with its shadow) or the environment.
+    pub(super) fn background(&self, eye: Vec3, dir: Vec3) -> Vec3 {
+        let s = self.surround;
+        if let Some((y, floor)) = &self.floor
+            && dir.y < 0.0
+        {
+            let t = (y - eye.y) / dir.y;
+            if t > 0.0 {
+                return sum(floor.at(eye + t * dir), s.whites.iter().copied());
+            }
+        }
+        sum(s.sharp.at(self.to_env * dir), s.whites.iter().copied())
+    }
+}
