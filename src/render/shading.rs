@@ -140,16 +140,24 @@ fn film(scene: &Scene, body: Option<&Body>, viewing: &Viewing) -> Result<(PerAng
         r.push(vec![1.0; wl.len()]);
         return Ok((r, vec![vec![0.0; wl.len()]; n + 1]));
     }
+    // The 4×4 path is costly: an anisotropic film is computed every 1° and
+    // interpolated linearly onto the table's grid.
+    let every = if scene.anisotropic() || viewing.analyzer.is_some() {
+        (1.0 / STEP).round() as usize
+    } else {
+        1
+    };
+    let computed: Vec<f64> = angles.iter().step_by(every).copied().collect();
     let spectra = match viewing.analyzer {
-        None => scene.spectra_at(&angles)?,
-        Some(_) => scene.spectra_with_jones_at(&angles)?,
+        None => scene.spectra_at(&computed)?,
+        Some(_) => scene.spectra_with_jones_at(&computed)?,
     };
     let side = |side| Viewing {
         side,
         ..viewing.clone()
     };
     let (reflect, transmit) = (side(Side::Reflect), side(Side::Transmit));
-    let (mut r, mut t): (PerAngle, PerAngle) = (0..n)
+    let (r, t): (PerAngle, PerAngle) = (0..computed.len())
         .map(|a| match spectra.jones_at_angle(a) {
             Some(js) if viewing.analyzer.is_some() => (
                 js.iter().map(|j| reflect.fraction(j)).collect(),
@@ -164,9 +172,25 @@ fn film(scene: &Scene, body: Option<&Body>, viewing: &Viewing) -> Result<(PerAng
             }
         })
         .unzip();
-    r.push(vec![1.0; wl.len()]);
-    t.push(vec![0.0; wl.len()]);
-    Ok((r, t))
+    let onto_grid = |coarse: PerAngle, grazing: f64| -> PerAngle {
+        let mut rows: PerAngle = (0..n)
+            .map(|i| {
+                let (k, f) = (i / every, (i % every) as f64 / every as f64);
+                let next = coarse.get(k + 1);
+                coarse[k]
+                    .iter()
+                    .enumerate()
+                    .map(|(w, &a)| {
+                        let b = next.map_or(grazing, |row| row[w]);
+                        a + f * (b - a)
+                    })
+                    .collect()
+            })
+            .collect();
+        rows.push(vec![grazing; wl.len()]);
+        rows
+    };
+    Ok((onto_grid(r, 1.0), onto_grid(t, 0.0)))
 }
 
 /// Beckmann distribution of facet normals with rms slope `m` at cos θ_h

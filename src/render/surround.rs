@@ -16,7 +16,7 @@
 use glam::{Mat3, Vec3};
 use rayon::prelude::*;
 
-use super::environment::{BAKE_WIDTH, Environment};
+use super::environment::{BAKE_WIDTH, Baked, Environment};
 use super::floor::{Floor, FloorFrame};
 use super::maps::{Maps, Texel};
 use super::pigment::{Body, Convert};
@@ -61,7 +61,11 @@ pub(super) struct Inputs<'a> {
 impl Surround {
     /// The maps and tables of `env` for the film `r`, `t`.
     pub(super) fn new(env: &Environment, x: Inputs) -> Result<Surround> {
-        let baked = env.bake(BAKE_WIDTH);
+        Surround::from_baked(env, env.bake(BAKE_WIDTH), x)
+    }
+
+    /// [`Surround::new`] from `env` baked.
+    fn from_baked(env: &Environment, baked: Baked, x: Inputs) -> Result<Surround> {
         let wl = x.wavelengths_nm;
         let regions: Vec<Region> = baked
             .regions
@@ -262,5 +266,124 @@ impl SurroundFrame<'_> {
             }
         }
         sum(s.sharp.at(self.to_env * dir), s.whites.iter().copied())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::colorimetry::{
+        Colour, ColourOptions, delta_e2000, rgb_to_xyz_under, srgb_encode, xyz_to_lab,
+    };
+    use crate::render::environment::{EnvImage, Procedural, STUDIO_NAMES};
+    use crate::scene::Scene;
+
+    const FILM: &str = r#"{"stack": [{"repeat": 2, "stack": [
+        {"material": "hi", "thickness_nm": 62}, {"material": "lo", "thickness_nm": 100}]},
+        {"material": "hi", "thickness_nm": 62}],
+        "substrate": "glass",
+        "materials": {"hi": {"n": 2.35, "k": 0}, "lo": {"n": 1.46, "k": 0}, "glass": {"n": 1.52, "k": 0}},
+        "wavelengths_nm": {"from": 380, "to": 780, "step": 5}}"#;
+
+    /// Physics check of the whole environment path: every built-in
+    /// environment (and an image) with its regions, maps and tables, its
+    /// radiance made uniform white (the main region at 1, the others dark;
+    /// an image at RGB 1), shows a mirror film at view angle θ (reflected)
+    /// and a clear one (transmitted) as `lamella color` reports at θ on
+    /// that side, within ΔE00 1 (CIEDE2000, CIE 015:2018), with and without
+    /// a white floor (which then sends the same radiance).
+    #[test]
+    fn every_environment_reduced_to_uniform_white_shows_the_colour_of_lamella_color() {
+        let scene = Scene::from_json(FILM, &|_: &str| Err("no files".to_string())).unwrap();
+        let viewing = Viewing::of_scene(&scene).unwrap();
+        let wl = &scene.wavelengths_nm;
+        let weights = viewing.weights(wl).unwrap();
+        let n = (90.0 / STEP).round() as usize;
+        let angles: Vec<f64> = (0..n).map(|i| i as f64 * STEP).collect();
+        let spectra = scene.spectra_at(&angles).unwrap();
+        let (mut r, mut t): (PerAngle, PerAngle) = (0..n)
+            .map(|a| {
+                let rt = spectra.at_angle(a);
+                (
+                    rt.iter().map(|x| x.r()).collect(),
+                    rt.iter().map(|x| x.t()).collect(),
+                )
+            })
+            .unzip();
+        r.push(vec![1.0; wl.len()]);
+        t.push(vec![0.0; wl.len()]);
+        let lab = |rgb: [f64; 3]| {
+            xyz_to_lab(
+                rgb_to_xyz_under(rgb, weights.white(), RgbSpace::Srgb),
+                weights.white(),
+            )
+        };
+        let mut envs: Vec<Environment> = STUDIO_NAMES
+            .iter()
+            .map(|n| Environment::Procedural(n.parse::<Procedural>().unwrap()))
+            .collect();
+        let d65 = crate::colorimetry::Illuminant::builtin("D65").unwrap();
+        envs.push(Environment::Image(std::sync::Arc::new(
+            EnvImage::new("test", (8, 4), vec![0.3; 96], d65).unwrap(),
+        )));
+        let mut worst = 0.0f64;
+        for env in &envs {
+            for (mode, floor) in [
+                (ViewMode::Reflect, None),
+                (ViewMode::Reflect, Some(1.0)),
+                (ViewMode::Transmit, None),
+            ] {
+                let mut baked = env.bake(64);
+                let white = if baked.is_image {
+                    [1.0; 3]
+                } else {
+                    [1.0, 0.0, 0.0]
+                };
+                baked.maps.values.fill(white);
+                let inputs = Inputs {
+                    r: &r,
+                    t: &t,
+                    slope: 0.0,
+                    base: false,
+                    body: None,
+                    mode,
+                    display_white: weights.white(),
+                    viewing: &viewing,
+                    wavelengths_nm: wl,
+                    floor,
+                };
+                let surround = Surround::from_baked(env, baked, inputs).unwrap();
+                let frame = surround.frame(30.0, None);
+                for theta in [0.0f64, 20.0, 45.0, 70.0] {
+                    let rad = theta.to_radians() as f32;
+                    let v = Vec3::new(rad.sin(), 0.3 * rad.cos(), rad.cos()).normalize();
+                    let n = Vec3::new(0.0, 0.3, 1.0).normalize();
+                    let theta_v = n.dot(v).acos().to_degrees();
+                    let got = frame.shade(n, v, theta_v, None, None);
+                    let spectra = scene.spectra_at(&[theta_v as f64]).unwrap();
+                    let side: Vec<f64> = spectra
+                        .at_angle(0)
+                        .iter()
+                        .map(|x| if mode.reflects() { x.r() } else { x.t() })
+                        .collect();
+                    let want = Colour::new(
+                        weights.xyz(&side),
+                        weights.white(),
+                        &ColourOptions::default(),
+                    );
+                    let got = got
+                        .to_array()
+                        .map(|c| srgb_encode((c as f64).clamp(0.0, 1.0)));
+                    let de = delta_e2000(lab(got), lab(want.rgb));
+                    assert!(
+                        de <= 1.0,
+                        "{} {mode:?} {floor:?} θ {theta_v}: ΔE00 {de}",
+                        env.describe()
+                    );
+                    worst = worst.max(de);
+                }
+            }
+        }
+        eprintln!("worst ΔE00 over the environments reduced to uniform white: {worst:.3}");
     }
 }
