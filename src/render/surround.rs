@@ -204,6 +204,13 @@ impl Surround {
     }
 }
 
+/// Distances from the object's centre (object radii) over which the floor
+/// fades into the horizon.
+const FADE_FROM: f32 = 2.5;
+const FADE_TO: f32 = 9.0;
+/// The lowest direction (its y) at which the backdrop above a floor is read.
+const HORIZON: f32 = 0.02;
+
 /// The environment placed for one frame.
 pub(super) struct SurroundFrame<'a> {
     surround: &'a Surround,
@@ -262,9 +269,24 @@ impl SurroundFrame<'_> {
         {
             let t = (y - eye.y) / dir.y;
             if t > 0.0 {
-                return sum(floor.at(eye + t * dir), s.whites.iter().copied());
+                // Far away the floor fades into the environment just above
+                // the horizon, so floor and backdrop meet without an edge.
+                let p = eye + t * dir;
+                let far = ((p.x * p.x + p.z * p.z).sqrt() - FADE_FROM) / (FADE_TO - FADE_FROM);
+                let w = far.clamp(0.0, 1.0);
+                let near = floor.at(p);
+                let level = Vec3::new(dir.x, HORIZON, dir.z).normalize();
+                let horizon = s.sharp.at(self.to_env * level);
+                let mixed: Texel = std::array::from_fn(|c| near[c] + w * (horizon[c] - near[c]));
+                return sum(mixed, s.whites.iter().copied());
             }
         }
+        // Just above the horizon, the texels below it (the floor's own
+        // radiance) would bleed into the bilinear look-up.
+        let dir = match &self.floor {
+            Some(_) if dir.y < HORIZON => Vec3::new(dir.x, HORIZON, dir.z).normalize(),
+            _ => dir,
+        };
         sum(s.sharp.at(self.to_env * dir), s.whites.iter().copied())
     }
 }
