@@ -123,8 +123,9 @@ impl Maps {
 
     /// The map seen through a Gaussian lobe of angular width `sigma`
     /// (radians; weight e^{−α²/2σ²} at angle α from the look-up direction),
-    /// applied as two passes, along the meridians and then along each
-    /// parallel with its width widened by 1/cos(elevation) (an
+    /// applied as two passes, along each parallel with its width widened by
+    /// 1/cos(elevation) (the whole parallel's mean near the poles) and then
+    /// along the meridians (an
     /// approximation of the spherical blur; common practice). Works on a
     /// copy down-sampled until a texel is about σ/3, at least 64 × 32.
     /// A uniform map stays uniform.
@@ -142,31 +143,13 @@ impl Maps {
             let total: f32 = k[0] + 2.0 * k[1..].iter().sum::<f32>();
             k.into_iter().map(|x| x / total).collect()
         };
-        // Along the meridians (clamped at the poles).
-        let s_rows = sigma / row_step;
-        let n_rows = ((3.0 * s_rows).ceil() as usize).max(1);
-        let kr = kernel(s_rows, n_rows);
-        let vertical: Vec<Texel> = (0..w * h)
-            .into_par_iter()
-            .map(|i| {
-                let (c, r) = (i % w, i / w);
-                let mut sum = m.values[i].map(|v| v * kr[0]);
-                for (j, &k) in kr.iter().enumerate().skip(1) {
-                    let up = r.saturating_sub(j);
-                    let down = (r + j).min(h - 1);
-                    sum = add(sum, m.values[up * w + c], k);
-                    sum = add(sum, m.values[down * w + c], k);
-                }
-                sum
-            })
-            .collect();
         // Along the parallels, wrapping.
-        let values = (0..h)
+        let horizontal: Vec<Texel> = (0..h)
             .into_par_iter()
             .flat_map_iter(|r| {
                 let cos = m.elevation(r).cos().max(1e-3);
                 let spread = sigma / (TAU / w as f32) / cos;
-                let row = &vertical[r * w..(r + 1) * w];
+                let row = &m.values[r * w..(r + 1) * w];
                 let out: Vec<Texel> = if spread > w as f32 / 2.0 {
                     let mean = row.iter().fold([0.0; 3], |a, b| add(a, *b, 1.0 / w as f32));
                     vec![mean; w]
@@ -185,6 +168,24 @@ impl Maps {
                         .collect()
                 };
                 out
+            })
+            .collect();
+        // Along the meridians (clamped at the poles).
+        let s_rows = sigma / row_step;
+        let n_rows = ((3.0 * s_rows).ceil() as usize).max(1);
+        let kr = kernel(s_rows, n_rows);
+        let values: Vec<Texel> = (0..w * h)
+            .into_par_iter()
+            .map(|i| {
+                let (c, r) = (i % w, i / w);
+                let mut sum = horizontal[i].map(|v| v * kr[0]);
+                for (j, &k) in kr.iter().enumerate().skip(1) {
+                    let up = r.saturating_sub(j);
+                    let down = (r + j).min(h - 1);
+                    sum = add(sum, horizontal[up * w + c], k);
+                    sum = add(sum, horizontal[down * w + c], k);
+                }
+                sum
             })
             .collect();
         Maps {
