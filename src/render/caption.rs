@@ -14,9 +14,11 @@ pub fn strip_height(width: u32) -> u32 {
     (width / 28).clamp(14, 48)
 }
 
-/// The strip's lines of text, ellipsised to fit, as packed 8-bit RGB of
-/// `width` × [`strip_height`] pixels: light grey text on near-black.
-pub fn strip(width: u32, text: &str) -> Vec<u8> {
+/// The strip as packed 8-bit RGB of `width` × [`strip_height`] pixels:
+/// light grey text on near-black, `title · details` on one line. When it
+/// does not fit, the title is shortened first (with an ellipsis), so the
+/// provenance in `details` stays readable; then the details.
+pub fn strip(width: u32, title: &str, details: &str) -> Vec<u8> {
     font::register();
     let height = strip_height(width);
     let mut raster = Raster::new((width, height)).expect("a non-empty strip");
@@ -29,9 +31,18 @@ pub fn strip(width: u32, text: &str) -> Vec<u8> {
         .color(&RGBColor(214, 214, 210))
         .pos(Pos::new(HPos::Left, VPos::Center));
     let room = width as f64 - 0.8 * height as f64;
-    let mut chars: Vec<char> = text.chars().collect();
-    let mut line = text.to_string();
-    while !chars.is_empty() && font::width(&line, size, FontStyle::Normal) > room {
+    let fits = |t: &str| font::width(t, size, FontStyle::Normal) <= room;
+    let mut kept: Vec<char> = title.chars().collect();
+    let mut line = format!("{title} · {details}");
+    while !fits(&line) && !kept.is_empty() {
+        kept.pop();
+        line = format!(
+            "{}… · {details}",
+            kept.iter().collect::<String>().trim_end()
+        );
+    }
+    let mut chars: Vec<char> = line.chars().collect();
+    while !fits(&line) && !chars.is_empty() {
         chars.pop();
         line = chars.iter().collect::<String>() + "…";
     }
@@ -51,12 +62,13 @@ mod tests {
     fn the_strip_has_its_size_and_some_text() {
         let rgb = strip(
             300,
-            "Teal label foil · studio · D65 · CIE1931_2 · lamella 0.1",
+            "Teal label foil",
+            "studio · D65 · CIE1931_2 · lamella 0.1",
         );
         assert_eq!(rgb.len(), 300 * strip_height(300) as usize * 3);
         assert!(rgb.iter().any(|&c| c > 150));
         // A long text is cut to fit, never spilling past the edge.
-        let long = strip(60, &"x".repeat(400));
+        let long = strip(60, &"x".repeat(400), "studio");
         assert_eq!(long.len(), 60 * strip_height(60) as usize * 3);
     }
 }

@@ -63,7 +63,8 @@ pub struct Preview<'a> {
     mesh: &'a Mesh,
     settings: Settings,
     floor: Option<Floor>,
-    caption: Option<String>,
+    /// The caption's title and details.
+    caption: Option<(String, String)>,
 }
 
 /// The mesh of a built-in shape; `None` for [`Shape::Mesh`], which the
@@ -95,7 +96,6 @@ impl<'a> Preview<'a> {
                 &scene.title
             };
             let mut parts = vec![
-                title.to_string(),
                 lighting,
                 format!("illuminant {}", scene.illuminant.name()),
                 format!("observer {}", scene.observer.name()),
@@ -107,7 +107,7 @@ impl<'a> Preview<'a> {
                 parts.push(format!("{} analyser", h.name()));
             }
             parts.push(format!("lamella {}", crate::report::VERSION));
-            parts.join(" · ")
+            (title.to_string(), parts.join(" · "))
         });
         Ok(Preview {
             shader: Shader::new(scene, settings)?,
@@ -121,8 +121,8 @@ impl<'a> Preview<'a> {
     }
 
     /// The caption under every frame, if the settings ask for one.
-    pub fn caption(&self) -> Option<&str> {
-        self.caption.as_deref()
+    pub fn caption(&self) -> Option<String> {
+        self.caption.as_ref().map(|(t, d)| format!("{t} · {d}"))
     }
 
     /// Number of frames: the turntable's, or 1.
@@ -214,8 +214,8 @@ impl<'a> Preview<'a> {
             },
         );
         let mut height = s.height;
-        if let Some(text) = &self.caption {
-            rgb.extend(caption::strip(s.width, text));
+        if let Some((title, details)) = &self.caption {
+            rgb.extend(caption::strip(s.width, title, details));
             let strip = caption::strip_height(s.width);
             coverage.extend(std::iter::repeat_n(0.0, (s.width * strip) as usize));
             height += strip;
