@@ -274,10 +274,18 @@ impl SurroundFrame<'_> {
                 let p = eye + t * dir;
                 let far = ((p.x * p.x + p.z * p.z).sqrt() - FADE_FROM) / (FADE_TO - FADE_FROM);
                 let w = far.clamp(0.0, 1.0);
-                let near = floor.at(p);
-                let level = Vec3::new(dir.x, HORIZON, dir.z).normalize();
-                let horizon = s.sharp.at(self.to_env * level);
-                let mixed: Texel = std::array::from_fn(|c| near[c] + w * (horizon[c] - near[c]));
+                let horizon = || {
+                    let level = Vec3::new(dir.x, HORIZON, dir.z).normalize();
+                    s.sharp.at(self.to_env * level)
+                };
+                let mixed: Texel = if w <= 0.0 {
+                    floor.at(p)
+                } else if w >= 1.0 {
+                    horizon()
+                } else {
+                    let (near, far) = (floor.at(p), horizon());
+                    std::array::from_fn(|c| near[c] + w * (far[c] - near[c]))
+                };
                 return sum(mixed, s.whites.iter().copied());
             }
         }
