@@ -174,13 +174,15 @@ impl Viewing {
     ) -> Colour {
         scratch.clear();
         match jones {
-            Some(js) => scratch.extend(js.iter().map(|j| self.of_jones(j))),
+            Some(js) => scratch.extend(js.iter().map(|j| self.fraction(j))),
             None => scratch.extend(rt.iter().map(|x| self.polarization.of(x, self.side))),
         }
         Colour::new(weights.xyz(scratch), weights.white(), &self.options)
     }
 
-    fn of_jones(&self, j: &Jones) -> f64 {
+    /// The fraction of light seen at one point from its Jones matrices
+    /// ([`seen_in_jones`] for this viewing).
+    pub fn fraction(&self, j: &Jones) -> f64 {
         seen_in_jones(j, self.side, self.polarization, self.analyzer)
     }
 }

@@ -35,6 +35,33 @@ pub fn png((w, h): (u32, u32), rgb: &[u8]) -> Option<Vec<u8>> {
     Some(out)
 }
 
+/// An animated PNG (APNG) of packed 8-bit RGB frames of one size, shown
+/// `fps` frames per second and looping forever (`None` if a frame's size
+/// disagrees or there are no frames).
+pub fn apng((w, h): (u32, u32), frames: &[Vec<u8>], fps: u16) -> Option<Vec<u8>> {
+    if frames.is_empty()
+        || frames
+            .iter()
+            .any(|f| f.len() != 3 * w as usize * h as usize)
+    {
+        return None;
+    }
+    let mut out = Vec::new();
+    {
+        let mut encoder = png::Encoder::new(&mut out, w, h);
+        encoder.set_color(png::ColorType::Rgb);
+        encoder.set_depth(png::BitDepth::Eight);
+        encoder.set_animated(frames.len() as u32, 0).ok()?;
+        encoder.set_frame_delay(1, fps.max(1)).ok()?;
+        let mut writer = encoder.write_header().ok()?;
+        for frame in frames {
+            writer.write_image_data(frame).ok()?;
+        }
+        writer.finish().ok()?;
+    }
+    Some(out)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -54,5 +81,17 @@ mod tests {
         let bytes = png((2, 1), &[255, 0, 0, 0, 0, 255]).unwrap();
         assert_eq!(&bytes[..8], b"\x89PNG\r\n\x1a\n");
         assert!(png((2, 2), &[0; 6]).is_none());
+    }
+
+    #[test]
+    fn apng_has_an_animation_control_chunk_and_every_frame() {
+        let frames = vec![vec![0u8; 12], vec![255u8; 12], vec![9u8; 12]];
+        let bytes = apng((2, 2), &frames, 12).unwrap();
+        assert_eq!(&bytes[..8], b"\x89PNG\r\n\x1a\n");
+        let find = |tag: &[u8]| bytes.windows(4).filter(|w| *w == tag).count();
+        assert_eq!(find(b"acTL"), 1);
+        assert_eq!(find(b"fcTL"), 3);
+        assert_eq!(find(b"fdAT"), 2);
+        assert!(apng((2, 2), &[vec![0u8; 5]], 12).is_none());
     }
 }

@@ -255,6 +255,14 @@ def render(
     fov_deg: float | None = None,
     distance: float | None = None,
     turntable: int | None = None,
+    environment: str | npt.NDArray[np.float32] | None = None,
+    environment_white: str | None = None,
+    view: str | None = None,
+    floor: float | str | bool | None = None,
+    shadow: bool | str | None = None,
+    analyzer: str | None = None,
+    caption: bool | str | None = None,
+    orbit_elevation_deg: tuple[float, float] | None = None,
 ) -> npt.NDArray[np.uint8]:
     """`lamella render`: sRGB (H, W, 3), or (N, H, W, 3) with a turntable."""
 

@@ -111,3 +111,24 @@ def test_render_is_the_cli_render(cli, tmp_path):
     assert frames.shape == (3, 40, 40, 3)
     with pytest.raises(lamella.SceneError, match="ssaa"):
         lamella.render(lamella.Scene.load(TEAL), ssaa=9)
+
+
+def test_render_in_an_environment_is_the_cli_render(cli, tmp_path):
+    out = tmp_path / "studio.png"
+    flags = ["--size", "64x48", "--ssaa", "1", "--environment", "studio", "--floor", "0.5"]
+    run = cli("render", TEAL, *flags, "--caption", "-o", out)
+    assert run.code == 0, run.stderr
+    scene = lamella.Scene.load(TEAL)
+    img = lamella.render(scene, size=(64, 48), ssaa=1, environment="studio", floor=0.5, caption=True)
+    assert np.array_equal(img, png_pixels(out.read_bytes()))
+    # An image of the white is the uniform environment.
+    white = np.ones((8, 16, 3), dtype=np.float32)
+    a = lamella.render(scene, size=(32, 32), ssaa=1, environment=white, tone=False)
+    b = lamella.render(scene, size=(32, 32), ssaa=1, environment="uniform", tone=False)
+    assert np.abs(a.astype(int) - b.astype(int)).max() <= 1
+    clear = lamella.render(scene, size=(32, 32), environment="lighttable", view="transmit")
+    assert clear.shape == (32, 32, 3)
+    with pytest.raises(lamella.SceneError, match="floor"):
+        lamella.render(scene, floor=0.5)
+    with pytest.raises(lamella.SceneError, match="environment"):
+        lamella.render(scene, environment="garden")

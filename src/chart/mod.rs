@@ -12,7 +12,7 @@ pub mod canvas;
 mod chromaticity;
 mod field;
 mod fit;
-mod font;
+pub(crate) mod font;
 pub mod gamut;
 mod map;
 mod spectra;

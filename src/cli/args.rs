@@ -178,7 +178,8 @@ pub enum Command {
     #[command(after_help = help::SWEEP)]
     Sweep(Box<cli::sweep::SweepArgs>),
     /// A preview image of an object (sphere, cylinder, torus, bottle, wavy
-    /// sheet or OBJ mesh) wearing the coating, shaded from the real spectra.
+    /// sheet, flat pane or OBJ mesh) wearing the coating, shaded from the
+    /// real spectra, in a studio environment or under lights.
     ///
     /// Each flag overrides the same key of the scene's `preview` object.
     #[command(after_help = help::RENDER)]

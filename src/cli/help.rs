@@ -151,8 +151,13 @@ Example (an 8-point grid per layer, ΔE00 to a target):
 
 /// `lamella render`.
 pub const RENDER: &str = "\
-Example:
-  lamella render scenes/teal_label_foil.json -o foil.png --shape bottle --size 400x400";
+Examples (a bottle in the softbox studio with a floor and its shadow; a filter pane before a
+backlight, showing its pass band; a chiral window through left-handed circular-polarizer
+glasses; a turntable as an animated PNG, the view sweeping from 10° to 40° elevation):
+  lamella render scenes/teal_label_foil.json -o foil.png --shape bottle --size 400x400 --environment studio --floor 0.5
+  lamella render scenes/violet_window_filter.json -o filter.png --shape pane --size 300x300 --orbit 25 --environment lighttable --view both
+  lamella render scenes/cnc_giftbox_window.json -o window.png --size 200x200 --environment studio --analyzer left --caption
+  lamella render scenes/preview_flip.json -o spin.png --size 160x160 --environment booth --turntable 12 --orbit-elevation 10:40";
 
 /// `lamella materials`.
 pub const MATERIALS: &str = "\

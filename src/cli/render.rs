@@ -4,8 +4,12 @@ use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 
 use indicatif::{ProgressBar, ProgressStyle};
+use std::sync::Arc;
+
+use lamella::colorimetry::Illuminant;
 use lamella::render::{
-    Base, Light, Mesh, Preview, SIZE_LIMITS, Settings, Shape, builtin_mesh, parse_tone,
+    EnvImage, Environment, Mesh, Overrides, Preview, Settings, Shape, builtin_environment,
+    builtin_mesh,
 };
 use lamella::scene::Scene;
 
@@ -17,16 +21,21 @@ pub struct RenderArgs {
     /// Scene file (JSON); its optional `preview` object holds defaults for
     /// every flag below (keys shape, size, ssaa, exposure, tone,
     /// roughness_deg, base, lights, orbit_deg, elevation_deg, fov_deg,
-    /// distance, turntable). A scene with a `coating` section is shaded with
+    /// distance, turntable, environment (a built-in name), view, floor,
+    /// shadow, analyzer, caption, orbit_elevation_deg as [FROM, TO]).
+    /// Anisotropic and chiral scenes render too (their tables at the
+    /// scene's azimuth 0). A scene with a `coating` section is shaded with
     /// its platelet model (the colour `multiangle` reports, for every pair of
     /// light and view directions) over the coating's own background, plus
     /// the binder surface's gloss.
     pub scene: PathBuf,
-    /// Output PNG file. With --turntable N, frames go to FILE-000.png,
-    /// FILE-001.png, …
+    /// Output PNG file. With --turntable N it is an animated PNG of the
+    /// turn (15 frames per second, looping), and the frames also go to
+    /// FILE-000.png, FILE-001.png, …
     #[arg(short = 'o', long = "output")]
     pub output: PathBuf,
-    /// Object: sphere, cylinder, torus, bottle, sheet, or mesh:PATH for a
+    /// Object: sphere, cylinder, torus, bottle, sheet, pane (a flat square
+    /// facing the camera at orbit 0), or mesh:PATH for a
     /// Wavefront OBJ file (a path in the scene's preview is relative to the scene).
     /// [default: sphere]
     #[arg(long)]
@@ -77,57 +86,152 @@ pub struct RenderArgs {
     /// is scaled to a bounding sphere of radius 1). [default: frames the object]
     #[arg(long)]
     pub distance: Option<f64>,
-    /// Write N frames of a full turn of the object (camera and lights fixed), 1–3600.
+    /// Write N frames of a full turn of the object (camera, lights and
+    /// environment fixed), 1–3600, as an animated PNG and numbered frames.
     #[arg(long, value_parser = clap::value_parser!(u32).range(1..=3600))]
     pub turntable: Option<u32>,
+    /// With --turntable: sweep the camera elevation from FROM to TO degrees
+    /// and back over the turn (e.g. 10:45), to show the colour travel.
+    #[arg(long = "orbit-elevation", allow_hyphen_values = true)]
+    pub orbit_elevation: Option<String>,
+    /// Image-based lighting: a built-in environment, studio (softboxes over
+    /// a floor, in the scene's illuminant, with a rim strip of illuminant
+    /// A), booth (grey walls under a ceiling diffuser), overcast (CIE
+    /// overcast sky in D65), lighttable (a backlit panel behind the object)
+    /// or uniform, each as NAME[,intensity=X][,illuminant=NAME]; or an
+    /// equirectangular Radiance .hdr file (centre column behind the object,
+    /// top row up). Given without --light it replaces the preview's lights;
+    /// lights given with it are added.
+    #[arg(long)]
+    pub environment: Option<String>,
+    /// The built-in illuminant that an environment image's RGB (1, 1, 1)
+    /// stands for (its white balance); its R, G, B are read as weights of
+    /// that light's spectrum cut at 490 and 580 nm. [default: D65]
+    #[arg(long = "environment-white")]
+    pub environment_white: Option<String>,
+    /// The film's light shown: reflect, transmit (the light from behind that
+    /// the film passes; the object is clear, with no base) or both.
+    /// [default: reflect]
+    #[arg(long)]
+    pub view: Option<String>,
+    /// A matte neutral floor under the object with this reflectance (0–1),
+    /// or off; needs an environment. [default: off]
+    #[arg(long)]
+    pub floor: Option<String>,
+    /// The object's soft contact shadow on the floor: on or off. [default: on]
+    #[arg(long)]
+    pub shadow: Option<String>,
+    /// Look through an ideal circular analyser (circular-polarizer
+    /// glasses): left or right; needs a coherent stack (no incoherent
+    /// layer, substrate sheet or disorder).
+    #[arg(long)]
+    pub analyzer: Option<String>,
+    /// A caption strip under the image: scene title, environment,
+    /// illuminant, observer and lamella version. `--caption` alone is on.
+    #[arg(long, num_args = 0..=1, default_missing_value = "on")]
+    pub caption: Option<String>,
 }
 
 impl RenderArgs {
-    /// The scene's preview settings with these flags applied.
-    fn settings(&self, scene: &Scene) -> Result<Settings, String> {
-        let mut s = scene.preview.clone().unwrap_or_default();
-        let flag = |name: &str, e: lamella::Error| format!("--{name}: {e}");
-        if let Some(t) = &self.shape {
-            s.shape = t.parse().map_err(|e| flag("shape", e))?;
+    /// The flags as overrides of the scene's preview (an environment file
+    /// is read here).
+    fn overrides(&self) -> Result<Overrides, Failure> {
+        let environment = match &self.environment {
+            None => None,
+            Some(text) => Some(match builtin_environment(text) {
+                Some(e) => e.map_err(|e| Failure::input(format!("--environment: {e}")))?,
+                None => Environment::Image(Arc::new(read_hdr(
+                    Path::new(text),
+                    self.environment_white.as_deref().unwrap_or("D65"),
+                )?)),
+            }),
+        };
+        if self.environment_white.is_some() && !matches!(environment, Some(Environment::Image(_))) {
+            return Err(Failure::input(
+                "--environment-white: states the white of an environment image; give --environment FILE.hdr",
+            ));
         }
-        if let Some(t) = &self.size {
-            (s.width, s.height) =
-                lamella::raster::parse_size(t, SIZE_LIMITS).map_err(|e| flag("size", e))?;
-        }
-        if let Some(t) = &self.tone {
-            s.tone = parse_tone(t).map_err(|e| flag("tone", e))?;
-        }
-        if let Some(t) = &self.base {
-            s.base = t.parse::<Base>().map_err(|e| flag("base", e))?;
-        }
-        if !self.lights.is_empty() {
-            s.lights = self
-                .lights
-                .iter()
-                .map(|l| l.parse::<Light>().map_err(|e| flag("light", e)))
-                .collect::<Result<_, _>>()?;
-        }
-        s.ssaa = self.ssaa.unwrap_or(s.ssaa);
-        s.exposure = self.exposure.unwrap_or(s.exposure);
-        s.roughness_deg = self.roughness_deg.unwrap_or(s.roughness_deg);
-        s.view.orbit_deg = self.orbit_deg.unwrap_or(s.view.orbit_deg);
-        s.view.elevation_deg = self.elevation_deg.unwrap_or(s.view.elevation_deg);
-        s.view.fov_deg = self.fov_deg.unwrap_or(s.view.fov_deg);
-        s.view.distance = self.distance.or(s.view.distance);
-        s.turntable = self.turntable.unwrap_or(s.turntable);
-        s.check().map_err(|e| e.to_string())?;
-        Ok(s)
+        Ok(Overrides {
+            shape: self.shape.clone(),
+            size: self.size.clone(),
+            ssaa: self.ssaa,
+            exposure: self.exposure,
+            tone: self.tone.clone(),
+            roughness_deg: self.roughness_deg,
+            base: self.base.clone(),
+            lights: (!self.lights.is_empty()).then(|| self.lights.clone()),
+            orbit_deg: self.orbit_deg,
+            elevation_deg: self.elevation_deg,
+            fov_deg: self.fov_deg,
+            distance: self.distance,
+            turntable: self.turntable,
+            environment,
+            view: self.view.clone(),
+            floor: self.floor.clone(),
+            shadow: self.shadow.clone(),
+            analyzer: self.analyzer.clone(),
+            caption: self.caption.clone(),
+            orbit_elevation_deg: self.orbit_elevation.clone(),
+        })
     }
+
+    /// The scene's preview settings with these flags applied.
+    fn settings(&self, scene: &Scene) -> Result<Settings, Failure> {
+        let base = scene.preview.clone().unwrap_or_default();
+        let at_scene = |m: String| Failure::input(format!("{}: {m}", self.scene.display()));
+        self.overrides()?.apply(base).map_err(|e| match e.key {
+            Some(key) => at_scene(format!("--{}: {}", flag(key), e.error)),
+            None => at_scene(e.error.to_string()),
+        })
+    }
+}
+
+/// The flag that sets a preview key.
+fn flag(key: &str) -> &str {
+    match key {
+        "lights" => "light",
+        "roughness_deg" => "roughness",
+        "orbit_elevation_deg" => "orbit-elevation",
+        other => other,
+    }
+}
+
+/// Largest environment image read, in pixels.
+const MAX_HDR_PIXELS: u64 = 1 << 26;
+
+/// An equirectangular Radiance HDR file as an environment whose (1, 1, 1)
+/// is the built-in illuminant `white`.
+fn read_hdr(path: &Path, white: &str) -> Result<EnvImage, Failure> {
+    use image::ImageDecoder;
+    let at = |m: String| Failure::input(format!("{}: {m}", path.display()));
+    let white = Illuminant::builtin(white)
+        .map_err(|e| Failure::input(format!("--environment-white: {e}")))?;
+    let bytes = std::fs::read(path).map_err(|e| at(format!("cannot read environment: {e}")))?;
+    let decoder = image::codecs::hdr::HdrDecoder::new(std::io::Cursor::new(&bytes))
+        .map_err(|e| at(format!("not a Radiance HDR image: {e}")))?;
+    let (w, h) = decoder.dimensions();
+    if w as u64 * h as u64 > MAX_HDR_PIXELS {
+        return Err(at(format!(
+            "{w}×{h} pixels is more than 2^26; scale the environment image down"
+        )));
+    }
+    let mut raw = vec![0u8; decoder.total_bytes() as usize];
+    decoder.read_image(&mut raw).map_err(|e| {
+        at(format!(
+            "the Radiance HDR image is damaged or cut short: {e}"
+        ))
+    })?;
+    let rgb: Vec<f32> = raw
+        .chunks_exact(4)
+        .map(|b| f32::from_ne_bytes([b[0], b[1], b[2], b[3]]))
+        .collect();
+    EnvImage::new(&path.display().to_string(), (w, h), rgb, white).map_err(|e| at(e.to_string()))
 }
 
 /// Runs the command.
 pub fn run(args: &RenderArgs) -> CliResult {
     let scene = load_scene(&args.scene)?;
-    scene
-        .require_isotropic("`lamella render`")
-        .map_err(|e| Failure::scene(&args.scene, e))?;
-    let at_scene = |e: String| Failure::input(format!("{}: {e}", args.scene.display()));
-    let settings = args.settings(&scene).map_err(at_scene)?;
+    let settings = args.settings(&scene)?;
     let mesh = match (builtin_mesh(&settings.shape), &settings.shape) {
         (Some(m), _) => m,
         // The scene's own mesh was read with the scene.
@@ -153,6 +257,14 @@ pub fn run(args: &RenderArgs) -> CliResult {
         ProgressStyle::with_template("rendering {bar:40} {percent:>3}% {elapsed} (eta {eta})")
             .expect("template is valid"),
     );
+    let unencoded = |path: &Path| {
+        Failure::io(
+            path,
+            std::io::Error::other("the image could not be encoded"),
+        )
+    };
+    let mut all = Vec::new();
+    let mut size = (0, 0);
     for index in 0..frames {
         let image = preview.render(index, &|rows| bar.inc(rows as u64));
         let path = if settings.turntable > 0 {
@@ -160,18 +272,24 @@ pub fn run(args: &RenderArgs) -> CliResult {
         } else {
             args.output.clone()
         };
-        let png =
-            lamella::raster::png((image.width, image.height), &image.rgb).ok_or_else(|| {
-                Failure::io(
-                    &path,
-                    std::io::Error::other("the image could not be encoded"),
-                )
-            })?;
+        size = (image.width, image.height);
+        let png = lamella::raster::png(size, &image.rgb).ok_or_else(|| unencoded(&path))?;
         write_out(Some(&path), &[png])?;
+        if settings.turntable > 0 {
+            all.push(image.rgb);
+        }
+    }
+    if settings.turntable > 0 {
+        let apng = lamella::raster::apng(size, &all, FRAMES_PER_SECOND)
+            .ok_or_else(|| unencoded(&args.output))?;
+        write_out(Some(&args.output), &[apng])?;
     }
     bar.finish_and_clear();
     Ok(())
 }
+
+/// Frame rate of the animated PNG of a turntable.
+const FRAMES_PER_SECOND: u16 = 15;
 
 /// `dir/name.png` → `dir/name-007.png`.
 fn frame_path(output: &Path, index: u32) -> PathBuf {

@@ -164,6 +164,37 @@ impl Mesh {
         .framed()
     }
 
+    /// A flat square pane in the x–y plane facing +z (the camera at orbit
+    /// 0), as a window or filter card stands; open, shaded on both sides.
+    pub fn pane() -> Mesh {
+        let n = 8u32;
+        let mut positions = Vec::new();
+        for j in 0..=n {
+            for i in 0..=n {
+                let (x, y) = (
+                    -1.0 + 2.0 * i as f32 / n as f32,
+                    -1.0 + 2.0 * j as f32 / n as f32,
+                );
+                positions.push(Vec3::new(x, y, 0.0));
+            }
+        }
+        let mut triangles = Vec::new();
+        let row = n + 1;
+        for j in 0..n {
+            for i in 0..n {
+                let v = j * row + i;
+                triangles.push([v, v + 1, v + row]);
+                triangles.push([v + 1, v + row + 1, v + row]);
+            }
+        }
+        Mesh {
+            normals: vec![Vec3::Z; positions.len()],
+            positions,
+            triangles,
+        }
+        .framed()
+    }
+
     /// Parses Wavefront OBJ text (with `tobj`); faces are triangulated, and
     /// meshes without vertex normals get flat face normals. `name` labels errors.
     pub fn from_obj(name: &str, bytes: &[u8]) -> Result<Mesh> {

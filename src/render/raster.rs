@@ -17,6 +17,17 @@ pub struct Surface {
     pub normal: Vec3,
 }
 
+/// What one sample sees: the nearest surface and, when asked for, the
+/// farthest one if it lies on another triangle (where a clear closed object
+/// lets the line of sight out).
+#[derive(Debug, Clone, Copy)]
+pub struct Sample {
+    /// The nearest surface.
+    pub front: Surface,
+    /// The farthest surface on another triangle.
+    pub back: Option<Surface>,
+}
+
 /// A mesh projected onto a sample grid and binned into bands.
 pub struct Raster<'a> {
     mesh: &'a Mesh,
@@ -86,13 +97,16 @@ impl<'a> Raster<'a> {
         b * self.band_rows..((b + 1) * self.band_rows).min(self.height)
     }
 
-    /// The surface seen at each sample of band `b`, row-major (`None`: background).
-    pub fn band(&self, b: usize) -> Vec<Option<Surface>> {
+    /// The surfaces seen at each sample of band `b`, row-major (`None`:
+    /// background); the far side only if `back`.
+    pub fn band(&self, b: usize, back: bool) -> Vec<Option<Sample>> {
         let rows = self.rows(b);
         let (w, y0) = (self.width, rows.start);
         let n = w * rows.len();
         let mut depth = vec![0.0f32; n];
         let mut hits: Vec<Hit> = vec![None; n];
+        let mut far_depth = vec![f32::INFINITY; if back { n } else { 0 }];
+        let mut far: Vec<Hit> = vec![None; if back { n } else { 0 }];
         for &t in &self.bins[b] {
             let tri = self.mesh.triangles[t as usize];
             let [(a, ia), (bb, ib), (c, ic)] = tri.map(|v| self.screen[v as usize]);
@@ -121,15 +135,32 @@ impl<'a> Raster<'a> {
                     }
                     let inv = l0 * ia + l1 * ib + l2 * ic;
                     let k = (y - y0) * w + x;
+                    let weights = || [l0 * ia / inv, l1 * ib / inv, l2 * ic / inv];
                     if inv > depth[k] {
                         depth[k] = inv;
-                        hits[k] = Some((t, [l0 * ia / inv, l1 * ib / inv, l2 * ic / inv]));
+                        hits[k] = Some((t, weights()));
+                    }
+                    if back && inv < far_depth[k] {
+                        far_depth[k] = inv;
+                        far[k] = Some((t, weights()));
                     }
                 }
             }
         }
-        hits.into_iter()
-            .map(|h| h.map(|(t, b)| self.surface(t, b)))
+        (0..n)
+            .map(|k| {
+                hits[k].map(|(t, b)| Sample {
+                    front: self.surface(t, b),
+                    back: match far.get(k).copied().flatten() {
+                        // Another triangle, clearly farther (not a neighbour
+                        // sharing an edge with the nearest).
+                        Some((tf, bf)) if tf != t && 1.0 / far_depth[k] - 1.0 / depth[k] > 1e-3 => {
+                            Some(self.surface(tf, bf))
+                        }
+                        _ => None,
+                    },
+                })
+            })
             .collect()
     }
 

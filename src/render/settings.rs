@@ -7,8 +7,10 @@ use std::str::FromStr;
 use serde_json::Value;
 
 use super::camera::View;
+use super::environment::{Environment, Procedural};
 use crate::colorimetry::{Illuminant, srgb_decode};
 use crate::error::{Error, Result};
+use crate::optics::aniso::Handedness;
 use crate::scene::json::show;
 
 /// The object wearing the coating.
@@ -24,6 +26,9 @@ pub enum Shape {
     Bottle,
     /// A wavy sheet (height field).
     Sheet,
+    /// A flat square pane facing the camera (a window or filter), open, so
+    /// light crosses the film once.
+    Pane,
     /// A Wavefront OBJ file (path as written; the caller reads it).
     Mesh(String),
 }
@@ -37,13 +42,14 @@ impl FromStr for Shape {
             "torus" => Shape::Torus,
             "bottle" => Shape::Bottle,
             "sheet" => Shape::Sheet,
+            "pane" => Shape::Pane,
             _ => match s.strip_prefix("mesh:") {
                 Some(path) if !path.is_empty() => Shape::Mesh(path.to_string()),
                 _ => {
                     return Err(Error::invalid(
                         "shape",
                         s,
-                        "expected sphere, cylinder, torus, bottle, sheet or mesh:PATH.obj",
+                        "expected sphere, cylinder, torus, bottle, sheet, pane or mesh:PATH.obj",
                     ));
                 }
             },
@@ -257,6 +263,72 @@ pub struct Settings {
     pub view: View,
     /// Frames of a full turn (0: one still).
     pub turntable: u32,
+    /// Image-based lighting around the object (added to the lights).
+    pub environment: Option<Environment>,
+    /// Which light of the film is shown.
+    pub mode: ViewMode,
+    /// Reflectance of a matte floor under the object (needs an environment);
+    /// `None`: no floor.
+    pub floor: Option<f64>,
+    /// Whether the object casts its soft shadow on the floor.
+    pub shadow: bool,
+    /// A circular analyser in front of the eye (circular-polarizer glasses).
+    pub analyzer: Option<Handedness>,
+    /// Whether a caption strip with the render's provenance is added below.
+    pub caption: bool,
+    /// With a turntable: the camera elevation swept from the first value to
+    /// the second and back over the turn, in degrees.
+    pub orbit_elevation_deg: Option<(f64, f64)>,
+}
+
+/// Which light of the film reaches the eye.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum ViewMode {
+    /// Light the film reflects (over its base).
+    #[default]
+    Reflect,
+    /// Light from behind that the film transmits: the object is clear (the
+    /// film on a thin clear shell, no base).
+    Transmit,
+    /// Both, on a clear object.
+    Both,
+}
+
+impl ViewMode {
+    /// `reflect`, `transmit` or `both`.
+    pub fn name(self) -> &'static str {
+        match self {
+            ViewMode::Reflect => "reflect",
+            ViewMode::Transmit => "transmit",
+            ViewMode::Both => "both",
+        }
+    }
+
+    /// Whether reflected light is shown.
+    pub fn reflects(self) -> bool {
+        self != ViewMode::Transmit
+    }
+
+    /// Whether transmitted light is shown (the object is then clear).
+    pub fn transmits(self) -> bool {
+        self != ViewMode::Reflect
+    }
+}
+
+impl FromStr for ViewMode {
+    type Err = Error;
+    fn from_str(s: &str) -> Result<Self> {
+        match s {
+            "reflect" => Ok(ViewMode::Reflect),
+            "transmit" => Ok(ViewMode::Transmit),
+            "both" => Ok(ViewMode::Both),
+            _ => Err(Error::invalid(
+                "view",
+                s,
+                "expected reflect, transmit or both",
+            )),
+        }
+    }
 }
 
 /// Keys of the scene's `preview` object.
@@ -274,6 +346,13 @@ pub const PREVIEW_KEYS: &[&str] = &[
     "fov_deg",
     "distance",
     "turntable",
+    "environment",
+    "view",
+    "floor",
+    "shadow",
+    "analyzer",
+    "caption",
+    "orbit_elevation_deg",
 ];
 
 impl Default for Settings {
@@ -312,6 +391,13 @@ impl Default for Settings {
                 distance: None,
             },
             turntable: 0,
+            environment: None,
+            mode: ViewMode::Reflect,
+            floor: None,
+            shadow: true,
+            analyzer: None,
+            caption: false,
+            orbit_elevation_deg: None,
         }
     }
 }
@@ -350,12 +436,40 @@ impl Settings {
                 "must lie from 0° to 60°",
             ));
         }
-        if self.lights.is_empty() {
+        if self.lights.is_empty() && self.environment.is_none() {
             return Err(Error::invalid(
                 "lights",
                 "[]",
-                "at least one light is needed",
+                "at least one light or an environment is needed",
             ));
+        }
+        if let Some(f) = self.floor {
+            if !(0.0..=1.0).contains(&f) {
+                return Err(Error::invalid("floor", f, "a reflectance from 0 to 1"));
+            }
+            if self.environment.is_none() {
+                return Err(Error::invalid(
+                    "floor",
+                    f,
+                    "a floor is lit by an environment; choose one (e.g. studio)",
+                ));
+            }
+        }
+        if let Some((a, b)) = self.orbit_elevation_deg {
+            if !(a.abs() <= 89.0 && b.abs() <= 89.0) {
+                return Err(Error::invalid(
+                    "orbit_elevation_deg",
+                    format!("{a}:{b}"),
+                    "both elevations must lie within ±89°",
+                ));
+            }
+            if self.turntable == 0 {
+                return Err(Error::invalid(
+                    "orbit_elevation_deg",
+                    format!("{a}:{b}"),
+                    "sweeps the elevation over a turntable; give turntable frames too",
+                ));
+            }
         }
         if self.turntable > 3600 {
             return Err(Error::invalid(
@@ -368,13 +482,188 @@ impl Settings {
     }
 }
 
-/// `on`/`off` (also true/false, yes/no).
+/// `on`/`off` (also true/false, yes/no) for the tone curve.
 pub fn parse_tone(s: &str) -> Result<bool> {
+    parse_switch("tone", s)
+}
+
+/// `on`/`off` (also true/false, yes/no) for the setting `key`.
+pub fn parse_switch(key: &str, s: &str) -> Result<bool> {
     match s {
         "on" | "true" | "yes" => Ok(true),
         "off" | "false" | "no" => Ok(false),
-        _ => Err(Error::invalid("tone", s, "expected on or off")),
+        _ => Err(Error::invalid(key, s, "expected on or off")),
     }
+}
+
+/// A floor: `off`, or its reflectance from 0 to 1.
+pub fn parse_floor(s: &str) -> Result<Option<f64>> {
+    if s == "off" {
+        return Ok(None);
+    }
+    match s.parse::<f64>() {
+        Ok(x) if (0.0..=1.0).contains(&x) => Ok(Some(x)),
+        _ => Err(Error::invalid(
+            "floor",
+            s,
+            "expected off or a reflectance from 0 to 1, e.g. 0.5",
+        )),
+    }
+}
+
+/// An analyser: `left` or `right`.
+pub fn parse_analyzer(s: &str) -> Result<Handedness> {
+    match s {
+        "left" => Ok(Handedness::Left),
+        "right" => Ok(Handedness::Right),
+        _ => Err(Error::invalid("analyzer", s, "expected left or right")),
+    }
+}
+
+/// An elevation sweep `FROM:TO` in degrees.
+pub fn parse_sweep(s: &str) -> Result<(f64, f64)> {
+    let bad = || {
+        Error::invalid(
+            "orbit_elevation_deg",
+            s,
+            "expected FROM:TO in degrees, e.g. 10:40",
+        )
+    };
+    let (a, b) = s.split_once(':').ok_or_else(bad)?;
+    let number = |t: &str| t.trim().parse::<f64>().ok().filter(|x| x.is_finite());
+    Ok((number(a).ok_or_else(bad)?, number(b).ok_or_else(bad)?))
+}
+
+/// Settings given by a front end (command-line flags, Python keywords) over
+/// a scene's preview, as written (text where the notation is shared); each
+/// field overrides the setting of the same name.
+#[derive(Debug, Clone, Default)]
+pub struct Overrides {
+    /// `shape` notation of [`Shape`].
+    pub shape: Option<String>,
+    /// `WxH`.
+    pub size: Option<String>,
+    /// Supersampling.
+    pub ssaa: Option<u32>,
+    /// Exposure.
+    pub exposure: Option<f64>,
+    /// `on`/`off`.
+    pub tone: Option<String>,
+    /// Roughness in degrees.
+    pub roughness_deg: Option<f64>,
+    /// `black`, `white` or `#RRGGBB`.
+    pub base: Option<String>,
+    /// Lights in the notation of [`Light`]; they replace the preview's.
+    pub lights: Option<Vec<String>>,
+    /// Camera azimuth.
+    pub orbit_deg: Option<f64>,
+    /// Camera elevation.
+    pub elevation_deg: Option<f64>,
+    /// Field of view.
+    pub fov_deg: Option<f64>,
+    /// Camera distance.
+    pub distance: Option<f64>,
+    /// Turntable frames.
+    pub turntable: Option<u32>,
+    /// An environment (an image is read by the front end). Given without
+    /// `lights`, it replaces the preview's lights too.
+    pub environment: Option<Environment>,
+    /// `reflect`, `transmit` or `both`.
+    pub view: Option<String>,
+    /// `off` or a reflectance.
+    pub floor: Option<String>,
+    /// `on`/`off`.
+    pub shadow: Option<String>,
+    /// `left` or `right`.
+    pub analyzer: Option<String>,
+    /// `on`/`off`.
+    pub caption: Option<String>,
+    /// `FROM:TO`.
+    pub orbit_elevation_deg: Option<String>,
+}
+
+/// An override that was refused: the setting's key and why.
+#[derive(Debug)]
+pub struct OverrideError {
+    /// The setting (a key of [`PREVIEW_KEYS`]); `None` for a check of the
+    /// settings together.
+    pub key: Option<&'static str>,
+    /// What is wrong.
+    pub error: Error,
+}
+
+impl Overrides {
+    /// `base` with these overrides applied, every range checked.
+    pub fn apply(&self, mut s: Settings) -> std::result::Result<Settings, OverrideError> {
+        fn at<T>(key: &'static str, r: Result<T>) -> std::result::Result<T, OverrideError> {
+            r.map_err(|error| OverrideError {
+                key: Some(key),
+                error,
+            })
+        }
+        if let Some(t) = &self.shape {
+            s.shape = at("shape", t.parse())?;
+        }
+        if let Some(t) = &self.size {
+            (s.width, s.height) = at("size", crate::raster::parse_size(t, SIZE_LIMITS))?;
+        }
+        if let Some(t) = &self.tone {
+            s.tone = at("tone", parse_tone(t))?;
+        }
+        if let Some(t) = &self.base {
+            s.base = at("base", t.parse())?;
+        }
+        if let Some(lights) = &self.lights {
+            s.lights = lights
+                .iter()
+                .map(|l| at("lights", l.parse::<Light>()))
+                .collect::<std::result::Result<_, _>>()?;
+        } else if self.environment.is_some() {
+            s.lights.clear();
+        }
+        if let Some(e) = &self.environment {
+            s.environment = Some(e.clone());
+        }
+        if let Some(t) = &self.view {
+            s.mode = at("view", t.parse())?;
+        }
+        if let Some(t) = &self.floor {
+            s.floor = at("floor", parse_floor(t))?;
+        }
+        if let Some(t) = &self.shadow {
+            s.shadow = at("shadow", parse_switch("shadow", t))?;
+        }
+        if let Some(t) = &self.analyzer {
+            s.analyzer = Some(at("analyzer", parse_analyzer(t))?);
+        }
+        if let Some(t) = &self.caption {
+            s.caption = at("caption", parse_switch("caption", t))?;
+        }
+        if let Some(t) = &self.orbit_elevation_deg {
+            s.orbit_elevation_deg = Some(at("orbit_elevation_deg", parse_sweep(t))?);
+        }
+        s.ssaa = self.ssaa.unwrap_or(s.ssaa);
+        s.exposure = self.exposure.unwrap_or(s.exposure);
+        s.roughness_deg = self.roughness_deg.unwrap_or(s.roughness_deg);
+        s.view.orbit_deg = self.orbit_deg.unwrap_or(s.view.orbit_deg);
+        s.view.elevation_deg = self.elevation_deg.unwrap_or(s.view.elevation_deg);
+        s.view.fov_deg = self.fov_deg.unwrap_or(s.view.fov_deg);
+        s.view.distance = self.distance.or(s.view.distance);
+        s.turntable = self.turntable.unwrap_or(s.turntable);
+        s.check()
+            .map_err(|error| OverrideError { key: None, error })?;
+        Ok(s)
+    }
+}
+
+/// A built-in environment in its notation (`studio`, `booth,illuminant=A`,
+/// …); `None` when `text` names a file (it ends in `.hdr` or `.pic`, any case).
+pub fn builtin_environment(text: &str) -> Option<Result<Environment>> {
+    let lower = text.to_ascii_lowercase();
+    if lower.ends_with(".hdr") || lower.ends_with(".pic") {
+        return None;
+    }
+    Some(text.parse::<Procedural>().map(Environment::Procedural))
 }
 
 #[cfg(test)]

@@ -13,16 +13,21 @@ use glam::Vec3;
 use rayon::prelude::*;
 
 use super::camera::Camera;
+use super::floor::Floor;
 use super::pigment::{Body, Convert, Lobe};
 use super::settings::{Base, Light, Settings, Source};
-use crate::angle_colour::Viewing;
+use super::surround::{Inputs, Surround, SurroundFrame};
+use crate::angle_colour::{Side, Viewing};
 use crate::colorimetry::{RgbDisplay, RgbSpace, Weights};
 use crate::error::Result;
 use crate::pigment::Model;
 use crate::scene::{GRID_BYTES_PER_POINT, Scene};
 
 /// Angle step of the reflectance tables in degrees.
-const STEP: f64 = 0.25;
+pub(super) const STEP: f64 = 0.25;
+/// The narrowest highlight: a directional light is drawn as a disc of 2°
+/// (a point reflected in a mirror would cover no pixel).
+const MIN_SLOPE: f32 = 0.008_727; // tan(0.5°), the Beckmann slope of a 2° disc
 /// Angle step of the two-angle transmission tables in degrees.
 const STEP_2D: f64 = 0.5;
 
@@ -44,13 +49,13 @@ impl Table {
 
 /// Values on a square grid of two angles (light, view) with bilinear interpolation.
 #[derive(Debug, Clone)]
-struct Table2 {
+pub(super) struct Table2 {
     n: usize,
     values: Vec<Vec3>,
 }
 
 impl Table2 {
-    fn at(&self, a_deg: f32, b_deg: f32) -> Vec3 {
+    pub(super) fn at(&self, a_deg: f32, b_deg: f32) -> Vec3 {
         let step = STEP_2D as f32;
         let last = (self.n - 1) as f32;
         let (x, y) = (
@@ -82,7 +87,6 @@ struct Disc {
 }
 
 /// The film's look-up tables for one scene and one set of settings.
-#[derive(Debug, Clone)]
 pub struct Shader {
     /// Sky term per view angle: reflection averaged over the facet normals.
     sky: Option<Table>,
@@ -92,17 +96,42 @@ pub struct Shader {
     base: Option<Vec3>,
     /// The coating's platelet model, for a scene with a `coating`.
     body: Option<Body>,
+    /// The environment's part, if there is one.
+    surround: Option<Surround>,
+    /// Without an environment, a clear object's transmission of the scene's
+    /// illuminant (one pass, two passes) and the radiance behind it: the
+    /// backdrop plus every sky light.
+    clear: Option<(Table, Table2, f32)>,
+    /// Whether reflected light is shown.
+    reflects: bool,
 }
 
 /// A spectrum per angle of the table grid.
-type PerAngle = Vec<Vec<f64>>;
+pub(super) type PerAngle = Vec<Vec<f64>>;
+
+/// RGB of T(θ_a)·T(θ_b) on the coarse grid of [`Table2`].
+pub(super) fn products(t: &PerAngle, rgb: &Convert) -> Table2 {
+    let every = (STEP_2D / STEP).round() as usize;
+    let coarse: Vec<&Vec<f64>> = t.iter().step_by(every).collect();
+    let n = coarse.len();
+    let values = (0..n * n)
+        .into_par_iter()
+        .map(|ij| {
+            let (a, b) = (coarse[ij / n], coarse[ij % n]);
+            rgb(&a.iter().zip(b).map(|(x, y)| x * y).collect::<Vec<_>>())
+        })
+        .collect();
+    Table2 { n, values }
+}
 
 /// R and T (unpolarized) per angle of the grid 0…90° in steps of `STEP`,
 /// per wavelength. The last row is the grazing limit R = 1, T = 0, which any
 /// stack reaches as cos θ₀ → 0 with a lossless incident medium (the Fresnel
 /// coefficients of the first interface tend to −1; Born & Wolf, *Principles
 /// of Optics*, 7th ed. 1999, §1.5.2).
-fn film(scene: &Scene, body: Option<&Body>) -> Result<(PerAngle, PerAngle)> {
+/// With an analyser, R and T are the powers that pass it
+/// ([`Viewing::fraction`]), from the Jones matrices.
+fn film(scene: &Scene, body: Option<&Body>, viewing: &Viewing) -> Result<(PerAngle, PerAngle)> {
     let wl = &scene.wavelengths_nm;
     let n = (90.0 / STEP).round() as usize;
     let angles: Vec<f64> = (0..n).map(|i| i as f64 * STEP).collect();
@@ -111,19 +140,57 @@ fn film(scene: &Scene, body: Option<&Body>) -> Result<(PerAngle, PerAngle)> {
         r.push(vec![1.0; wl.len()]);
         return Ok((r, vec![vec![0.0; wl.len()]; n + 1]));
     }
-    let spectra = scene.spectra_at(&angles)?;
-    let (mut r, mut t): (PerAngle, PerAngle) = (0..n)
-        .map(|a| {
-            let rt = spectra.at_angle(a);
-            (
-                rt.iter().map(|x| x.r()).collect(),
-                rt.iter().map(|x| x.t()).collect(),
-            )
+    // The 4×4 path is costly: an anisotropic film is computed every 1° and
+    // interpolated linearly onto the table's grid.
+    let every = if scene.anisotropic() || viewing.analyzer.is_some() {
+        (1.0 / STEP).round() as usize
+    } else {
+        1
+    };
+    let computed: Vec<f64> = angles.iter().step_by(every).copied().collect();
+    let spectra = match viewing.analyzer {
+        None => scene.spectra_at(&computed)?,
+        Some(_) => scene.spectra_with_jones_at(&computed)?,
+    };
+    let side = |side| Viewing {
+        side,
+        ..viewing.clone()
+    };
+    let (reflect, transmit) = (side(Side::Reflect), side(Side::Transmit));
+    let (r, t): (PerAngle, PerAngle) = (0..computed.len())
+        .map(|a| match spectra.jones_at_angle(a) {
+            Some(js) if viewing.analyzer.is_some() => (
+                js.iter().map(|j| reflect.fraction(j)).collect(),
+                js.iter().map(|j| transmit.fraction(j)).collect(),
+            ),
+            _ => {
+                let rt = spectra.at_angle(a);
+                (
+                    rt.iter().map(|x| x.r()).collect(),
+                    rt.iter().map(|x| x.t()).collect(),
+                )
+            }
         })
         .unzip();
-    r.push(vec![1.0; wl.len()]);
-    t.push(vec![0.0; wl.len()]);
-    Ok((r, t))
+    let onto_grid = |coarse: PerAngle, grazing: f64| -> PerAngle {
+        let mut rows: PerAngle = (0..n)
+            .map(|i| {
+                let (k, f) = (i / every, (i % every) as f64 / every as f64);
+                let next = coarse.get(k + 1);
+                coarse[k]
+                    .iter()
+                    .enumerate()
+                    .map(|(w, &a)| {
+                        let b = next.map_or(grazing, |row| row[w]);
+                        a + f * (b - a)
+                    })
+                    .collect()
+            })
+            .collect();
+        rows.push(vec![grazing; wl.len()]);
+        rows
+    };
+    Ok((onto_grid(r, 1.0), onto_grid(t, 0.0)))
 }
 
 /// Beckmann distribution of facet normals with rms slope `m` at cos θ_h
@@ -157,7 +224,7 @@ fn smith_g1(cos: f32, m: f32) -> f32 {
 /// D(m) cos θ_m · max(0, m·v) (projected area of the visible facets; E. Heitz,
 /// "Understanding the masking-shadowing function in microfacet-based BRDFs",
 /// JCGT 3(2), 2014), each a mirror whose Fresnel angle is that between m and v.
-fn facet_average(reflect: &Table, m: f32) -> Table {
+pub(super) fn facet_average(reflect: &Table, m: f32) -> Table {
     let (n_theta, n_phi) = (64, 96);
     let top = (3.5 * m).atan().min(89.0f32.to_radians());
     let facets: Vec<(Vec3, f32)> = (0..n_theta)
@@ -205,7 +272,10 @@ impl Shader {
     /// light's body colour is taken from its centre direction.
     pub fn new(scene: &Scene, settings: &Settings) -> Result<Shader> {
         let wl = &scene.wavelengths_nm;
-        let viewing = Viewing::of_scene(scene)?;
+        let viewing = Viewing {
+            analyzer: settings.analyzer,
+            ..Viewing::of_scene(scene)?
+        };
         let display = RgbDisplay::new(viewing.weights(wl)?.white(), RgbSpace::Srgb);
         // The tables hold every wavelength at each table angle.
         scene.check_grid_size((90.0 / STEP) as usize + 1, GRID_BYTES_PER_POINT, "render")?;
@@ -213,11 +283,31 @@ impl Shader {
             None => None,
             Some(coating) => Some(Body::new(Model::new(scene, coating)?)),
         };
-        let (r, t) = film(scene, body.as_ref())?;
+        let (r, t) = film(scene, body.as_ref(), &viewing)?;
         let slope = settings.roughness_deg.to_radians().tan() as f32;
+        let mode = settings.mode;
         let base = match (settings.base, &body) {
+            _ if mode.transmits() => None,
             (_, Some(_)) | (Base::Black, None) => None,
             (Base::Diffuse(rgb), None) => Some(Vec3::from(rgb.map(|c| c as f32))),
+        };
+        let surround = match &settings.environment {
+            None => None,
+            Some(env) => Some(Surround::new(
+                env,
+                Inputs {
+                    r: &r,
+                    t: &t,
+                    slope,
+                    base: base.is_some(),
+                    body: body.as_ref(),
+                    mode,
+                    display_white: viewing.weights(wl)?.white(),
+                    viewing: &viewing,
+                    wavelengths_nm: wl,
+                    floor: settings.floor,
+                },
+            )?),
         };
         let lights = settings
             .lights
@@ -241,12 +331,34 @@ impl Shader {
                 .collect(),
             None => vec![None; lights.len()],
         };
+        let scene_weights = viewing.weights(wl)?;
+        let clear = (mode.transmits() && surround.is_none() && body.is_none()).then(|| {
+            let rgb =
+                |s: &[f64]| Vec3::from(display.linear(scene_weights.xyz(s)).map(|c| c as f32));
+            let skies: f64 = settings
+                .lights
+                .iter()
+                .filter(|l| l.source == Source::Sky)
+                .map(|l| l.intensity)
+                .sum();
+            (
+                Table {
+                    step: STEP as f32,
+                    values: t.par_iter().map(|s| rgb(s)).collect(),
+                },
+                products(&t, &rgb),
+                super::tone::background(0.5).x + skies as f32,
+            )
+        });
         let mut shader = Shader {
             sky: None,
             sky_through: None,
             discs: Vec::new(),
             base,
             body: None,
+            surround,
+            clear,
+            reflects: mode.reflects(),
         };
         for (index, light) in settings.lights.iter().enumerate() {
             let rgb = &converters[index];
@@ -266,7 +378,7 @@ impl Shader {
                     if let (Some(b), Some(lobe)) = (&body, &lobe) {
                         add(&mut shader.sky, b.sky(lobe, STEP));
                     }
-                    if base.is_some() {
+                    if base.is_some() && body.is_none() {
                         let hemi = hemispherical(&t);
                         let values = t
                             .par_iter()
@@ -289,23 +401,11 @@ impl Shader {
                     size_deg,
                 } => {
                     let half = (size_deg / 4.0).to_radians().tan() as f32;
-                    let through = base.is_some().then(|| {
-                        let every = (STEP_2D / STEP).round() as usize;
-                        let coarse: Vec<&Vec<f64>> = t.iter().step_by(every).collect();
-                        let n = coarse.len();
-                        let values = (0..n * n)
-                            .into_par_iter()
-                            .map(|ij| {
-                                let (a, b) = (coarse[ij / n], coarse[ij % n]);
-                                rgb(&a.iter().zip(b).map(|(x, y)| x * y).collect::<Vec<_>>())
-                            })
-                            .collect();
-                        Table2 { n, values }
-                    });
+                    let through = (base.is_some() && body.is_none()).then(|| products(&t, rgb));
                     shader.discs.push(Disc {
                         azimuth_deg,
                         elevation_deg,
-                        slope: (slope * slope + half * half).sqrt(),
+                        slope: (slope * slope + half * half).sqrt().max(MIN_SLOPE),
                         reflect,
                         through,
                         lobe,
@@ -317,10 +417,17 @@ impl Shader {
         Ok(shader)
     }
 
-    /// The per-frame shading with the lights placed for `camera`.
-    pub fn frame<'a>(&'a self, camera: &'a Camera) -> Frame<'a> {
+    /// The per-frame shading with the lights placed for `camera` (at
+    /// `orbit_deg`, which turns the environment) and the floor's shadow.
+    pub(super) fn frame<'a>(
+        &'a self,
+        camera: &'a Camera,
+        orbit_deg: f64,
+        floor: Option<&Floor>,
+    ) -> Frame<'a> {
         Frame {
             shader: self,
+            surround: self.surround.as_ref().map(|s| s.frame(orbit_deg, floor)),
             eye: camera.eye,
             directions: self
                 .discs
@@ -350,7 +457,7 @@ fn add(sum: &mut Option<Table>, t: Table) {
 /// The fraction of a uniform sky's irradiance that the film transmits, per
 /// wavelength: ∫ T(θ) sin 2θ dθ over 0…90° by the trapezoid rule (the
 /// cosine-weighted hemispherical average; common practice).
-fn hemispherical(t: &[Vec<f64>]) -> Vec<f64> {
+pub(super) fn hemispherical(t: &[Vec<f64>]) -> Vec<f64> {
     let h = STEP.to_radians();
     let mut out = vec![0.0; t[0].len()];
     for (i, row) in t.iter().enumerate() {
@@ -364,6 +471,7 @@ fn hemispherical(t: &[Vec<f64>]) -> Vec<f64> {
 /// Shading for one camera position.
 pub struct Frame<'a> {
     shader: &'a Shader,
+    surround: Option<SurroundFrame<'a>>,
     eye: Vec3,
     directions: Vec<Vec3>,
 }
@@ -379,13 +487,35 @@ impl Frame<'_> {
     /// practice). A disc light of angular radius α widens the highlight as a
     /// Beckmann lobe of slope tan(α/2) would (peak radiance R·E/(π sin²α)
     /// for small α; common practice).
-    pub fn shade(&self, position: Vec3, normal: Vec3) -> Vec3 {
+    ///
+    /// With an environment its light is added ([`SurroundFrame::shade`]);
+    /// on a clear object (transmission shown) `back` is the far side's
+    /// surface, if the line of sight leaves through another one.
+    pub fn shade(&self, position: Vec3, normal: Vec3, back: Option<(Vec3, Vec3)>) -> Vec3 {
         let s = self.shader;
         let v = (self.eye - position).normalize();
         let n = if normal.dot(v) < 0.0 { -normal } else { normal };
         let cos_v = n.dot(v).clamp(0.0, 1.0);
         let theta_v = cos_v.acos().to_degrees();
-        let mut rgb = s.sky.as_ref().map_or(Vec3::ZERO, |t| t.at(theta_v));
+        let theta_back = back.map(|(p, nb)| {
+            let vb = (self.eye - p).normalize();
+            nb.dot(vb).abs().min(1.0).acos().to_degrees()
+        });
+        let mut rgb = Vec3::ZERO;
+        if let Some(f) = &self.surround {
+            rgb += f.shade(n, v, theta_v, theta_back, s.base);
+        }
+        if let Some((t1, t2, behind)) = &s.clear {
+            rgb += *behind
+                * match theta_back {
+                    Some(b) => t2.at(theta_v, b),
+                    None => t1.at(theta_v),
+                };
+        }
+        if !s.reflects {
+            return rgb;
+        }
+        rgb += s.sky.as_ref().map_or(Vec3::ZERO, |t| t.at(theta_v));
         if let (Some(base), Some(t)) = (s.base, &s.sky_through) {
             rgb += base * t.at(theta_v);
         }
@@ -410,6 +540,17 @@ impl Frame<'_> {
             }
         }
         rgb
+    }
+
+    /// What the eye sees along `dir` past the object: the environment (or
+    /// the floor), or without one the grey backdrop at height `y` (0 at the
+    /// top of the image, 1 at the bottom). The second value says whether the
+    /// tone curve applies (it does to an environment, not to the backdrop).
+    pub fn background(&self, dir: Vec3, y: f32) -> (Vec3, bool) {
+        match &self.surround {
+            Some(f) => (f.background(self.eye, dir), true),
+            None => (super::tone::background(y), false),
+        }
     }
 }
 

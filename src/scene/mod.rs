@@ -508,6 +508,11 @@ impl Scene {
     /// the 4×4 path, for isotropic scenes too); refused for a scene that is
     /// not [`Scene::coherent`], where light has no single amplitude.
     pub fn spectra_with_jones(&self) -> Result<Spectra> {
+        self.spectra_with_jones_at(&self.angles_deg)
+    }
+
+    /// [`Scene::spectra_with_jones`] at `angles_deg` (each below 90°).
+    pub fn spectra_with_jones_at(&self, angles_deg: &[f64]) -> Result<Spectra> {
         if !self.coherent() {
             return Err(Error::invalid(
                 "stack",
@@ -516,7 +521,7 @@ impl Scene {
                  stack: no incoherent layer, substrate sheet or thickness disorder",
             ));
         }
-        let spectra = self.rows_at(&self.angles_deg, true, |rows| rows.all_with_jones())?;
+        let spectra = self.rows_at(angles_deg, true, |rows| rows.all_with_jones())?;
         check_spectra(&spectra)?;
         Ok(spectra)
     }

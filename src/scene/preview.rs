@@ -5,7 +5,10 @@ use serde_json::Value;
 use super::json::{Obj, show};
 use crate::error::{Error, Result};
 use crate::raster;
-use crate::render::{Light, PREVIEW_KEYS, SIZE_LIMITS, Settings, parse_tone};
+use crate::render::{
+    Environment, Light, PREVIEW_KEYS, Procedural, SIZE_LIMITS, Settings, parse_analyzer,
+    parse_floor, parse_switch, parse_tone,
+};
 
 /// The default settings overridden by the `preview` object `v`, with every
 /// range checked.
@@ -85,6 +88,70 @@ pub(super) fn parse(v: &Value) -> Result<Settings> {
         }
         s.turntable = n.min(u32::MAX as u64) as u32;
     }
+    if let Some(v) = o.get("environment") {
+        let path = "preview.environment";
+        let env = match v {
+            Value::String(t) => t.parse::<Procedural>().map_err(within)?,
+            Value::Object(_) => {
+                let obj = Obj::new(v, path)?;
+                let pairs: Vec<(String, Value)> = obj
+                    .map
+                    .iter()
+                    .map(|(k, v)| (k.clone(), v.clone()))
+                    .collect();
+                Procedural::from_pairs(&pairs, path)?
+            }
+            other => {
+                return Err(Error::invalid(
+                    path,
+                    show(other),
+                    "expected a built-in environment name or {\"type\": NAME, …}",
+                ));
+            }
+        };
+        s.environment = Some(Environment::Procedural(env));
+        if o.get("lights").is_none() {
+            s.lights.clear();
+        }
+    }
+    if let Some(t) = o.str("view")? {
+        s.mode = t.parse().map_err(within)?;
+    }
+    match o.get("floor") {
+        None | Some(Value::Bool(false)) => {}
+        Some(Value::String(t)) => s.floor = parse_floor(t).map_err(within)?,
+        Some(v) => s.floor = parse_floor(&show(v)).map_err(within)?,
+    }
+    for (key, field) in [("shadow", &mut s.shadow), ("caption", &mut s.caption)] {
+        match o.get(key) {
+            None => {}
+            Some(Value::Bool(b)) => *field = *b,
+            Some(Value::String(t)) => *field = parse_switch(key, t).map_err(within)?,
+            Some(other) => {
+                return Err(Error::invalid(
+                    o.key(key),
+                    show(other),
+                    "expected on or off",
+                ));
+            }
+        }
+    }
+    if let Some(t) = o.str("analyzer")? {
+        s.analyzer = Some(parse_analyzer(t).map_err(within)?);
+    }
+    if let Some(v) = o.get("orbit_elevation_deg") {
+        let pair = v
+            .as_array()
+            .filter(|a| a.len() == 2)
+            .and_then(|a| Some((a[0].as_f64()?, a[1].as_f64()?)));
+        s.orbit_elevation_deg = Some(pair.ok_or_else(|| {
+            Error::invalid(
+                o.key("orbit_elevation_deg"),
+                show(v),
+                "expected [FROM, TO] in degrees",
+            )
+        })?);
+    }
     s.check().map_err(|e| e.within("preview"))?;
     Ok(s)
 }
@@ -116,6 +183,20 @@ mod tests {
         assert_eq!(s.lights[1].illuminant.as_ref().map(|i| i.name()), Some("A"));
         assert_eq!(s.view.distance, Some(5.0));
         s.check().unwrap();
+        let doc = json!({"preview": {
+            "environment": {"type": "booth", "illuminant": "A"}, "view": "both",
+            "floor": 0.4, "shadow": false, "analyzer": "left", "caption": true,
+            "turntable": 8, "orbit_elevation_deg": [10, 40]
+        }});
+        let s = parse(&doc["preview"]).unwrap();
+        assert!(
+            s.lights.is_empty(),
+            "an environment without lights replaces them"
+        );
+        assert_eq!(s.mode, crate::render::ViewMode::Both);
+        assert_eq!((s.floor, s.shadow, s.caption), (Some(0.4), false, true));
+        assert_eq!(s.orbit_elevation_deg, Some((10.0, 40.0)));
+        assert_eq!(s.environment.unwrap().describe(), "booth (A)");
     }
 
     #[test]
@@ -134,6 +215,21 @@ mod tests {
             ),
             (json!({"preview": {"base": "grey"}}), "preview.base"),
             (json!({"preview": {"tone": 3}}), "preview.tone"),
+            (
+                json!({"preview": {"environment": "garden"}}),
+                "preview.environment",
+            ),
+            (
+                json!({"preview": {"environment": {"type": "studio", "glow": 1}}}),
+                "preview.environment.glow",
+            ),
+            (json!({"preview": {"floor": 0.5}}), "preview.floor"),
+            (json!({"preview": {"view": "through"}}), "preview.view"),
+            (json!({"preview": {"analyzer": "up"}}), "preview.analyzer"),
+            (
+                json!({"preview": {"orbit_elevation_deg": [10, 40]}}),
+                "preview.orbit_elevation_deg",
+            ),
         ] {
             let err = parse(&doc["preview"]).unwrap_err().to_string();
             assert!(err.contains(needle), "{err}");

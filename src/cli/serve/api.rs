@@ -479,8 +479,11 @@ pub async fn render(
         let scene = design(&server, &request)?;
         let path = PathBuf::from(server.files.label());
         let at = |e| Failure::scene(&path, e);
-        scene.require_isotropic("the preview").map_err(at)?;
         let mut settings = scene.preview.clone().unwrap_or_default();
+        // The page's analyser, as `lamella render --analyzer`.
+        if let (_, Some(h)) = request.view.args()? {
+            settings.analyzer = Some(h);
+        }
         if let Some(size) = &request.size {
             (settings.width, settings.height) = lamella::raster::parse_size(size, SIZE_LIMITS)
                 .map_err(|e| Failure::input(format!("size: {e}")))?;
