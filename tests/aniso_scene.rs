@@ -541,16 +541,7 @@ fn tools_for_isotropic_stacks_refuse_anisotropic_scenes() {
     s["stack"][0]["vary_nm"] = json!([1000, 2000]);
     let p = write(&dir, "tools.json", &s);
     let path = p.to_str().unwrap();
-    let png = dir.join("c.png");
     for args in [
-        vec![
-            "chart",
-            path,
-            "--kind",
-            "angle-strip",
-            "-o",
-            png.to_str().unwrap(),
-        ],
         vec![
             "match",
             path,
@@ -560,7 +551,6 @@ fn tools_for_isotropic_stacks_refuse_anisotropic_scenes() {
             dir.join("m.json").to_str().unwrap(),
         ],
         vec!["sweep", path, "--samples", "2"],
-        vec!["report", path, "-o", dir.join("r").to_str().unwrap()],
     ] {
         let out = lamella(&args);
         let err = String::from_utf8_lossy(&out.stderr);

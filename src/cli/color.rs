@@ -69,6 +69,29 @@ impl ViewArgs {
     }
 }
 
+impl ViewArgs {
+    /// [`ViewArgs::viewing`] through an ideal circular analyser when one is
+    /// given (`--analyzer`, for unpolarized light only).
+    pub fn viewing_through(
+        &self,
+        scene: &lamella::scene::Scene,
+        scene_path: &Path,
+        analyzer: Option<Handedness>,
+    ) -> Result<Viewing, Failure> {
+        let mut viewing = self.viewing(scene, scene_path)?;
+        if let Some(h) = analyzer {
+            if self.polarization != PolarizationChoice::Unpolarized {
+                return Err(Failure::input(format!(
+                    "--analyzer {}: the analyser is for unpolarized light; leave out --polarization",
+                    h.name()
+                )));
+            }
+            viewing.analyzer = Some(h);
+        }
+        Ok(viewing)
+    }
+}
+
 /// Runs the command.
 pub fn run(
     scene_path: &Path,
@@ -80,23 +103,9 @@ pub fn run(
 ) -> CliResult {
     let scene = load_scene(scene_path)?;
     film_scene(scene_path, &scene, "color")?;
-    let mut viewing = view.viewing(&scene, scene_path)?;
-    if let Some(h) = analyzer {
-        if view.polarization != PolarizationChoice::Unpolarized {
-            return Err(Failure::input(format!(
-                "--analyzer {}: the analyser is for unpolarized light; leave out --polarization",
-                h.name()
-            )));
-        }
-        viewing.analyzer = Some(h);
-    }
+    let viewing = view.viewing_through(&scene, scene_path, analyzer)?;
     let bad = |e| Failure::scene(scene_path, e);
-    let spectra = if analyzer.is_some() {
-        scene.spectra_with_jones()
-    } else {
-        scene.spectra()
-    }
-    .map_err(bad)?;
+    let spectra = viewing.spectra_of(&scene, &scene.angles_deg).map_err(bad)?;
     let colours = angle_colours(&spectra, &viewing).map_err(bad)?;
     let mut records = records(&spectra.angles_deg, &colours);
     if display_p3 {

@@ -5,7 +5,7 @@
 use std::fmt::Write;
 use std::path::PathBuf;
 
-use lamella::angle_colour::{Polarization, Viewing};
+use lamella::angle_colour::Viewing;
 use lamella::chart::canvas::escape;
 use lamella::chart::{
     self, AbTravel, AngleStrip, BandsChart, Chromaticity, Format, ReflectanceMap, Series,
@@ -80,9 +80,6 @@ struct Drawn {
 pub fn run(args: &Args) -> CliResult {
     let scene = load_scene(&args.scene)?;
     super::film_scene(&args.scene, &scene, "report")?;
-    scene
-        .require_isotropic("`lamella report`")
-        .map_err(|e| Failure::scene(&args.scene, e))?;
     let viewing = args.view.viewing(&scene, &args.scene)?;
     let at = |e| Failure::scene(&args.scene, e);
     std::fs::create_dir_all(&args.output).map_err(|e| Failure::io(&args.output, e))?;
@@ -121,7 +118,7 @@ pub fn run(args: &Args) -> CliResult {
         &scene,
         &viewing,
         &Variation::Scale { from: 0.9, to: 1.1 },
-        ThicknessAngle::DEFAULT_STEPS,
+        ThicknessAngle::default_steps(&scene),
         &|| {},
     )
     .map_err(at)?;
@@ -130,13 +127,8 @@ pub fn run(args: &Args) -> CliResult {
         "Sensitivity to thickness (all layers scaled together)",
         &|f| chart::render(&grid, size, f),
     )?;
-    let spectra = SpectraChart::compute(
-        &pair,
-        &spectra_angles(&scene.angles_deg),
-        &[Polarization::Unpolarized, Polarization::S, Polarization::P],
-        true,
-    )
-    .map_err(at)?;
+    let spectra =
+        SpectraChart::compute(&pair, &spectra_angles(&scene.angles_deg), None, true).map_err(at)?;
     emit("spectra", "Spectra", &|f| chart::render(&spectra, size, f))?;
     let map = ReflectanceMap::compute(&scene, &viewing).map_err(at)?;
     emit("map", "Map over wavelength and angle", &|f| {
