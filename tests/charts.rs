@@ -796,3 +796,40 @@ fn chiral_strip_rows_equal_the_color_command_per_analyser() {
         assert!(bytes.len() > 1000, "{name}");
     }
 }
+
+/// `lamella report` takes a chiral scene: the page shows the colours
+/// unpolarized and through each analyser side by side and states the
+/// handedness convention; `chart --analyzer` is refused for spectra.
+#[test]
+fn chiral_report_shows_both_handednesses() {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/cnc_giftbox_window.json");
+    let d = dir("chiral-report");
+    let out = lamella(&[
+        "report",
+        path.to_str().unwrap(),
+        "-o",
+        d.join("r").to_str().unwrap(),
+        "--size",
+        "640x400",
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let html = std::fs::read_to_string(d.join("r/index.html")).unwrap();
+    assert!(html.contains("Left and right circular polarization"));
+    assert!(html.contains("<th colspan=2>Through a left analyser</th>"));
+    assert!(html.contains("a left-handed helix reflects left-handed light at normal incidence"));
+    let out = lamella(&[
+        "chart",
+        path.to_str().unwrap(),
+        "--kind",
+        "spectra",
+        "--analyzer",
+        "left",
+        "-o",
+        d.join("s.png").to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+}

@@ -33,6 +33,12 @@ pub struct Args {
     pub size: (u32, u32),
     #[command(flatten)]
     pub view: ViewArgs,
+    /// Unpolarized light seen through an ideal circular analyser passing
+    /// this handedness. Without it and without --polarization, a scene
+    /// whose left and right differ is shown unpolarized and through a left
+    /// and a right analyser side by side.
+    #[arg(long, value_enum)]
+    pub analyzer: Option<super::choices::HandednessChoice>,
 }
 
 /// Where a report came from.
@@ -80,7 +86,9 @@ struct Drawn {
 pub fn run(args: &Args) -> CliResult {
     let scene = load_scene(&args.scene)?;
     super::film_scene(&args.scene, &scene, "report")?;
-    let viewing = args.view.viewing(&scene, &args.scene)?;
+    let viewing = args
+        .view
+        .viewing_through(&scene, &args.scene, args.analyzer.map(Into::into))?;
     let at = |e| Failure::scene(&args.scene, e);
     std::fs::create_dir_all(&args.output).map_err(|e| Failure::io(&args.output, e))?;
     let pair = [(&scene, &viewing)];
@@ -149,7 +157,8 @@ pub fn run(args: &Args) -> CliResult {
         })?;
     }
     bar.finish();
-    let series = Series::of_scene(&scene, &viewing).map_err(at)?;
+    let views = Series::side_by_side(&scene, &viewing, false).map_err(at)?;
+    let series = &views[0].0;
     // A stack too long to resolve layer by layer goes without the table.
     let absorption = match scene.layer_absorption() {
         Ok(a) => Some(a),
@@ -159,7 +168,8 @@ pub fn run(args: &Args) -> CliResult {
     let html = page(
         &scene,
         &viewing,
-        &series,
+        series,
+        &views,
         absorption.as_ref().filter(|a| a.absorbs()),
         &drawn,
         &Provenance::of_this_run(),
@@ -210,6 +220,7 @@ fn page(
     scene: &Scene,
     viewing: &Viewing,
     series: &Series,
+    views: &[(Series, Viewing)],
     absorption: Option<&LayerAbsorption>,
     drawn: &[Drawn],
     made: &Provenance,
@@ -316,6 +327,9 @@ fn page(
         );
     }
     h.push_str("</section>\n");
+    if views.len() > 1 {
+        handedness_table(views, &mut h);
+    }
     if let Some(a) = absorption {
         absorption_table(scene, a, &mut h);
     }
@@ -338,6 +352,34 @@ fn page(
         escape(&made.command)
     );
     h
+}
+
+/// For a scene whose left and right differ: the colour at each angle
+/// unpolarized and through a left and a right analyser side by side, with
+/// the handedness convention.
+fn handedness_table(views: &[(Series, Viewing)], h: &mut String) {
+    h.push_str("<section><h2>Left and right circular polarization</h2><p>This design treats left- and right-handed circularly polarized light differently. Each angle is shown in unpolarized light, and in unpolarized light with the reflection seen through an ideal circular analyser (as through circular-polarizer glasses) passing left- or right-handed light. Handedness is named by the helix the electric-field vector traces in space at one instant, so it does not depend on where one looks from: a left-handed helix reflects left-handed light at normal incidence, and a metal mirror turns left-handed light into right-handed.</p><table><thead><tr><th>Angle</th>");
+    for (s, _) in views {
+        let _ = write!(h, "<th colspan=2>{}</th>", escape(&s.label));
+    }
+    h.push_str("</tr></thead><tbody>\n");
+    for (i, a) in views[0].0.angles.iter().enumerate() {
+        let _ = write!(h, "<tr><td class=n>{a}°</td>");
+        for (s, _) in views {
+            let c = &s.colours[i];
+            let _ = write!(
+                h,
+                "<td><span class=sw style=\"background:{hex}\"></span></td><td>{}{hex} · L* {:.1} a* {:.1} b* {:.1}</td>",
+                if c.in_gamut { "" } else { "≈ " },
+                c.lab[0],
+                c.lab[1],
+                c.lab[2],
+                hex = c.hex,
+            );
+        }
+        h.push_str("</tr>\n");
+    }
+    h.push_str("</tbody></table><p>≈: outside the sRGB gamut; the swatch is an approximation.</p></section>\n");
 }
 
 /// The mean absorptance of each layer as written (and the sheet and
