@@ -78,6 +78,16 @@ impl Polarization {
         }
     }
 
+    /// The fraction of light on `side` for this polarization at one point:
+    /// from its Jones matrices when given (they are needed for left- and
+    /// right-handed light on an anisotropic stack), else from R and T.
+    pub fn of_point(self, x: &Rt, jones: Option<&Jones>, side: Side) -> f64 {
+        match jones {
+            Some(j) => self.of_jones(j, side),
+            None => self.of(x, side),
+        }
+    }
+
     /// The fraction of light on `side` for this polarization from a point's
     /// Jones matrices (any stack): totals per incident polarization, the
     /// mean of the two for unpolarized light.
@@ -92,6 +102,18 @@ impl Polarization {
             Polarization::S => pick(j.powers(), 1),
             Polarization::Left => pick(j.circular().powers(), 0),
             Polarization::Right => pick(j.circular().powers(), 1),
+        }
+    }
+
+    /// The light's polarization in words: "unpolarized", "s-polarized",
+    /// "left-circular" …
+    pub fn label(self) -> &'static str {
+        match self {
+            Polarization::Unpolarized => "unpolarized",
+            Polarization::S => "s-polarized",
+            Polarization::P => "p-polarized",
+            Polarization::Left => "left-circular",
+            Polarization::Right => "right-circular",
         }
     }
 
@@ -174,15 +196,25 @@ impl Viewing {
     ) -> Colour {
         scratch.clear();
         match jones {
-            Some(js) => scratch.extend(js.iter().map(|j| self.fraction(j))),
-            None => scratch.extend(rt.iter().map(|x| self.polarization.of(x, self.side))),
+            Some(js) => scratch.extend(rt.iter().zip(js).map(|(x, j)| self.fraction(x, Some(j)))),
+            None => scratch.extend(rt.iter().map(|x| self.fraction(x, None))),
         }
         Colour::new(weights.xyz(scratch), weights.white(), &self.options)
     }
 
-    /// The fraction of light seen at one point from its Jones matrices
-    /// ([`seen_in_jones`] for this viewing).
-    pub fn fraction(&self, j: &Jones) -> f64 {
+    /// The fraction of light seen at one point, from its Jones matrices when
+    /// given ([`seen_in_jones`] for this viewing; an analyser needs them:
+    /// without them the light's own polarization is used, so callers go
+    /// through [`Viewing::spectra_of`]).
+    pub fn fraction(&self, x: &Rt, jones: Option<&Jones>) -> f64 {
+        match jones {
+            Some(j) => self.of_jones(j),
+            None => self.polarization.of(x, self.side),
+        }
+    }
+
+    /// The fraction of light seen at one point from its Jones matrices.
+    pub fn of_jones(&self, j: &Jones) -> f64 {
         seen_in_jones(j, self.side, self.polarization, self.analyzer)
     }
 }
@@ -207,6 +239,83 @@ pub fn seen_in_jones(
             }
         }
     }
+}
+
+impl Viewing {
+    /// The scene's spectra at `angles_deg` as this viewing needs them: with
+    /// the Jones matrices for an analyser (and always for an anisotropic
+    /// scene, whose R and T come from them).
+    pub fn spectra_of(&self, scene: &Scene, angles_deg: &[f64]) -> Result<Spectra> {
+        if self.analyzer.is_some() {
+            scene.spectra_with_jones_at(angles_deg)
+        } else {
+            scene.spectra_at(angles_deg)
+        }
+    }
+
+    /// True for unpolarized light seen without an analyser: the viewing
+    /// that charts and reports widen to both handednesses ([`side_by_side`]).
+    pub fn plain(&self) -> bool {
+        self.polarization == Polarization::Unpolarized && self.analyzer.is_none()
+    }
+
+    /// This viewing through an ideal circular analyser passing `h`.
+    pub fn through(&self, h: Handedness) -> Viewing {
+        Viewing {
+            analyzer: Some(h),
+            ..self.clone()
+        }
+    }
+
+    /// This viewing with light of polarization `p` (no analyser).
+    pub fn lit(&self, p: Polarization) -> Viewing {
+        Viewing {
+            polarization: p,
+            analyzer: None,
+            ..self.clone()
+        }
+    }
+
+    /// What reaches the eye in words: "unpolarized", "left-circular",
+    /// "through a left analyser" (unpolarized light).
+    pub fn seen(&self) -> String {
+        match self.analyzer {
+            Some(h) => format!("through a {} analyser", h.name()),
+            None => self.polarization.label().into(),
+        }
+    }
+}
+
+/// Reflectance or transmittance differences below this are taken as equal
+/// when deciding whether left and right differ ([`handed`]).
+pub const HANDED_TOLERANCE: f64 = 1e-6;
+
+/// True when left- and right-handed light differ somewhere on the grid of
+/// `spectra`: incident left against right, or unpolarized light seen through
+/// a left against a right analyser, reflected or transmitted, by more than
+/// [`HANDED_TOLERANCE`]. Spectra without Jones matrices (isotropic stacks,
+/// which never tell the handednesses apart) are not handed.
+pub fn handed(spectra: &Spectra) -> bool {
+    spectra.jones.iter().flatten().any(|j| {
+        let c = j.circular();
+        let [r0, r1, t0, t1] = c.powers();
+        let [a0, a1, b0, b1] = c.analysed();
+        [(r0, r1), (t0, t1), (a0, a1), (b0, b1)]
+            .iter()
+            .any(|(l, r)| (l - r).abs() > HANDED_TOLERANCE)
+    })
+}
+
+/// The viewings a chart or report shows for `viewing`: itself, and for a
+/// [`Viewing::plain`] view of [`handed`] spectra also unpolarized light
+/// through a left and through a right analyser, as one sees a chiral film
+/// through circular-polarizer glasses.
+pub fn side_by_side(viewing: &Viewing, spectra: &Spectra) -> Vec<Viewing> {
+    let mut out = vec![viewing.clone()];
+    if viewing.plain() && handed(spectra) {
+        out.extend([Handedness::Left, Handedness::Right].map(|h| viewing.through(h)));
+    }
+    out
 }
 
 /// The colour at every angle of `spectra`; a spectrum value that is not a

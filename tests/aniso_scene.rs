@@ -535,30 +535,11 @@ fn bad_anisotropic_input_exits_2_naming_file_and_key() {
 }
 
 #[test]
-fn tools_for_isotropic_stacks_refuse_anisotropic_scenes() {
+fn the_analyser_takes_unpolarized_light_only() {
     let dir = temp_dir("aniso-tools");
-    let mut s = cholesteric("left", 0.0, 4, json!([0]));
-    s["stack"][0]["vary_nm"] = json!([1000, 2000]);
+    let s = cholesteric("left", 0.0, 4, json!([0]));
     let p = write(&dir, "tools.json", &s);
     let path = p.to_str().unwrap();
-    let png = dir.join("c.png");
-    for args in [
-        vec![
-            "chart",
-            path,
-            "--kind",
-            "angle-strip",
-            "-o",
-            png.to_str().unwrap(),
-        ],
-        vec!["report", path, "-o", dir.join("r").to_str().unwrap()],
-    ] {
-        let out = lamella(&args);
-        let err = String::from_utf8_lossy(&out.stderr);
-        assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
-        assert!(err.contains("anisotropic"), "{args:?}: {err}");
-    }
-    // The analyser takes unpolarized light only.
     let out = lamella(&["color", path, "--analyzer", "left", "--polarization", "s"]);
     assert_eq!(out.status.code(), Some(2));
 }

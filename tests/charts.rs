@@ -7,7 +7,7 @@ use common::lamella;
 
 use std::path::{Path, PathBuf};
 
-use lamella::angle_colour::Viewing;
+use lamella::angle_colour::{Polarization, Viewing};
 use lamella::chart::{self, AbTravel, AngleStrip, Chromaticity, ReflectanceMap, SpectraChart};
 use lamella::chart::{BandsChart, FieldChart, ThicknessAngle, Variation};
 use lamella::scene::Scene;
@@ -70,10 +70,14 @@ fn strip_pixels_equal_the_color_command() {
             .iter()
             .map(|v| (v.as_f64().unwrap() * 255.0).round() as i32)
             .collect();
-        let sample = strip.samples.iter().find(|x| x.angle_deg == angle).unwrap();
+        let sample = strip.rows[0]
+            .samples
+            .iter()
+            .find(|x| x.angle_deg == angle)
+            .unwrap();
         let shown = sample.shown.colour();
         let shown = [shown.0 as i32, shown.1 as i32, shown.2 as i32];
-        let got = pixel(&rgb, size, strip.pixel_of(size, angle));
+        let got = pixel(&rgb, size, strip.pixel_of(size, 0, angle));
         for k in 0..3 {
             assert!(
                 (got[k] as i32 - shown[k]).abs() <= 1,
@@ -117,11 +121,16 @@ fn strip_marks_out_of_gamut_angles_and_only_those() {
     let s = teal();
     let v = Viewing::of_scene(&s).unwrap();
     let strip = AngleStrip::compute(&s, &v, None).unwrap();
-    assert_eq!(strip.outside.len(), 1, "{:?}", strip.outside);
-    let (a, b) = strip.outside[0];
+    assert_eq!(
+        strip.rows[0].outside.len(),
+        1,
+        "{:?}",
+        strip.rows[0].outside
+    );
+    let (a, b) = strip.rows[0].outside[0];
     assert_eq!(a, 0.0);
     assert!(b > 35.0 && b < 42.0, "{b}");
-    for x in &strip.samples {
+    for x in &strip.rows[0].samples {
         assert_eq!(
             !x.colour.in_gamut,
             x.angle_deg <= b,
@@ -133,7 +142,7 @@ fn strip_marks_out_of_gamut_angles_and_only_those() {
     let size = (1200, 800);
     let rgb = chart::rgb(&strip, size).unwrap();
     let marked = |angle: f64| {
-        let (x, _, (m0, m1)) = strip.rows_of(size, angle);
+        let (x, _, (m0, m1)) = strip.rows_of(size, 0, angle);
         (m0..=m1).any(|y| (x - 4..=x + 4).any(|xx| dark(pixel(&rgb, size, (xx, y)))))
     };
     for angle in [2.0, 10.0, 25.0, b - 2.0] {
@@ -148,11 +157,11 @@ fn strip_marks_out_of_gamut_angles_and_only_those() {
     let pale = scene(PALE);
     let v = Viewing::of_scene(&pale).unwrap();
     let strip = AngleStrip::compute(&pale, &v, None).unwrap();
-    assert!(strip.samples.iter().all(|x| x.colour.in_gamut));
-    assert!(strip.outside.is_empty());
+    assert!(strip.rows[0].samples.iter().all(|x| x.colour.in_gamut));
+    assert!(strip.rows[0].outside.is_empty());
     let rgb = chart::rgb(&strip, size).unwrap();
-    let (x0, _, (m0, m1)) = strip.rows_of(size, 0.0);
-    let (x1, _, _) = strip.rows_of(size, 60.0);
+    let (x0, _, (m0, m1)) = strip.rows_of(size, 0, 0.0);
+    let (x1, _, _) = strip.rows_of(size, 0, 60.0);
     for y in m0..=m1 {
         for x in x0..=x1 {
             assert_eq!(pixel(&rgb, size, (x, y)), [255; 3], "mark at ({x}, {y})");
@@ -191,10 +200,10 @@ fn strip_has_no_seam_at_the_gamut_edge() {
     let v = Viewing::of_scene(&s).unwrap();
     let strip = AngleStrip::compute(&s, &v, None).unwrap();
     let white = v.weights(&s.wavelengths_nm).unwrap().white();
-    let edge = strip.outside[0].1;
+    let edge = strip.rows[0].outside[0].1;
     let lab = |rgb: [f64; 3]| xyz_to_lab(rgb_to_xyz_under(rgb, white, RgbSpace::Srgb), white);
     let window = |lo: f64, hi: f64, shown: bool| -> Vec<[f64; 3]> {
-        strip
+        strip.rows[0]
             .samples
             .iter()
             .filter(|x| x.angle_deg >= lo && x.angle_deg <= hi)
@@ -215,9 +224,9 @@ fn strip_has_no_seam_at_the_gamut_edge() {
 
     let size = (1200, 800);
     let rgb = chart::rgb(&strip, size).unwrap();
-    let (xe, (y0, y1), _) = strip.rows_of(size, edge);
-    let (xa, _, _) = strip.rows_of(size, 0.0);
-    let (xb, _, _) = strip.rows_of(size, 75.0);
+    let (xe, (y0, y1), _) = strip.rows_of(size, 0, edge);
+    let (xa, _, _) = strip.rows_of(size, 0, 0.0);
+    let (xb, _, _) = strip.rows_of(size, 0, 75.0);
     let y = (y0 + y1) / 2;
     let step = |x: i32| -> i32 {
         let (p, q) = (pixel(&rgb, size, (x, y)), pixel(&rgb, size, (x + 1, y)));
@@ -333,7 +342,7 @@ fn all_kinds() -> Vec<(&'static str, String, Vec<u8>)> {
     ];
     both_formats!(
         "spectra",
-        SpectraChart::compute(&both, &[0.0, 60.0], &pols, true).unwrap()
+        SpectraChart::compute(&both, &[0.0, 60.0], Some(&pols), true).unwrap()
     );
     both_formats!("map", ReflectanceMap::compute(&a, &va).unwrap());
     both_formats!("chromaticity", Chromaticity::compute(&both).unwrap());
@@ -725,4 +734,102 @@ fn has_utc_timestamp(text: &str) -> bool {
 #[test]
 fn readme_cautions_are_the_library_cautions() {
     assert_eq!(readme_cautions(), lamella::report::CAUTIONS.to_vec());
+}
+
+/// A chiral scene's strip shows unpolarized light and the views through a
+/// left and a right analyser side by side, each row's swatches equal to
+/// `lamella color` with that analyser; its spectra default to unpolarized,
+/// left- and right-circular curves and its map to one panel per handedness.
+#[test]
+fn chiral_strip_rows_equal_the_color_command_per_analyser() {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/cnc_giftbox_window.json");
+    let s = scene(&std::fs::read_to_string(&path).unwrap());
+    let v = Viewing::of_scene(&s).unwrap();
+    let strip = AngleStrip::compute(&s, &v, Some(&[0.0, 15.0, 30.0, 45.0, 60.0])).unwrap();
+    let labels: Vec<&str> = strip.rows.iter().map(|r| r.label.as_str()).collect();
+    assert_eq!(
+        labels,
+        [
+            "unpolarized",
+            "through a left analyser",
+            "through a right analyser"
+        ]
+    );
+    for (row, analyzer) in strip.rows.iter().zip([None, Some("left"), Some("right")]) {
+        let mut args = vec!["color", path.to_str().unwrap(), "--format", "json"];
+        args.extend(analyzer.iter().flat_map(|a| ["--analyzer", a]));
+        let out = lamella(&args);
+        assert!(out.status.success());
+        let records: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        let hexes: Vec<&str> = records
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|r| r["hex"].as_str().unwrap())
+            .collect();
+        let ticks: Vec<&str> = row.ticks.iter().map(|(_, c)| c.hex.as_str()).collect();
+        assert_eq!(ticks, hexes, "{analyzer:?}");
+    }
+    // Left-handed film: through the left analyser it is bluer and brighter
+    // at normal incidence than through the right one.
+    assert!(strip.rows[1].ticks[0].1.lab[0] > strip.rows[2].ticks[0].1.lab[0] + 3.0);
+    let spectra = SpectraChart::compute(&[(&s, &v)], &[0.0], None, false).unwrap();
+    assert_eq!(
+        spectra.polarizations,
+        [
+            Polarization::Unpolarized,
+            Polarization::Left,
+            Polarization::Right
+        ]
+    );
+    let map = ReflectanceMap::compute(&s, &v).unwrap();
+    assert_eq!(map.beside.len(), 1);
+    // Isotropic scenes keep one row and the s, p curves.
+    let m = scene(MIRROR);
+    let vm = Viewing::of_scene(&m).unwrap();
+    assert_eq!(AngleStrip::compute(&m, &vm, None).unwrap().rows.len(), 1);
+    assert!(ReflectanceMap::compute(&m, &vm).unwrap().beside.is_empty());
+    for (name, bytes) in [
+        ("strip", chart::png(&strip, (1200, 800)).unwrap()),
+        ("map", chart::png(&map, (1200, 800)).unwrap()),
+    ] {
+        assert!(bytes.len() > 1000, "{name}");
+    }
+}
+
+/// `lamella report` takes a chiral scene: the page shows the colours
+/// unpolarized and through each analyser side by side and states the
+/// handedness convention; `chart --analyzer` is refused for spectra.
+#[test]
+fn chiral_report_shows_both_handednesses() {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/cnc_giftbox_window.json");
+    let d = dir("chiral-report");
+    let out = lamella(&[
+        "report",
+        path.to_str().unwrap(),
+        "-o",
+        d.join("r").to_str().unwrap(),
+        "--size",
+        "640x400",
+    ]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let html = std::fs::read_to_string(d.join("r/index.html")).unwrap();
+    assert!(html.contains("Left and right circular polarization"));
+    assert!(html.contains("<th colspan=2>Through a left analyser</th>"));
+    assert!(html.contains("a left-handed helix reflects left-handed light at normal incidence"));
+    let out = lamella(&[
+        "chart",
+        path.to_str().unwrap(),
+        "--kind",
+        "spectra",
+        "--analyzer",
+        "left",
+        "-o",
+        d.join("s.png").to_str().unwrap(),
+    ]);
+    assert_eq!(out.status.code(), Some(2));
 }

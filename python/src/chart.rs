@@ -166,8 +166,8 @@ fn polarizations(names: &[String]) -> Outcome<Vec<Polarization>> {
 /// chart(scene, kind="angle-strip", size=(1200, 800), compare=None,
 /// illuminant=None, observer=None, side="reflect",
 /// polarization="unpolarized", gamut="clip", ticks=None, angles=(0, 30, 60),
-/// curves=("unpolarized", "s", "p"), transmittance=False, layer=None,
-/// thickness_range=None, scale_range=None, steps=61) -> Chart
+/// curves=None, transmittance=False, layer=None, thickness_range=None,
+/// scale_range=None, steps=None, analyzer=None) -> Chart
 ///
 /// A chart of colour against angle, as `lamella chart` draws it. Kinds:
 /// "angle-strip" (the colour at every angle, swatches at `ticks` degrees),
@@ -186,8 +186,8 @@ fn polarizations(names: &[String]) -> Outcome<Vec<Polarization>> {
 #[pyfunction(name = "chart")]
 #[pyo3(signature = (scene, kind="angle-strip", size=(1200, 800), compare=None, illuminant=None,
     observer=None, side="reflect", polarization="unpolarized", gamut="clip", ticks=None,
-    angles=vec![0.0, 30.0, 60.0], curves=vec!["unpolarized".into(), "s".into(), "p".into()],
-    transmittance=false, layer=None, thickness_range=None, scale_range=None, steps=61,
+    angles=vec![0.0, 30.0, 60.0], curves=None,
+    transmittance=false, layer=None, thickness_range=None, scale_range=None, steps=None,
     wavelength=None, angle=0.0, with_reflectance=false))]
 #[allow(clippy::too_many_arguments)]
 pub fn chart_of(
@@ -203,12 +203,12 @@ pub fn chart_of(
     gamut: &str,
     ticks: Option<Vec<f64>>,
     angles: Vec<f64>,
-    curves: Vec<String>,
+    curves: Option<Vec<String>>,
     transmittance: bool,
     layer: Option<usize>,
     thickness_range: Option<(f64, f64)>,
     scale_range: Option<(f64, f64)>,
-    steps: usize,
+    steps: Option<usize>,
     wavelength: Option<f64>,
     angle: f64,
     with_reflectance: bool,
@@ -260,7 +260,7 @@ pub fn chart_of(
         }
         scenes.push((s, viewing));
     }
-    let curves = polarizations(&curves)?;
+    let curves = curves.as_deref().map(polarizations).transpose()?;
     let variation = match (layer, scale_range) {
         (Some(_), Some(_)) => {
             return Err(Failure::input(
@@ -285,13 +285,18 @@ pub fn chart_of(
                 Kind::Strip(AngleStrip::compute(first, viewing, ticks.as_deref()).map_err(at)?)
             }
             "thickness-angle" => Kind::Thickness(
-                ThicknessAngle::compute(first, viewing, &variation, steps, &|| {
-                    stop.unwind_if_requested()
-                })
+                ThicknessAngle::compute(
+                    first,
+                    viewing,
+                    &variation,
+                    steps.unwrap_or_else(|| ThicknessAngle::default_steps(first)),
+                    &|| stop.unwind_if_requested(),
+                )
                 .map_err(at)?,
             ),
             "spectra" => Kind::Spectra(
-                SpectraChart::compute(&pairs, &angles, &curves, transmittance).map_err(at)?,
+                SpectraChart::compute(&pairs, &angles, curves.as_deref(), transmittance)
+                    .map_err(at)?,
             ),
             "map" => Kind::Map(ReflectanceMap::compute(first, viewing).map_err(at)?),
             "chromaticity" => Kind::Chromaticity(Chromaticity::compute(&pairs).map_err(at)?),

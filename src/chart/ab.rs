@@ -25,17 +25,17 @@ pub struct AbTravel {
 impl AbTravel {
     /// The trajectory of each scene.
     pub fn compute(scenes: &[(&Scene, &Viewing)]) -> Result<Self> {
-        let series = scenes
-            .iter()
-            .map(|(s, v)| Series::of_scene(s, v))
-            .collect::<Result<Vec<_>>>()?;
+        let (series, seen) = Series::of_scenes(scenes)?;
         let titles: Vec<&str> = scenes.iter().map(|(s, _)| s.title.as_str()).collect();
         Ok(AbTravel {
-            caption: Caption::new(
-                &titles,
-                "CIELAB a*, b* and lightness L* against angle of incidence",
-                scenes[0].1,
-            ),
+            caption: Caption {
+                viewing: seen,
+                ..Caption::new(
+                    &titles,
+                    "CIELAB a*, b* and lightness L* against angle of incidence",
+                    scenes[0].1,
+                )
+            },
             series,
             angle_axis: "Angle of incidence (degrees)".into(),
         })

@@ -3,10 +3,9 @@
 
 use plotters::coord::Shift;
 use plotters::prelude::*;
-use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::map::{ReflectanceMap, edges};
-use super::style::{self, Caption, FRAME, GRID, INK, SERIES, Style, frame};
+use super::style::{self, Caption, FRAME, GRID, SERIES, Style, frame, titled};
 use super::{Chart, DrawResult};
 use crate::angle_colour::Viewing;
 use crate::error::Result;
@@ -114,21 +113,6 @@ impl BandsChart {
         )?;
         Ok(())
     }
-}
-
-/// The title above a panel, and the area left below it.
-fn titled<DB: DrawingBackend>(
-    area: &DrawingArea<DB, Shift>,
-    s: &Style,
-    title: &str,
-) -> std::result::Result<DrawingArea<DB, Shift>, DrawingAreaErrorKind<DB::ErrorType>> {
-    let (top, rest) = area.split_vertically(s.px(30.0));
-    top.draw(&Text::new(
-        title.to_string(),
-        (s.px(74.0), s.px(4.0)),
-        s.bold(15.0, INK).pos(Pos::new(HPos::Left, VPos::Top)),
-    ))?;
-    Ok(rest)
 }
 
 impl Chart for BandsChart {

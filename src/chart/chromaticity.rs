@@ -50,21 +50,21 @@ impl Chromaticity {
     /// light, observer and white point.
     pub fn compute(scenes: &[(&Scene, &Viewing)]) -> Result<Self> {
         let (first, viewing) = scenes[0];
-        let series = scenes
-            .iter()
-            .map(|(s, v)| Series::of_scene(s, v))
-            .collect::<Result<Vec<_>>>()?;
+        let (series, seen) = Series::of_scenes(scenes)?;
         let white = viewing.weights(&first.wavelengths_nm)?.white();
         let titles: Vec<&str> = scenes.iter().map(|(s, _)| s.title.as_str()).collect();
         Ok(Chromaticity {
-            caption: Caption::new(
-                &titles,
-                &format!(
-                    "Chromaticity against angle of incidence ({} xy diagram)",
-                    style::observer_name(viewing.observer)
-                ),
-                viewing,
-            ),
+            caption: Caption {
+                viewing: seen,
+                ..Caption::new(
+                    &titles,
+                    &format!(
+                        "Chromaticity against angle of incidence ({} xy diagram)",
+                        style::observer_name(viewing.observer)
+                    ),
+                    viewing,
+                )
+            },
             observer: viewing.observer,
             locus: viewing.observer.spectrum_locus(),
             white: chromaticity(white, white),

@@ -6,16 +6,17 @@ use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
 use plotters::style::colors::colormaps::{ColorMap, ViridisRGB};
 
-use super::style::{self, Caption, FRAME, Style, frame};
+use super::style::{self, Caption, FRAME, Style, capitalised, describe_all, frame, titled};
 use super::{Chart, DrawResult};
-use crate::angle_colour::{Side, Viewing};
+use crate::angle_colour::{Polarization, Side, Viewing, handed};
 use crate::error::Result;
 use crate::scene::Scene;
 
 /// A chart with wavelength across and angle up.
 pub(super) type Plot<'a, DB> = ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
 
-/// Values on the scene's wavelength × angle grid.
+/// Values on the scene's wavelength × angle grid, in one panel or, for a
+/// scene whose left and right differ, one panel per handedness.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ReflectanceMap {
     /// Header text.
@@ -26,23 +27,55 @@ pub struct ReflectanceMap {
     pub wavelengths: Vec<f64>,
     /// Angles in degrees.
     pub angles: Vec<f64>,
-    /// Fractions 0–1, angle-major.
+    /// Fractions 0–1, angle-major, of the first panel.
     pub values: Vec<f64>,
+    /// Further panels drawn beside the first: (heading, values); the first
+    /// panel's heading is [`ReflectanceMap::heading`].
+    pub beside: Vec<(String, Vec<f64>)>,
+    /// The first panel's heading when panels stand side by side.
+    pub heading: String,
     /// Top of the colour scale (a fraction): the smallest of 5, 10, 20, 25,
     /// 50, 75, 100 % holding the largest value, so weak features stay visible.
     pub top: f64,
 }
 
 impl ReflectanceMap {
-    /// The scene's spectra for the side and polarization of `viewing`.
+    /// The scene's spectra for the side and polarization of `viewing`; for
+    /// unpolarized light on a scene whose left and right differ
+    /// ([`handed`]), two panels: left- and right-circular incident light.
     pub fn compute(scene: &Scene, viewing: &Viewing) -> Result<Self> {
-        let spectra = scene.spectra()?;
-        let values: Vec<f64> = spectra
-            .rt
+        let spectra = viewing.spectra_of(scene, &scene.angles_deg)?;
+        let views = if viewing.plain() && handed(&spectra) {
+            vec![
+                viewing.lit(Polarization::Left),
+                viewing.lit(Polarization::Right),
+            ]
+        } else {
+            vec![viewing.clone()]
+        };
+        let nw = spectra.wavelengths_nm.len();
+        let mut panels: Vec<(String, Vec<f64>)> = views
             .iter()
-            .map(|x| viewing.polarization.of(x, viewing.side))
+            .map(|v| {
+                let values = spectra
+                    .rt
+                    .iter()
+                    .enumerate()
+                    .map(|(i, x)| v.fraction(x, spectra.jones.as_ref().map(|j| &j[i])))
+                    .collect();
+                (format!("{} incident light", capitalised(&v.seen())), values)
+            })
             .collect();
-        let max = values.iter().copied().fold(0.0, f64::max);
+        debug_assert!(
+            panels
+                .iter()
+                .all(|(_, v)| v.len() == nw * spectra.angles_deg.len())
+        );
+        let max = panels
+            .iter()
+            .flat_map(|(_, v)| v)
+            .copied()
+            .fold(0.0, f64::max);
         let top = [0.05, 0.1, 0.2, 0.25, 0.5, 0.75, 1.0]
             .into_iter()
             .find(|&t| max <= t + 1e-12)
@@ -51,16 +84,22 @@ impl ReflectanceMap {
             Side::Reflect => "Reflectance",
             Side::Transmit => "Transmittance",
         };
+        let (heading, values) = panels.remove(0);
         Ok(ReflectanceMap {
-            caption: Caption::new(
-                &[&scene.title],
-                &format!("{quantity} over wavelength and angle of incidence"),
-                viewing,
-            ),
+            caption: Caption {
+                viewing: describe_all(&views),
+                ..Caption::new(
+                    &[&scene.title],
+                    &format!("{quantity} over wavelength and angle of incidence"),
+                    viewing,
+                )
+            },
             quantity,
             wavelengths: spectra.wavelengths_nm,
             angles: spectra.angles_deg,
             values,
+            beside: panels,
+            heading,
             top,
         })
     }
@@ -99,15 +138,26 @@ impl ReflectanceMap {
             .x_labels(x_labels)
             .y_labels(10)
             .draw()?;
+        self.cells(&mut chart, &self.values)?;
+        Ok(chart)
+    }
+
+    /// The heat map's cells of `values` on `chart`.
+    fn cells<DB: DrawingBackend>(
+        &self,
+        chart: &mut Plot<'_, DB>,
+        values: &[f64],
+    ) -> DrawResult<DB> {
+        let (we, ae) = (edges(&self.wavelengths), edges(&self.angles));
         let nw = self.wavelengths.len();
-        chart.draw_series(self.values.iter().enumerate().map(|(i, &v)| {
+        chart.draw_series(values.iter().enumerate().map(|(i, &v)| {
             let (a, k) = (i / nw, i % nw);
             Rectangle::new(
                 [(we[k], ae[a]), (we[k + 1], ae[a + 1])],
                 self.colour(v).filled(),
             )
         }))?;
-        Ok(chart)
+        Ok(())
     }
 
     /// The colour bar on `area`.
@@ -170,7 +220,20 @@ impl Chart for ReflectanceMap {
         let body = frame(root, &self.caption, &s)?;
         let (w, _) = body.dim_in_pixel();
         let (left, right) = body.split_horizontally(w as i32 - s.px(150.0));
-        self.heat(&left, &s, 10)?;
-        self.colour_bar(&right, &s)
+        self.colour_bar(&right, &s)?;
+        if self.beside.is_empty() {
+            self.heat(&left, &s, 10)?;
+            return Ok(());
+        }
+        let n = self.beside.len() + 1;
+        let panels = left.split_evenly((1, n));
+        let labels = 10 / n;
+        self.heat(&titled(&panels[0], &s, &self.heading)?, &s, labels)?;
+        for (area, (heading, values)) in panels[1..].iter().zip(&self.beside) {
+            let panel = titled(area, &s, heading)?;
+            let mut chart = self.heat(&panel, &s, labels)?;
+            self.cells(&mut chart, values)?;
+        }
+        Ok(())
     }
 }

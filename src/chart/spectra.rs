@@ -7,8 +7,9 @@ use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::style::{self, Caption, INK, SERIES, Style, frame, mesh, short};
 use super::{Chart, DrawResult};
-use crate::angle_colour::{Polarization, Side, Viewing};
+use crate::angle_colour::{Polarization, Side, Viewing, handed};
 use crate::error::{Error, Result};
+use crate::optics::Spectra;
 use crate::scene::Scene;
 
 /// One (scene, angle, polarization) curve.
@@ -55,24 +56,16 @@ fn dash(p: Polarization) -> (u32, u32) {
     }
 }
 
-/// The light's polarization in words (also the charts' subtitles).
-pub(super) fn pol_label(p: Polarization) -> &'static str {
-    match p {
-        Polarization::Unpolarized => "unpolarized",
-        Polarization::S => "s-polarized",
-        Polarization::P => "p-polarized",
-        Polarization::Left => "left-circular",
-        Polarization::Right => "right-circular",
-    }
-}
-
 impl SpectraChart {
     /// Spectra of each scene at `angles` (degrees) on the scene's own
-    /// wavelength grid; the first scene's viewing names the light.
+    /// wavelength grid for `polarizations` (by default unpolarized, s and
+    /// p, or unpolarized, left- and right-circular when a scene's left and
+    /// right differ, see [`handed`]); the first scene's viewing names the
+    /// light.
     pub fn compute(
         scenes: &[(&Scene, &Viewing)],
         angles: &[f64],
-        polarizations: &[Polarization],
+        polarizations: Option<&[Polarization]>,
         transmittance: bool,
     ) -> Result<Self> {
         if let Some(&a) = angles.iter().find(|a| !(a.abs() < 90.0)) {
@@ -82,6 +75,19 @@ impl SpectraChart {
                 "angles of incidence must lie below 90°",
             ));
         }
+        let all: Vec<Spectra> = scenes
+            .iter()
+            .map(|(scene, _)| scene.spectra_at(angles))
+            .collect::<Result<_>>()?;
+        let polarizations = polarizations.unwrap_or(if all.iter().any(handed) {
+            &[
+                Polarization::Unpolarized,
+                Polarization::Left,
+                Polarization::Right,
+            ]
+        } else {
+            &[Polarization::Unpolarized, Polarization::S, Polarization::P]
+        });
         if angles.is_empty() || polarizations.is_empty() {
             return Err(Error::invalid(
                 "angles",
@@ -102,8 +108,7 @@ impl SpectraChart {
         }
         let mut legend = Vec::new();
         let mut curves = Vec::new();
-        for (scene, _) in scenes {
-            let spectra = scene.spectra_at(angles)?;
+        for ((scene, _), spectra) in scenes.iter().zip(&all) {
             for (a, angle) in angles.iter().enumerate() {
                 let series = legend.len();
                 legend.push(if scenes.len() == 1 {
@@ -112,12 +117,16 @@ impl SpectraChart {
                     format!("{} · {}°", short(&scene.title), style::tick(angle))
                 });
                 for &p in polarizations {
+                    let jones = spectra.jones_at_angle(a);
                     let points = |side| {
                         spectra
                             .wavelengths_nm
                             .iter()
                             .zip(spectra.at_angle(a))
-                            .map(|(&w, x)| (w, 100.0 * p.of(x, side)))
+                            .enumerate()
+                            .map(|(w, (&nm, x))| {
+                                (nm, 100.0 * p.of_point(x, jones.map(|j| &j[w]), side))
+                            })
                             .collect()
                     };
                     curves.push(Curve {
@@ -373,7 +382,7 @@ impl SpectraChart {
                 }
             }
             area.draw(&Text::new(
-                pol_label(p),
+                p.label(),
                 (left + s.px(44.0), y),
                 s.text(14.0, INK).pos(label),
             ))?;
@@ -395,7 +404,7 @@ fn pol_list(p: &[Polarization]) -> String {
                 Polarization::Left => "long dashes",
                 Polarization::Right => "short dashes",
             };
-            format!("{} ({how})", pol_label(p))
+            format!("{} ({how})", p.label())
         })
         .collect();
     names.join(", ")

@@ -11,12 +11,13 @@ use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::canvas::{Canvas, Svg};
 use super::gamut::{self, Shown, SoftEdge, hatch};
-use super::style::{self, Caption, FRAME, INK, MUTED, SERIES, Style, frame, num, swatch};
+use super::style::{
+    self, Caption, FRAME, INK, MUTED, SERIES, Style, capitalised, frame, num, swatch,
+};
 use super::{Chart, DrawResult};
-use crate::angle_colour::{Viewing, angle_colours};
+use crate::angle_colour::{Viewing, angle_colours, side_by_side};
 use crate::colorimetry::Colour;
 use crate::error::{Error, Result};
-use crate::optics;
 use crate::scene::Scene;
 
 /// Most swatches under a strip (more would not leave room for their values).
@@ -24,6 +25,10 @@ pub const MAX_TICKS: usize = 12;
 
 /// Samples over the angle range, at least.
 const SAMPLES: usize = 720;
+
+/// Samples for an anisotropic scene, whose every angle is a 4×4
+/// computation (helices sliced finely) costing far more.
+const SAMPLES_4X4: usize = 90;
 
 /// The colour at one angle of the strip.
 #[derive(Debug, Clone, PartialEq)]
@@ -39,11 +44,11 @@ pub struct Sample {
     pub shown: Shown,
 }
 
-/// The colour along the angle range of a scene.
+/// One row of the strip: the colour under one viewing.
 #[derive(Debug, Clone, PartialEq)]
-pub struct AngleStrip {
-    /// Header text.
-    pub caption: Caption,
+pub struct Row {
+    /// What the row shows ("unpolarized", "through a left analyser").
+    pub label: String,
     /// Angles in increasing order with their colours.
     pub samples: Vec<Sample>,
     /// Angles with a swatch and their colours.
@@ -51,6 +56,16 @@ pub struct AngleStrip {
     /// Angle ranges (from, to) whose colours lie outside the RGB gamut, with
     /// the edges interpolated between samples.
     pub outside: Vec<(f64, f64)>,
+}
+
+/// The colour along the angle range of a scene: one row, or for a scene
+/// whose left and right differ one row per view of [`side_by_side`].
+#[derive(Debug, Clone, PartialEq)]
+pub struct AngleStrip {
+    /// Header text.
+    pub caption: Caption,
+    /// The rows, the viewing asked for first.
+    pub rows: Vec<Row>,
     /// The label of out-of-gamut swatches ("outside sRGB").
     pub outside_label: String,
     /// The legend line of the out-of-gamut marks ("outside sRGB: shown clipped").
@@ -58,11 +73,17 @@ pub struct AngleStrip {
 }
 
 impl AngleStrip {
-    /// Computes the colour at about `SAMPLES` angles spanning the scene's
+    /// Computes the colour at about `SAMPLES` angles (`SAMPLES_4X4` for an
+    /// anisotropic scene) spanning the scene's
     /// angle grid (every grid angle included) and at `ticks` (default: a
     /// round step giving at most nine).
     pub fn compute(scene: &Scene, viewing: &Viewing, ticks: Option<&[f64]>) -> Result<Self> {
-        Self::compute_sampled(scene, viewing, ticks, SAMPLES)
+        let samples = if scene.anisotropic() {
+            SAMPLES_4X4
+        } else {
+            SAMPLES
+        };
+        Self::compute_sampled(scene, viewing, ticks, samples)
     }
 
     /// Like [`AngleStrip::compute`] with about `samples` angles (at least
@@ -122,70 +143,85 @@ impl AngleStrip {
         angles.sort_by(|a, b| a.0.total_cmp(&b.0).then(b.1.cmp(&a.1)));
         angles.dedup_by(|b, a| a.0 == b.0);
         let list: Vec<f64> = angles.iter().map(|a| a.0).collect();
-        let spectra = optics::compute(
-            &scene.realisations(&scene.stack),
-            &scene.indices(&scene.wavelengths_nm)?,
-            &scene.wavelengths_nm,
-            &list,
-        );
-        let colours = angle_colours(&spectra, viewing)?;
+        let spectra = viewing.spectra_of(scene, &list)?;
         let soft = SoftEdge::new(viewing, &scene.wavelengths_nm)?;
-        let samples: Vec<Sample> = angles
+        let views = side_by_side(viewing, &spectra);
+        let rows = views
             .iter()
-            .zip(colours)
-            .map(|(&(angle_deg, exact), colour)| Sample {
-                angle_deg,
-                shown: soft.show(&colour),
-                colour,
-                exact,
+            .map(|v| {
+                let colours = angle_colours(&spectra, v)?;
+                let samples: Vec<Sample> = angles
+                    .iter()
+                    .zip(colours)
+                    .map(|(&(angle_deg, exact), colour)| Sample {
+                        angle_deg,
+                        shown: soft.show(&colour),
+                        colour,
+                        exact,
+                    })
+                    .collect();
+                let ticks = ticks
+                    .iter()
+                    .map(|&t| {
+                        let i = list.partition_point(|&a| a < t);
+                        (t, samples[i].colour.clone())
+                    })
+                    .collect();
+                Ok(Row {
+                    label: v.seen(),
+                    outside: outside_spans(&samples),
+                    samples,
+                    ticks,
+                })
             })
-            .collect();
-        let ticks = ticks
-            .iter()
-            .map(|&t| {
-                let i = list.partition_point(|&a| a < t);
-                (t, samples[i].colour.clone())
-            })
-            .collect();
+            .collect::<Result<Vec<_>>>()?;
         Ok(AngleStrip {
-            caption: Caption::new(
-                &[&scene.title],
-                "Colour against angle of incidence",
-                viewing,
-            ),
-            outside: outside_spans(&samples),
-            samples,
-            ticks,
+            caption: Caption {
+                viewing: style::describe_all(&views),
+                ..Caption::new(
+                    &[&scene.title],
+                    "Colour against angle of incidence",
+                    viewing,
+                )
+            },
+            rows,
             outside_label: gamut::outside_label(viewing),
             legend: gamut::legend(viewing),
         })
     }
 
-    /// The pixel at the middle of the band where angle `a` is drawn, for an
-    /// image of `size`.
-    pub fn pixel_of(&self, size: (u32, u32), a: f64) -> (i32, i32) {
-        let (x, band, _) = self.rows_of(size, a);
+    /// The pixel at the middle of row `row`'s band where angle `a` is
+    /// drawn, for an image of `size`.
+    pub fn pixel_of(&self, size: (u32, u32), row: usize, a: f64) -> (i32, i32) {
+        let (x, band, _) = self.rows_of(size, row, a);
         (x, (band.0 + band.1) / 2)
     }
 
-    /// For an image of `size`: the column where angle `a` is drawn, the
-    /// band's first and last pixel rows, and the marker row's.
-    pub fn rows_of(&self, size: (u32, u32), a: f64) -> (i32, (i32, i32), (i32, i32)) {
+    /// For an image of `size`: the column where angle `a` is drawn, and row
+    /// `row`'s band's first and last pixel rows and its marker row's.
+    pub fn rows_of(&self, size: (u32, u32), row: usize, a: f64) -> (i32, (i32, i32), (i32, i32)) {
         let mut svg = Svg::default();
         let root = Canvas::new(&mut svg, size).into_drawing_area();
         let s = Style::new(size);
         let (chart, _) = self.layout(&root, &s).expect("SVG drawing cannot fail");
         let (x, _) = chart.backend_coord(&(a, 0.5));
         let (_, ys) = chart.plotting_area().get_pixel_range();
-        let (band, marks) = rows(ys.start, ys.end, &s);
+        let (band, marks) = rows(ys.start, ys.end, &s, self.rows.len())[row];
         (x, band, marks)
     }
 
     fn range(&self) -> (f64, f64) {
-        (
-            self.samples[0].angle_deg,
-            self.samples[self.samples.len() - 1].angle_deg,
-        )
+        let samples = &self.rows[0].samples;
+        (samples[0].angle_deg, samples[samples.len() - 1].angle_deg)
+    }
+
+    /// The left margin: room for the row labels when there are several.
+    fn label_width(&self, s: &Style) -> i32 {
+        if self.rows.len() > 1 {
+            s.px(210.0)
+        } else {
+            s.px(14.0)
+        }
     }
 
     #[allow(clippy::type_complexity)]
@@ -206,7 +242,7 @@ impl AngleStrip {
         let (lo, hi) = self.range();
         let mut chart = ChartBuilder::on(&top)
             .margin_top(s.px(26.0))
-            .margin_left(s.px(14.0))
+            .margin_left(self.label_width(s))
             .margin_right(s.px(14.0))
             .x_label_area_size(s.px(62.0))
             .build_cartesian_2d(lo..hi, 0.0..1.0)?;
@@ -227,12 +263,24 @@ impl AngleStrip {
     }
 }
 
-/// The band's and the marker row's first and last pixel rows within the
-/// plotting rows `top..bottom`.
-fn rows(top: i32, bottom: i32, s: &Style) -> ((i32, i32), (i32, i32)) {
+/// A band's and its marker row's first and last pixel rows.
+type Rows = ((i32, i32), (i32, i32));
+
+/// The band's and the marker row's first and last pixel rows of each of `n`
+/// rows stacked within the plotting rows `top..bottom`.
+fn rows(top: i32, bottom: i32, s: &Style, n: usize) -> Vec<Rows> {
     let mark = s.px(14.0).max(6);
     let gap = s.px(5.0).max(2);
-    ((top, bottom - mark - gap - 1), (bottom - mark, bottom - 1))
+    let between = if n > 1 { s.px(12.0).max(4) } else { 0 };
+    let n = n as i32;
+    let height = (bottom - top - between * (n - 1)) / n;
+    (0..n)
+        .map(|k| {
+            let t = top + k * (height + between);
+            let b = t + height;
+            ((t, b - mark - gap - 1), (b - mark, b - 1))
+        })
+        .collect()
 }
 
 /// Runs of samples outside the gamut, each edge placed where the relative
@@ -318,11 +366,91 @@ impl Chart for AngleStrip {
         let area = chart.plotting_area().strip_coord_spec();
         let (xs, ys) = area.get_pixel_range();
         let (x0, _) = area.get_base_pixel();
-        // Each column shows the sample mapped into it (grid angles and ticks
-        // first), or the nearest sample by angle when none falls inside.
+        let (rx, ry) = root.get_base_pixel();
         let w = (xs.end - xs.start) as usize;
+        let stacked = rows(ys.start, ys.end, &s, self.rows.len());
+        for (row, &(band, marks)) in self.rows.iter().zip(&stacked) {
+            let h = band.1 - band.0 + 1;
+            let dy = band.0 - ys.start;
+            for (a, b, colour) in self.runs(row, &chart, (x0, w)) {
+                area.draw(&Rectangle::new(
+                    [(a as i32, dy), (b as i32, dy + h - 1)],
+                    colour.filled(),
+                ))?;
+            }
+            // The frame lies just outside, so the end columns show their colour.
+            let (ax, ay) = (x0 - rx - 1, band.0 - ry - 1);
+            root.draw(&Rectangle::new(
+                [(ax, ay), (ax + w as i32 + 1, ay + h + 1)],
+                FRAME.stroke_width(1),
+            ))?;
+            // The marker row: out-of-gamut angle ranges hatched.
+            for &(a, b) in &row.outside {
+                let (xa, _) = chart.backend_coord(&(a, 0.5));
+                let (xb, _) = chart.backend_coord(&(b, 0.5));
+                hatch(
+                    root,
+                    &s,
+                    (xa - rx, (xb - rx).max(xa - rx + 2)),
+                    (marks.0 - ry, marks.1 - ry),
+                )?;
+            }
+            if self.rows.len() > 1 {
+                root.draw(&Text::new(
+                    capitalised(&row.label),
+                    (ax - s.px(12.0), (band.0 + band.1) / 2 - ry),
+                    s.bold(14.0, INK).pos(Pos::new(HPos::Right, VPos::Center)),
+                ))?;
+            }
+        }
+        match self.rows.as_slice() {
+            [one] if !one.outside.is_empty() => {
+                let text = format!("{} ({})", self.legend, span_list(&one.outside));
+                gamut::legend_line(root, &s, &text)?;
+            }
+            many if many.iter().any(|r| !r.outside.is_empty()) => {
+                let text = format!("{} (hatched under each row)", self.legend);
+                gamut::legend_line(root, &s, &text)?;
+            }
+            _ => {}
+        }
+        // Markers above the strip at the swatch angles.
+        let m = s.px(7.0);
+        let base = root.get_base_pixel();
+        for (a, _) in &self.rows[0].ticks {
+            let (px, py) = chart.backend_coord(&(*a, 1.0));
+            let (x, y) = (px - base.0, py - base.1);
+            root.draw(&Polygon::new(
+                vec![
+                    (x - m, y - 2 * m - s.px(3.0)),
+                    (x + m, y - 2 * m - s.px(3.0)),
+                    (x, y - s.px(3.0)),
+                ],
+                INK.filled(),
+            ))?;
+        }
+        if self.rows.len() > 1 {
+            self.draw_swatch_rows(&bottom, &s, (x0, xs.end - xs.start))
+        } else {
+            self.draw_swatches(&bottom, &s, (x0, xs.end - xs.start))
+        }
+    }
+}
+
+impl AngleStrip {
+    /// The band of `row` as runs of equal colour (first column, last
+    /// column, colour) over `w` columns from `x0`: each column shows the
+    /// sample mapped into it (grid angles and ticks first), or the nearest
+    /// sample by angle when none falls inside.
+    fn runs<DB: DrawingBackend>(
+        &self,
+        row: &Row,
+        chart: &ChartContext<'_, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>,
+        (x0, w): (i32, usize),
+    ) -> Vec<(usize, usize, RGBColor)> {
+        let samples = &row.samples;
         let mut column: Vec<Option<(usize, bool)>> = vec![None; w];
-        for (i, x) in self.samples.iter().enumerate() {
+        for (i, x) in samples.iter().enumerate() {
             let (px, _) = chart.backend_coord(&(x.angle_deg, 0.5));
             let c = ((px - x0).max(0) as usize).min(w - 1);
             if column[c].is_none_or(|(_, e)| x.exact && !e) {
@@ -335,74 +463,92 @@ impl Chart for AngleStrip {
             let i = slot.map_or_else(
                 || {
                     let a = lo + (hi - lo) * (c as f64 + 0.5) / w as f64;
-                    let k = self.samples.partition_point(|x| x.angle_deg < a);
-                    [k.saturating_sub(1), k.min(self.samples.len() - 1)]
+                    let k = samples.partition_point(|x| x.angle_deg < a);
+                    [k.saturating_sub(1), k.min(samples.len() - 1)]
                         .into_iter()
                         .min_by(|&p, &q| {
-                            (self.samples[p].angle_deg - a)
+                            (samples[p].angle_deg - a)
                                 .abs()
-                                .total_cmp(&(self.samples[q].angle_deg - a).abs())
+                                .total_cmp(&(samples[q].angle_deg - a).abs())
                         })
                         .unwrap_or(0)
                 },
                 |(i, _)| i,
             );
-            let colour = self.samples[i].shown.colour();
+            let colour = samples[i].shown.colour();
             match runs.last_mut() {
                 Some((_, end, last)) if *last == colour => *end = c,
                 _ => runs.push((c, c, colour)),
             }
         }
-        let (band, marks) = rows(ys.start, ys.end, &s);
-        let h = band.1 - band.0 + 1;
-        for (a, b, colour) in runs {
-            area.draw(&Rectangle::new(
-                [(a as i32, 0), (b as i32, h - 1)],
-                colour.filled(),
-            ))?;
-        }
-        // The frame lies just outside, so the end columns show their colour.
-        let (rx, ry) = root.get_base_pixel();
-        let (ax, ay) = (x0 - rx - 1, ys.start - ry - 1);
-        root.draw(&Rectangle::new(
-            [(ax, ay), (ax + w as i32 + 1, ay + h + 1)],
-            FRAME.stroke_width(1),
-        ))?;
-        // The marker row: out-of-gamut angle ranges hatched.
-        for &(a, b) in &self.outside {
-            let (xa, _) = chart.backend_coord(&(a, 0.5));
-            let (xb, _) = chart.backend_coord(&(b, 0.5));
-            hatch(
-                root,
-                &s,
-                (xa - rx, (xb - rx).max(xa - rx + 2)),
-                (marks.0 - ry, marks.1 - ry),
-            )?;
-        }
-        if !self.outside.is_empty() {
-            let text = format!("{} ({})", self.legend, span_list(&self.outside));
-            gamut::legend_line(root, &s, &text)?;
-        }
-        // Markers above the strip at the swatch angles.
-        let m = s.px(7.0);
-        let base = root.get_base_pixel();
-        for (a, _) in &self.ticks {
-            let (px, py) = chart.backend_coord(&(*a, 1.0));
-            let (x, y) = (px - base.0, py - base.1);
-            root.draw(&Polygon::new(
-                vec![
-                    (x - m, y - 2 * m - s.px(3.0)),
-                    (x + m, y - 2 * m - s.px(3.0)),
-                    (x, y - s.px(3.0)),
-                ],
-                INK.filled(),
-            ))?;
-        }
-        self.draw_swatches(&bottom, &s, (x0, xs.end - xs.start))
+        runs
     }
-}
 
-impl AngleStrip {
+    /// Several rows: under each tick angle one swatch per row with its hex
+    /// code and L*, the rows labelled at the left as over the bands.
+    fn draw_swatch_rows<DB: DrawingBackend>(
+        &self,
+        area: &DrawingArea<DB, Shift>,
+        s: &Style,
+        (x0, width): (i32, i32),
+    ) -> DrawResult<DB> {
+        let base = area.get_base_pixel();
+        let (_, h) = area.dim_in_pixel();
+        let ticks = &self.rows[0].ticks;
+        let cell = width / ticks.len() as i32;
+        let top = s.px(24.0);
+        let line = s.px(19.0);
+        let first = top + s.px(26.0);
+        let pitch = (h as i32 - first - s.px(30.0)) / self.rows.len() as i32;
+        let side = (pitch - 2 * line - s.px(12.0))
+            .min(cell * 6 / 10)
+            .max(s.px(10.0));
+        let centre = Pos::new(HPos::Center, VPos::Top);
+        for (k, (a, _)) in ticks.iter().enumerate() {
+            let cx = x0 - base.0 + cell * k as i32 + cell / 2;
+            area.draw(&Text::new(
+                format!("{}°", style::tick(a)),
+                (cx, top),
+                s.bold(15.0, INK).pos(centre),
+            ))?;
+        }
+        for (r, row) in self.rows.iter().enumerate() {
+            let sy = first + pitch * r as i32;
+            area.draw(&Text::new(
+                capitalised(&row.label),
+                (x0 - base.0 - s.px(13.0), sy + side / 2),
+                s.bold(14.0, INK).pos(Pos::new(HPos::Right, VPos::Center)),
+            ))?;
+            for (k, (_, c)) in row.ticks.iter().enumerate() {
+                let cx = x0 - base.0 + cell * k as i32 + cell / 2;
+                let square = [(cx - side / 2, sy), (cx + side / 2, sy + side)];
+                area.draw(&Rectangle::new(square, swatch(c).filled()))?;
+                area.draw(&Rectangle::new(square, FRAME.stroke_width(1)))?;
+                if !c.in_gamut {
+                    hatch(
+                        area,
+                        s,
+                        (cx + side / 2 + s.px(3.0), cx + side / 2 + s.px(9.0)),
+                        (sy, sy + side),
+                    )?;
+                }
+                let hex = if c.in_gamut {
+                    c.hex.clone()
+                } else {
+                    format!("≈ {}", c.hex)
+                };
+                let y = sy + side + s.px(4.0);
+                area.draw(&Text::new(hex, (cx, y), s.text(13.0, INK).pos(centre)))?;
+                area.draw(&Text::new(
+                    format!("L* {}", num(c.lab[0], 1)),
+                    (cx, y + line),
+                    s.text(12.0, MUTED).pos(centre),
+                ))?;
+            }
+        }
+        Ok(())
+    }
+
     fn draw_swatches<DB: DrawingBackend>(
         &self,
         area: &DrawingArea<DB, Shift>,
@@ -410,13 +556,14 @@ impl AngleStrip {
         (x0, width): (i32, i32),
     ) -> DrawResult<DB> {
         let base = area.get_base_pixel();
-        let n = self.ticks.len() as i32;
+        let ticks = &self.rows[0].ticks;
+        let n = ticks.len() as i32;
         let cell = width / n;
         let side = (cell * 7 / 10).min(s.px(120.0));
         let top = s.px(24.0);
         let line = s.px(22.0);
         let centre = Pos::new(HPos::Center, VPos::Top);
-        for (k, (a, c)) in self.ticks.iter().enumerate() {
+        for (k, (a, c)) in ticks.iter().enumerate() {
             let cx = x0 - base.0 + cell * k as i32 + cell / 2;
             area.draw(&Text::new(
                 format!("{}°", style::tick(a)),

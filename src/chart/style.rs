@@ -8,7 +8,7 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 
 use super::DrawResult;
-use crate::angle_colour::{Side, Viewing, angle_colours};
+use crate::angle_colour::{Side, Viewing, angle_colours, side_by_side};
 use crate::colorimetry::{Colour, Observer};
 use crate::error::Result;
 use crate::scene::Scene;
@@ -134,14 +134,26 @@ pub fn light(v: &Viewing) -> String {
 
 /// "Illuminant D65 · CIE 1931 2° observer · reflected light · unpolarized".
 pub fn describe(v: &Viewing) -> String {
+    describe_all(std::slice::from_ref(v))
+}
+
+/// [`describe`] for viewings shown side by side (same light and side):
+/// "… · reflected light · unpolarized, through a left analyser and through
+/// a right analyser".
+pub fn describe_all(views: &[Viewing]) -> String {
+    let v = &views[0];
+    let seen: Vec<String> = views.iter().map(Viewing::seen).collect();
+    let seen = match seen.split_last() {
+        Some((last, rest)) if !rest.is_empty() => format!("{} and {last}", rest.join(", ")),
+        _ => seen.join(""),
+    };
     format!(
-        "{} · {} light · {}",
+        "{} · {} light · {seen}",
         light(v),
         match v.side {
             Side::Reflect => "reflected",
             Side::Transmit => "transmitted",
         },
-        super::spectra::pol_label(v.polarization)
     )
 }
 
@@ -280,17 +292,77 @@ pub struct Series {
 impl Series {
     /// The colour at every angle of the scene's grid.
     pub fn of_scene(scene: &Scene, viewing: &Viewing) -> Result<Self> {
-        let spectra = scene.spectra()?;
+        let spectra = viewing.spectra_of(scene, &scene.angles_deg)?;
         Ok(Series {
-            label: if scene.title.trim().is_empty() {
-                "Untitled scene".into()
-            } else {
-                scene.title.clone()
-            },
+            label: untitled(&scene.title),
             angles: spectra.angles_deg.clone(),
             colours: angle_colours(&spectra, viewing)?,
             names: Vec::new(),
         })
+    }
+
+    /// One series per viewing of [`side_by_side`], with the viewings:
+    /// labelled by the scene's title, or for a scene whose left and right
+    /// differ by what is seen ("Unpolarized", "Through a left analyser"),
+    /// after the shortened title when `titled`.
+    pub fn side_by_side(
+        scene: &Scene,
+        viewing: &Viewing,
+        titled: bool,
+    ) -> Result<Vec<(Self, Viewing)>> {
+        let spectra = viewing.spectra_of(scene, &scene.angles_deg)?;
+        let views = side_by_side(viewing, &spectra);
+        let several = views.len() > 1;
+        views
+            .into_iter()
+            .map(|v| {
+                let label = match (several, titled) {
+                    (false, _) => untitled(&scene.title),
+                    (true, false) => capitalised(&v.seen()),
+                    (true, true) => format!("{} · {}", short(&scene.title), v.seen()),
+                };
+                let series = Series {
+                    label,
+                    angles: spectra.angles_deg.clone(),
+                    colours: angle_colours(&spectra, &v)?,
+                    names: Vec::new(),
+                };
+                Ok((series, v))
+            })
+            .collect()
+    }
+
+    /// The series of every scene side by side ([`Series::side_by_side`]),
+    /// with the viewing line of a caption naming every view shown.
+    pub fn of_scenes(scenes: &[(&Scene, &Viewing)]) -> Result<(Vec<Self>, String)> {
+        let mut out = Vec::new();
+        let mut views: Vec<Viewing> = Vec::new();
+        for (scene, viewing) in scenes {
+            for (series, v) in Series::side_by_side(scene, viewing, scenes.len() > 1)? {
+                if views.iter().all(|w| w.seen() != v.seen()) {
+                    views.push(v);
+                }
+                out.push(series);
+            }
+        }
+        Ok((out, describe_all(&views)))
+    }
+}
+
+/// "Through a left analyser" from "through a left analyser".
+pub fn capitalised(t: &str) -> String {
+    let mut c = t.chars();
+    c.next()
+        .map(|f| f.to_uppercase().chain(c).collect())
+        .unwrap_or_default()
+}
+
+/// The title, or "Untitled scene" when it is blank.
+pub fn untitled(title: &str) -> String {
+    if title.trim().is_empty() {
+        "Untitled scene".into()
+    } else {
+        title.to_string()
     }
 }
 
@@ -575,6 +647,21 @@ pub fn angle_labels<DB: DrawingBackend>(
         ))?;
     }
     Ok(())
+}
+
+/// A bold heading over `area`; returns the area below it.
+pub fn titled<DB: DrawingBackend>(
+    area: &DrawingArea<DB, Shift>,
+    s: &Style,
+    title: &str,
+) -> std::result::Result<DrawingArea<DB, Shift>, DrawingAreaErrorKind<DB::ErrorType>> {
+    let (top, rest) = area.split_vertically(s.px(30.0));
+    top.draw(&Text::new(
+        title.to_string(),
+        (s.px(74.0), s.px(4.0)),
+        s.bold(15.0, INK).pos(Pos::new(HPos::Left, VPos::Top)),
+    ))?;
+    Ok(rest)
 }
 
 #[cfg(test)]

@@ -17,7 +17,6 @@ use super::{Chart, DrawResult};
 use crate::angle_colour::{Viewing, angle_colours};
 use crate::colorimetry::Colour;
 use crate::error::{Error, Result};
-use crate::optics;
 use crate::scene::{Item, Layer, Repeat, Scene};
 
 /// Most thickness samples.
@@ -34,7 +33,8 @@ pub enum Variation {
         /// Thickness range in nm (default: 50–150 % of the design value).
         range_nm: Option<(f64, f64)>,
     },
-    /// A factor on every thickness.
+    /// A factor on every thickness and helix pitch (the whole structure
+    /// dilated).
     Scale {
         /// First factor.
         from: f64,
@@ -45,6 +45,10 @@ pub enum Variation {
 
 /// Angle samples across the scene's range, at most (every grid angle kept).
 const ANGLE_SAMPLES: usize = 31;
+
+/// Angle samples at most for an anisotropic scene, whose every sample is a
+/// 4×4 computation (helices sliced finely) costing far more.
+const ANGLE_SAMPLES_4X4: usize = 13;
 
 /// Colours over (thickness, angle): computed at `values` × `angles` and
 /// drawn as a continuous field interpolated between them.
@@ -71,18 +75,15 @@ pub struct ThicknessAngle {
     pub legend: String,
 }
 
-/// Copies `items` with each layer's thickness replaced by `f(number, layer)`,
+/// Copies `items` with each layer replaced by `f(number, layer)`,
 /// numbering layers from 1 depth first.
-fn map_layers(items: &[Item], next: &mut usize, f: &dyn Fn(usize, &Layer) -> f64) -> Vec<Item> {
+fn map_layers(items: &[Item], next: &mut usize, f: &dyn Fn(usize, &Layer) -> Layer) -> Vec<Item> {
     items
         .iter()
         .map(|item| match item {
             Item::Layer(l) => {
                 *next += 1;
-                Item::Layer(Layer {
-                    thickness_nm: f(*next, l),
-                    ..l.clone()
-                })
+                Item::Layer(f(*next, l))
             }
             Item::Repeat(r) => Item::Repeat(Repeat {
                 items: map_layers(&r.items, next, f),
@@ -90,6 +91,25 @@ fn map_layers(items: &[Item], next: &mut usize, f: &dyn Fn(usize, &Layer) -> f64
             }),
         })
         .collect()
+}
+
+/// `l` with its thickness, and its helix pitch when it has one, times `v`
+/// (the whole structure dilated).
+fn scaled(l: &Layer, v: f64) -> Layer {
+    let mut out = l.clone();
+    out.thickness_nm *= v;
+    if let Some(h) = out.anisotropy.as_mut().and_then(|a| a.helix.as_mut()) {
+        h.pitch_nm *= v;
+    }
+    out
+}
+
+/// True when a layer of `items` is a helix.
+fn helical(items: &[Item]) -> bool {
+    let mut all = Vec::new();
+    layers(items, &mut all);
+    all.iter()
+        .any(|l| l.anisotropy.as_ref().is_some_and(|a| a.helix.is_some()))
 }
 
 /// The layers in stack order, depth first.
@@ -105,6 +125,20 @@ fn layers(items: &[Item], out: &mut Vec<Layer>) {
 impl ThicknessAngle {
     /// Thickness samples when none are asked for.
     pub const DEFAULT_STEPS: usize = 61;
+
+    /// Thickness samples when none are asked for on an anisotropic scene
+    /// (each sample is a 4×4 computation of the whole angle range).
+    pub const DEFAULT_STEPS_4X4: usize = 15;
+
+    /// [`ThicknessAngle::DEFAULT_STEPS`], or
+    /// [`ThicknessAngle::DEFAULT_STEPS_4X4`] for an anisotropic scene.
+    pub fn default_steps(scene: &Scene) -> usize {
+        if scene.anisotropic() {
+            Self::DEFAULT_STEPS_4X4
+        } else {
+            Self::DEFAULT_STEPS
+        }
+    }
 
     /// Computes `steps` thickness samples over the variation (plus the design
     /// value), each at the scene's angles subdivided to about 31; `progress`
@@ -163,7 +197,12 @@ impl ThicknessAngle {
                     from,
                     to,
                     1.0,
-                    "Scale on every thickness (× design)".to_string(),
+                    if helical(&scene.stack) {
+                        "Scale on every thickness and helix pitch (× design)"
+                    } else {
+                        "Scale on every thickness (× design)"
+                    }
+                    .to_string(),
                     "design ×1".to_string(),
                 )
             }
@@ -180,8 +219,19 @@ impl ThicknessAngle {
             values.push(nominal);
             values.sort_by(f64::total_cmp);
         }
-        let angles = subdivide(&scene.angles_deg);
+        let angles = subdivide(
+            &scene.angles_deg,
+            if scene.anisotropic() {
+                ANGLE_SAMPLES_4X4
+            } else {
+                ANGLE_SAMPLES
+            },
+        );
         let index = scene.indices(&scene.wavelengths_nm)?;
+        let jones = viewing.analyzer.is_some();
+        if jones {
+            scene.require_coherent()?;
+        }
         // `progress` may panic to abandon the chart; the fuse then stops the
         // other threads at once.
         let cells = values
@@ -189,16 +239,20 @@ impl ThicknessAngle {
             .panic_fuse()
             .map(|&v| {
                 let items = map_layers(&scene.stack, &mut 0, &|n, l| match *variation {
-                    Variation::Layer { layer, .. } if n == layer => v,
-                    Variation::Layer { .. } => l.thickness_nm,
-                    Variation::Scale { .. } => l.thickness_nm * v,
+                    Variation::Layer { layer, .. } if n == layer => Layer {
+                        thickness_nm: v,
+                        ..l.clone()
+                    },
+                    Variation::Layer { .. } => l.clone(),
+                    Variation::Scale { .. } => scaled(l, v),
                 });
-                let spectra = optics::compute(
-                    &scene.realisations(&items),
-                    &index,
-                    &scene.wavelengths_nm,
-                    &angles,
-                );
+                let spectra = scene.rows_of(&items, &index, &angles, jones, |rows| {
+                    if jones {
+                        rows.all_with_jones()
+                    } else {
+                        rows.all()
+                    }
+                });
                 let colours = angle_colours(&spectra, viewing);
                 progress();
                 colours
@@ -366,15 +420,15 @@ impl ThicknessAngle {
 }
 
 /// The scene's angles (sorted, unique), each interval cut into equal parts
-/// so that there are at most `ANGLE_SAMPLES`.
-fn subdivide(grid: &[f64]) -> Vec<f64> {
+/// so that there are at most `most` (or the grid itself, when it has more).
+fn subdivide(grid: &[f64], most: usize) -> Vec<f64> {
     let mut sorted = grid.to_vec();
     sorted.sort_by(f64::total_cmp);
     sorted.dedup();
     if sorted.len() < 2 {
         return sorted;
     }
-    let sub = ((ANGLE_SAMPLES - 1) / (sorted.len() - 1)).max(1);
+    let sub = ((most - 1) / (sorted.len() - 1)).max(1);
     sorted
         .windows(2)
         .flat_map(|w| (0..sub).map(move |k| w[0] + (w[1] - w[0]) * k as f64 / sub as f64))

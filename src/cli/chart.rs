@@ -10,7 +10,9 @@ use lamella::chart::{
 };
 use lamella::scene::Scene;
 
-use super::choices::PolarizationChoice;
+use lamella::optics::aniso::Handedness;
+
+use super::choices::{HandednessChoice, PolarizationChoice};
 use super::color::ViewArgs;
 use super::design_args::Progress;
 use super::{CliResult, Failure, film_scene, load_scene, write_out};
@@ -79,14 +81,19 @@ pub struct Args {
     /// spectra: angles of incidence in degrees.
     #[arg(long, value_delimiter = ',', default_value = "0,30,60")]
     pub angles: Vec<f64>,
-    /// spectra: polarizations drawn (unpolarized solid, s dashed, p dotted).
-    #[arg(
-        long,
-        value_enum,
-        value_delimiter = ',',
-        default_value = "unpolarized,s,p"
-    )]
-    pub curves: Vec<PolarizationChoice>,
+    /// spectra: polarizations drawn (unpolarized solid, s dashed, p dotted,
+    /// left-circular long dashes, right-circular short dashes; default
+    /// unpolarized,s,p, or unpolarized,left,right for a scene whose left
+    /// and right differ).
+    #[arg(long, value_enum, value_delimiter = ',')]
+    pub curves: Option<Vec<PolarizationChoice>>,
+    /// Unpolarized light, seen through an ideal circular analyser passing
+    /// this handedness (angle-strip, thickness-angle, map, chromaticity,
+    /// ab-travel). Without it and without --polarization, a scene whose
+    /// left and right differ is shown unpolarized and through a left and a
+    /// right analyser side by side.
+    #[arg(long, value_enum)]
+    pub analyzer: Option<HandednessChoice>,
     /// spectra: also draw transmittance, in a second panel.
     #[arg(long)]
     pub transmittance: bool,
@@ -100,7 +107,7 @@ pub struct Args {
     /// (default: 50 % to 150 % of the design thickness).
     #[arg(long, value_name = "FROM,TO", value_parser = parse_pair, requires = "layer")]
     pub thickness_range: Option<(f64, f64)>,
-    /// thickness-angle: scale all thicknesses together over FROM,TO
+    /// thickness-angle: scale all thicknesses (and helix pitches) together over FROM,TO
     /// (the default when --layer is not given: 0.8,1.2).
     #[arg(long, value_name = "FROM,TO", value_parser = parse_pair)]
     pub scale_range: Option<(f64, f64)>,
@@ -117,8 +124,10 @@ pub struct Args {
     pub with_reflectance: bool,
     /// thickness-angle: number of thickness samples (2–200); the field is
     /// interpolated between them, and the design value is always one.
-    #[arg(long, default_value_t = ThicknessAngle::DEFAULT_STEPS)]
-    pub steps: usize,
+    /// (Default 61, or 15 for a scene with anisotropic layers, whose
+    /// every sample is a 4×4 computation.)
+    #[arg(long)]
+    pub steps: Option<usize>,
 }
 
 /// A chart size `WxH` within the chart limits (a clap value parser).
@@ -146,21 +155,22 @@ pub fn format_of(path: &Path) -> Result<Format, Failure> {
 }
 
 /// Refuses a scene the charts cannot draw (no film, a grid too large to
-/// hold, anisotropic layers).
+/// hold).
 pub fn chartable(path: &Path, scene: &Scene) -> Result<(), Failure> {
-    film_scene(path, scene, "chart")?;
-    scene
-        .require_isotropic("`lamella chart`")
-        .map_err(|e| Failure::scene(path, e))
+    film_scene(path, scene, "chart")
 }
 
 /// Loads scenes with their viewings; several scenes must share light and observer.
-pub fn load_all(paths: &[PathBuf], view: &ViewArgs) -> Result<Vec<(Scene, Viewing)>, Failure> {
+pub fn load_all(
+    paths: &[PathBuf],
+    view: &ViewArgs,
+    analyzer: Option<Handedness>,
+) -> Result<Vec<(Scene, Viewing)>, Failure> {
     let mut out: Vec<(Scene, Viewing)> = Vec::new();
     for p in paths {
         let scene = load_scene(p)?;
         chartable(p, &scene)?;
-        let viewing = view.viewing(&scene, p)?;
+        let viewing = view.viewing_through(&scene, p, analyzer)?;
         if let Some((_, first)) = out.first()
             && (first.illuminant.name() != viewing.illuminant.name()
                 || first.observer != viewing.observer)
@@ -200,7 +210,16 @@ pub fn run(args: &Args) -> CliResult {
             "only spectra, chromaticity and ab-travel compare several scenes; give one scene",
         ));
     }
-    let scenes = load_all(&paths, &args.view)?;
+    if let (Some(h), Kind::Spectra | Kind::Field | Kind::Bands) = (args.analyzer, args.kind) {
+        return Err(Failure::input(format!(
+            "--analyzer {}: chart --kind {} does not take a viewing; the analyser applies to \
+             angle-strip, thickness-angle, map, chromaticity and ab-travel",
+            clap::ValueEnum::to_possible_value(&h).map_or("?".into(), |v| v.get_name().to_owned()),
+            clap::ValueEnum::to_possible_value(&args.kind)
+                .map_or("?".into(), |v| v.get_name().to_owned()),
+        )));
+    }
+    let scenes = load_all(&paths, &args.view, args.analyzer.map(Into::into))?;
     let pairs: Vec<(&Scene, &Viewing)> = scenes.iter().map(|(s, v)| (s, v)).collect();
     let at = |e| Failure::scene(&paths[0], e);
     let (scene, viewing) = pairs[0];
@@ -211,9 +230,12 @@ pub fn run(args: &Args) -> CliResult {
         }
         Kind::ThicknessAngle => {
             let variation = variation(args);
-            let bar = Progress::new(args.steps as u64, "thickness samples");
+            let steps = args
+                .steps
+                .unwrap_or_else(|| ThicknessAngle::default_steps(scene));
+            let bar = Progress::new(steps as u64, "thickness samples");
             let done = AtomicU64::new(0);
-            let c = ThicknessAngle::compute(scene, viewing, &variation, args.steps, &|| {
+            let c = ThicknessAngle::compute(scene, viewing, &variation, steps, &|| {
                 bar.set(done.fetch_add(1, Ordering::Relaxed) + 1, String::new())
             })
             .map_err(at)?;
@@ -224,7 +246,7 @@ pub fn run(args: &Args) -> CliResult {
             let c = SpectraChart::compute(
                 &pairs,
                 &args.angles,
-                &polarizations(&args.curves),
+                args.curves.as_deref().map(polarizations).as_deref(),
                 args.transmittance,
             )
             .map_err(at)?;

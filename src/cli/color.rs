@@ -108,6 +108,21 @@ impl ViewArgs {
     }
 }
 
+impl ViewArgs {
+    /// [`ViewArgs::viewing`] through an ideal circular analyser when one is
+    /// given (`--analyzer`, for unpolarized light only).
+    pub fn viewing_through(
+        &self,
+        scene: &lamella::scene::Scene,
+        scene_path: &Path,
+        analyzer: Option<Handedness>,
+    ) -> Result<Viewing, Failure> {
+        let mut viewing = self.viewing(scene, scene_path)?;
+        with_analyzer(self, &mut viewing, analyzer)?;
+        Ok(viewing)
+    }
+}
+
 /// Runs the command.
 pub fn run(
     scene_path: &Path,
@@ -170,15 +185,9 @@ pub fn colours_of(
     view: &ViewArgs,
     analyzer: Option<Handedness>,
 ) -> Result<(Viewing, lamella::optics::Spectra, Vec<Colour>), Failure> {
-    let mut viewing = view.viewing(scene, scene_path)?;
-    with_analyzer(view, &mut viewing, analyzer)?;
+    let viewing = view.viewing_through(scene, scene_path, analyzer)?;
     let bad = |e| Failure::scene(scene_path, e);
-    let spectra = if analyzer.is_some() {
-        scene.spectra_with_jones()
-    } else {
-        scene.spectra()
-    }
-    .map_err(bad)?;
+    let spectra = viewing.spectra_of(scene, &scene.angles_deg).map_err(bad)?;
     let colours = angle_colours(&spectra, &viewing).map_err(bad)?;
     Ok((viewing, spectra, colours))
 }

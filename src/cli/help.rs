@@ -167,9 +167,18 @@ Examples (the library; the index of TiO2 film from 380 to 780 nm as CSV):
 
 /// `lamella chart`.
 pub const CHART: &str = "\
+A scene whose left- and right-handed light differ (a helix layer) is shown
+unpolarized and through a left and a right circular analyser side by side
+(spectra: unpolarized, left- and right-circular curves; map: one panel per
+incident handedness). Handedness is named by the helix the electric field
+traces in space at one instant: a left-handed helix reflects left-handed
+light at normal incidence. --analyzer left|right or --polarization left|right
+shows one view only.
+
 Examples:
   lamella chart scenes/teal_label_foil.json --kind angle-strip -o strip.png
-  lamella chart scenes/teal_label_foil.json --scene scenes/chitin_lamellar_film.json --kind chromaticity -o compare.svg --observer CIE1931_2";
+  lamella chart scenes/teal_label_foil.json --scene scenes/chitin_lamellar_film.json --kind chromaticity -o compare.svg --observer CIE1931_2
+  lamella chart scenes/cnc_giftbox_window.json --kind angle-strip -o chiral-strip.png";
 
 /// `lamella report`.
 pub const REPORT: &str = "\

@@ -5,7 +5,7 @@
 use std::fmt::Write;
 use std::path::{Path, PathBuf};
 
-use lamella::angle_colour::{Polarization, Viewing};
+use lamella::angle_colour::Viewing;
 use lamella::chart::canvas::escape;
 use lamella::chart::{
     self, AbTravel, AngleStrip, BandsChart, Chromaticity, Format, ReflectanceMap, Series,
@@ -33,6 +33,12 @@ pub struct Args {
     pub size: (u32, u32),
     #[command(flatten)]
     pub view: ViewArgs,
+    /// Unpolarized light seen through an ideal circular analyser passing
+    /// this handedness. Without it and without --polarization, a scene
+    /// whose left and right differ is shown unpolarized and through a left
+    /// and a right analyser side by side.
+    #[arg(long, value_enum)]
+    pub analyzer: Option<super::choices::HandednessChoice>,
 }
 
 /// Where a report came from.
@@ -113,7 +119,7 @@ pub fn run(args: &Args) -> CliResult {
     let html = build(
         &scene,
         &args.scene,
-        &args.view,
+        (&args.view, args.analyzer.map(Into::into)),
         args.size,
         Some(&args.output),
     )?;
@@ -133,24 +139,22 @@ pub fn html(
 ) -> Result<String, Failure> {
     match scene.coating {
         Some(_) => super::coating_report::build(scene, scene_path, view, size, None),
-        None => build(scene, scene_path, view, size, None),
+        None => build(scene, scene_path, (view, None), size, None),
     }
 }
 
 /// Draws every chart (into `folder` as PNG and SVG, when given) and
-/// returns the report page.
+/// returns the report page; `view` holds the viewing flags and the
+/// analyser.
 fn build(
     scene: &Scene,
     scene_path: &std::path::Path,
-    view: &ViewArgs,
+    (view, analyzer): (&ViewArgs, Option<lamella::optics::aniso::Handedness>),
     size: (u32, u32),
     folder: Option<&std::path::Path>,
 ) -> Result<String, Failure> {
     super::film_scene(scene_path, scene, "report")?;
-    scene
-        .require_isotropic("`lamella report`")
-        .map_err(|e| Failure::scene(scene_path, e))?;
-    let viewing = view.viewing(scene, scene_path)?;
+    let viewing = view.viewing_through(scene, scene_path, analyzer)?;
     let at = |e| Failure::scene(scene_path, e);
     let pair = [(scene, &viewing)];
     let periodic = scene.stack.iter().any(|i| matches!(i, Item::Repeat(_)));
@@ -183,7 +187,7 @@ fn build(
         scene,
         &viewing,
         &Variation::Scale { from: 0.9, to: 1.1 },
-        ThicknessAngle::DEFAULT_STEPS,
+        ThicknessAngle::default_steps(scene),
         &|| {},
     )
     .map_err(at)?;
@@ -192,13 +196,8 @@ fn build(
         "Sensitivity to thickness (all layers scaled together)",
         &|f| chart::render(&grid, size, f),
     )?;
-    let spectra = SpectraChart::compute(
-        &pair,
-        &spectra_angles(&scene.angles_deg),
-        &[Polarization::Unpolarized, Polarization::S, Polarization::P],
-        true,
-    )
-    .map_err(at)?;
+    let spectra =
+        SpectraChart::compute(&pair, &spectra_angles(&scene.angles_deg), None, true).map_err(at)?;
     emit("spectra", "Spectra", &|f| chart::render(&spectra, size, f))?;
     let map = ReflectanceMap::compute(scene, &viewing).map_err(at)?;
     emit("map", "Map over wavelength and angle", &|f| {
@@ -221,7 +220,8 @@ fn build(
     if let Some(b) = &bar {
         b.finish();
     }
-    let series = Series::of_scene(scene, &viewing).map_err(at)?;
+    let views = Series::side_by_side(scene, &viewing, false).map_err(at)?;
+    let series = &views[0].0;
     // A stack too long to resolve layer by layer goes without the table.
     let absorption = match scene.layer_absorption() {
         Ok(a) => Some(a),
@@ -231,7 +231,8 @@ fn build(
     Ok(page(
         scene,
         &viewing,
-        &series,
+        series,
+        &views,
         absorption.as_ref().filter(|a| a.absorbs()),
         &drawn,
         &Provenance::of_this_run(),
@@ -287,6 +288,7 @@ fn page(
     scene: &Scene,
     viewing: &Viewing,
     series: &Series,
+    views: &[(Series, Viewing)],
     absorption: Option<&LayerAbsorption>,
     drawn: &[Drawn],
     made: &Provenance,
@@ -384,6 +386,9 @@ fn page(
         );
     }
     h.push_str("</section>\n");
+    if views.len() > 1 {
+        handedness_table(views, &mut h);
+    }
     if let Some(a) = absorption {
         absorption_table(scene, a, &mut h);
     }
@@ -431,6 +436,34 @@ pub(super) fn close_page(h: &mut String, drawn: &[Drawn], made: &Provenance) {
         made.date,
         escape(&made.command)
     );
+}
+
+/// For a scene whose left and right differ: the colour at each angle
+/// unpolarized and through a left and a right analyser side by side, with
+/// the handedness convention.
+fn handedness_table(views: &[(Series, Viewing)], h: &mut String) {
+    h.push_str("<section><h2>Left and right circular polarization</h2><p>This design treats left- and right-handed circularly polarized light differently. Each angle is shown in unpolarized light, and in unpolarized light with the reflection seen through an ideal circular analyser (as through circular-polarizer glasses) passing left- or right-handed light. Handedness is named by the helix the electric-field vector traces in space at one instant, so it does not depend on where one looks from: a left-handed helix reflects left-handed light at normal incidence, and a metal mirror turns left-handed light into right-handed.</p><table><thead><tr><th>Angle</th>");
+    for (s, _) in views {
+        let _ = write!(h, "<th colspan=2>{}</th>", escape(&s.label));
+    }
+    h.push_str("</tr></thead><tbody>\n");
+    for (i, a) in views[0].0.angles.iter().enumerate() {
+        let _ = write!(h, "<tr><td class=n>{a}°</td>");
+        for (s, _) in views {
+            let c = &s.colours[i];
+            let _ = write!(
+                h,
+                "<td><span class=sw style=\"background:{hex}\"></span></td><td>{}{hex} · L* {:.1} a* {:.1} b* {:.1}</td>",
+                if c.in_gamut { "" } else { "≈ " },
+                c.lab[0],
+                c.lab[1],
+                c.lab[2],
+                hex = c.hex,
+            );
+        }
+        h.push_str("</tr>\n");
+    }
+    h.push_str("</tbody></table><p>≈: outside the sRGB gamut; the swatch is an approximation.</p></section>\n");
 }
 
 /// The mean absorptance of each layer as written (and the sheet and

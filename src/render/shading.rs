@@ -160,8 +160,8 @@ fn film(scene: &Scene, body: Option<&Body>, viewing: &Viewing) -> Result<(PerAng
     let (r, t): (PerAngle, PerAngle) = (0..computed.len())
         .map(|a| match spectra.jones_at_angle(a) {
             Some(js) if viewing.analyzer.is_some() => (
-                js.iter().map(|j| reflect.fraction(j)).collect(),
-                js.iter().map(|j| transmit.fraction(j)).collect(),
+                js.iter().map(|j| reflect.of_jones(j)).collect(),
+                js.iter().map(|j| transmit.of_jones(j)).collect(),
             ),
             _ => {
                 let rt = spectra.at_angle(a);

@@ -513,17 +513,24 @@ impl Scene {
 
     /// [`Scene::spectra_with_jones`] at `angles_deg` (each below 90°).
     pub fn spectra_with_jones_at(&self, angles_deg: &[f64]) -> Result<Spectra> {
-        if !self.coherent() {
-            return Err(Error::invalid(
-                "stack",
-                "(incoherent layer, substrate sheet or disorder)",
-                "polarization amplitudes (Jones matrices, circular analysers) need a coherent \
-                 stack: no incoherent layer, substrate sheet or thickness disorder",
-            ));
-        }
+        self.require_coherent()?;
         let spectra = self.rows_at(angles_deg, true, |rows| rows.all_with_jones())?;
         check_spectra(&spectra)?;
         Ok(spectra)
+    }
+
+    /// Refuses a design that is not [`Scene::coherent`] for what needs
+    /// polarization amplitudes (Jones matrices, circular analysers).
+    pub fn require_coherent(&self) -> Result<()> {
+        if self.coherent() {
+            return Ok(());
+        }
+        Err(Error::invalid(
+            "stack",
+            "(incoherent layer, substrate sheet or disorder)",
+            "polarization amplitudes (Jones matrices, circular analysers) need a coherent \
+             stack: no incoherent layer, substrate sheet or thickness disorder",
+        ))
     }
 
     /// Runs `f` on the scene's grid computation, for callers that take the
@@ -548,17 +555,33 @@ impl Scene {
         f: impl FnOnce(&optics::Rows) -> T,
     ) -> Result<T> {
         let index = self.indices(&self.wavelengths_nm)?;
-        let stacks = self.realisations(&self.stack);
-        let rows = optics::Rows::new(&stacks, &index, &self.wavelengths_nm, angles_deg);
+        Ok(self.rows_of(&self.stack, &index, angles_deg, jones, f))
+    }
+
+    /// Runs `f` on the grid computation of `items` in place of the scene's
+    /// stack (same media, `index` from [`Scene::indices`] on the scene's
+    /// wavelengths) at `angles_deg`, through the 4×4 path when the scene is
+    /// [`Scene::anisotropic`] and with the 4×4 stack attached for Jones
+    /// matrices when `jones` (and the design is [`Scene::coherent`]).
+    pub fn rows_of<T>(
+        &self,
+        items: &[Item],
+        index: &[Vec<Complex64>],
+        angles_deg: &[f64],
+        jones: bool,
+        f: impl FnOnce(&optics::Rows) -> T,
+    ) -> T {
+        let stacks = self.realisations(items);
+        let rows = optics::Rows::new(&stacks, index, &self.wavelengths_nm, angles_deg);
         let four = if jones || self.anisotropic() {
-            self.gridded(&index, &self.wavelengths_nm, angles_deg)
+            self.gridded_design(items, index, &self.wavelengths_nm, angles_deg)
         } else {
             None
         };
-        Ok(match &four {
+        match &four {
             Some(g) => f(&rows.with_four(g, self.anisotropic())),
             None => f(&rows),
-        })
+        }
     }
 
     /// Index of the medium called `name` in [`Scene::media`].

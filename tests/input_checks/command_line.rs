@@ -362,7 +362,7 @@ fn bound(command: &mut Command) -> bool {
         Command::Materials(a) => to_file(&mut a.output),
         Command::Chart(a) => {
             small_chart(&mut a.size);
-            a.steps = a.steps.min(3);
+            a.steps = Some(a.steps.unwrap_or(3).min(3));
         }
         Command::Report(a) => small_chart(&mut a.size),
         Command::Compare(a) => to_file(&mut a.output),

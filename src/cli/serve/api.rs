@@ -457,7 +457,7 @@ pub async fn spectra_chart(
         let chart = SpectraChart::compute(
             &[(&scene, &viewing)],
             &angles,
-            &curves,
+            Some(&curves),
             request.transmittance,
         )
         .and_then(|c| chart::svg(&c, SPECTRA_SIZE));
