@@ -821,6 +821,11 @@ fn chiral_report_shows_both_handednesses() {
     assert!(html.contains("Left and right circular polarization"));
     assert!(html.contains("<th colspan=2>Through a left analyser</th>"));
     assert!(html.contains("a left-handed helix reflects left-handed light at normal incidence"));
+    // The layer table names the helix layer by its material, handedness and pitch.
+    assert!(
+        html.contains("cnc_film · left-handed helix, pitch 300 nm"),
+        "layer table"
+    );
     let out = lamella(&[
         "chart",
         path.to_str().unwrap(),

@@ -257,12 +257,26 @@ pub(super) fn stack_rows(
         match item {
             Item::Layer(l) => {
                 *next += 1;
+                // An anisotropic layer by its material's own name, a helix
+                // with its handedness and pitch.
+                let material = match &l.anisotropy {
+                    Some(a) => match &a.helix {
+                        Some(h) => format!(
+                            "{} · {}-handed helix, pitch {} nm",
+                            scene.crystals[a.crystal].name,
+                            h.handedness.name(),
+                            h.pitch_nm
+                        ),
+                        None => scene.crystals[a.crystal].name.clone(),
+                    },
+                    None => scene.media[l.medium].name.clone(),
+                };
                 let _ = writeln!(
                     out,
                     "<tr><td>{}</td><td style=\"padding-left:{}em\">{}</td><td class=n>{}</td></tr>",
                     next,
                     depth * 2,
-                    escape(&scene.media[l.medium].name),
+                    escape(&material),
                     l.thickness_nm
                 );
             }
