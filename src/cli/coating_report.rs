@@ -15,7 +15,9 @@ use lamella::scene::{Scene, Sigma};
 
 use super::choices::{PolarizationChoice, SideChoice};
 use super::color::ViewArgs;
-use super::report::{Args, Drawn, Provenance, close_page, open_page, stack_rows, write_chart};
+use super::report::{
+    Args, Drawn, Provenance, close_page, colour_cells, open_page, stack_rows, write_chart,
+};
 use super::{CliResult, Failure, write_out};
 
 /// Writes the coating report of `scene` (read from `args.scene`).
@@ -198,7 +200,7 @@ fn geometry_table(m: &Measurement, viewing: &Viewing, h: &mut String) {
         let c = &g.colour;
         let _ = writeln!(
             h,
-            "<tr><td>{}</td><td class=n>{}°</td><td class=n>{}°{}</td><td><span class=sw style=\"background:{hex}\"></span></td><td>{hex}</td><td class=n>{:.2}</td><td class=n>{:.1}</td><td class=n>{:.1}</td><td class=n>{:.1}</td><td class=n>{:.1}</td><td class=n>{:.0}</td><td>{}</td></tr>",
+            "<tr><td>{}</td><td class=n>{}°</td><td class=n>{}°{}</td>{}</tr>",
             escape(&g.geometry.name),
             g.geometry.illumination_deg,
             g.geometry.aspecular_deg,
@@ -207,18 +209,7 @@ fn geometry_table(m: &Measurement, viewing: &Viewing, h: &mut String) {
             } else {
                 " (out of plane)"
             },
-            c.xyz[1],
-            c.lab[0],
-            c.lab[1],
-            c.lab[2],
-            c.lch[1],
-            c.lch[2],
-            if c.in_gamut {
-                "inside"
-            } else {
-                "<b class=warn>outside</b>"
-            },
-            hex = c.hex,
+            colour_cells(c, Some(c.xyz[1])),
         );
     }
     h.push_str("</tbody></table>\n");

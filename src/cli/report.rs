@@ -75,6 +75,26 @@ impl Provenance {
     }
 }
 
+/// The table cells of a colour: swatch, hex, (Y when given), L*, a*, b*,
+/// C*, h and whether it lies inside sRGB.
+pub(super) fn colour_cells(c: &lamella::colorimetry::Colour, y: Option<f64>) -> String {
+    let y = y.map_or(String::new(), |y| format!("<td class=n>{y:.2}</td>"));
+    format!(
+        "<td><span class=sw style=\"background:{hex}\"></span></td><td>{hex}</td>{y}<td class=n>{:.1}</td><td class=n>{:.1}</td><td class=n>{:.1}</td><td class=n>{:.1}</td><td class=n>{:.0}</td><td>{}</td>",
+        c.lab[0],
+        c.lab[1],
+        c.lab[2],
+        c.lch[1],
+        c.lch[2],
+        if c.in_gamut {
+            "inside"
+        } else {
+            "<b class=warn>outside</b>"
+        },
+        hex = c.hex,
+    )
+}
+
 /// A drawn chart: file stem, heading and SVG text.
 pub(super) struct Drawn {
     stem: String,
@@ -347,21 +367,7 @@ fn page(
     // Colours.
     h.push_str("<section><h2>Colour at each angle</h2><table><thead><tr><th>Angle</th><th>Swatch</th><th>Hex</th><th>L*</th><th>a*</th><th>b*</th><th>C*</th><th>h (°)</th><th>sRGB gamut</th></tr></thead><tbody>\n");
     for (a, c) in series.angles.iter().zip(&series.colours) {
-        let _ = writeln!(
-            h,
-            "<tr><td class=n>{a}°</td><td><span class=sw style=\"background:{hex}\"></span></td><td>{hex}</td><td class=n>{:.1}</td><td class=n>{:.1}</td><td class=n>{:.1}</td><td class=n>{:.1}</td><td class=n>{:.0}</td><td>{}</td></tr>",
-            c.lab[0],
-            c.lab[1],
-            c.lab[2],
-            c.lch[1],
-            c.lch[2],
-            if c.in_gamut {
-                "inside"
-            } else {
-                "<b class=warn>outside</b>"
-            },
-            hex = c.hex,
-        );
+        let _ = writeln!(h, "<tr><td class=n>{a}°</td>{}</tr>", colour_cells(c, None));
     }
     h.push_str("</tbody></table>\n");
     let samples: Vec<(f64, [f64; 3])> = series
