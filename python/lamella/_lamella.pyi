@@ -11,7 +11,10 @@ import numpy.typing as npt
 Float1D = npt.NDArray[np.float64]
 Float2D = npt.NDArray[np.float64]
 Side = Literal["reflect", "transmit"]
-Polarization = Literal["unpolarized", "s", "p"]
+Polarization = Literal["unpolarized", "s", "p", "left", "right"]
+Handedness = Literal["left", "right"]
+Basis = Literal["linear", "circular"]
+Complex4D = npt.NDArray[np.complex128]
 Gamut = Literal["clip", "chroma"]
 ArrayLike1D = npt.ArrayLike
 Lab = Sequence[float]
@@ -28,15 +31,27 @@ class SceneWarning(UserWarning):
     """What a valid scene may still get wrong, naming the key."""
 
 class Spectrum:
-    """R, T and A on a grid: arrays (A, W) of fractions; `wavelength_nm` (W,), `angle_deg` (A,)."""
+    """R, T and A on a grid: arrays (A, W) of fractions; `wavelength_nm` (W,), `angle_deg` (A,).
+
+    The linear basis has R_s, R_p, T_s, T_p; the circular basis R_L, R_R, T_L, T_R
+    (totals for left- and right-handed incident light). `r_jones`, `t_jones`: complex
+    Jones matrices (A, W, 2, 2) in the basis, order `jones_basis`, or None."""
 
     wavelength_nm: Float1D
     angle_deg: Float1D
+    basis: Basis
+    jones_basis: tuple[str, str]
+    r_jones: Complex4D | None
+    t_jones: Complex4D | None
     R_s: Float2D
     R_p: Float2D
+    R_L: Float2D
+    R_R: Float2D
     R: Float2D
     T_s: Float2D
     T_p: Float2D
+    T_L: Float2D
+    T_R: Float2D
     T: Float2D
     A: Float2D
     def to_pandas(self) -> Any:
@@ -110,9 +125,14 @@ class Scene:
     def with_thicknesses(self, thicknesses: Mapping[str, float]) -> Scene:
         """A copy with layer thicknesses (nm) changed, by layer pointer."""
     def spectrum(
-        self, wavelengths_nm: ArrayLike1D | None = None, angles_deg: ArrayLike1D | None = None
+        self,
+        wavelengths_nm: ArrayLike1D | None = None,
+        angles_deg: ArrayLike1D | None = None,
+        basis: Basis = "linear",
+        jones: bool | None = None,
     ) -> Spectrum:
-        """R, T, A for s, p and unpolarized light (bit for bit `lamella spectrum`)."""
+        """R, T, A in the linear (s, p) or circular (L, R) basis, with Jones matrices
+        when `jones` (default: for anisotropic scenes); bit for bit `lamella spectrum`."""
     def layer_absorption(self) -> LayerAbsorption:
         """Absorptance per layer (bit for bit `lamella spectrum --layer-absorption`)."""
     def field(
@@ -132,6 +152,7 @@ class Scene:
         side: Side = "reflect",
         polarization: Polarization = "unpolarized",
         gamut: Gamut = "clip",
+        analyzer: Handedness | None = None,
     ) -> Colors:
         """XYZ, xy, L*a*b*, C*, h, sRGB, hex and gamut at every angle (as `lamella color`)."""
     @property
@@ -196,6 +217,7 @@ def match(
     side: Side = "reflect",
     polarization: Polarization = "unpolarized",
     gamut: Gamut = "clip",
+    analyzer: Handedness | None = None,
 ) -> dict[str, Any]:
     """`lamella match`: the report as a dict, with `scene` the matched Scene."""
 
@@ -215,6 +237,7 @@ def tolerance(
     side: Side = "reflect",
     polarization: Polarization = "unpolarized",
     gamut: Gamut = "clip",
+    analyzer: Handedness | None = None,
 ) -> dict[str, Any]:
     """`lamella tolerance`: ΔE00 statistics, yield and sensitivity as a dict."""
 
@@ -260,7 +283,7 @@ def render(
     view: str | None = None,
     floor: float | str | bool | None = None,
     shadow: bool | str | None = None,
-    analyzer: str | None = None,
+    analyzer: Handedness | None = None,
     caption: bool | str | None = None,
     orbit_elevation_deg: tuple[float, float] | None = None,
 ) -> npt.NDArray[np.uint8]:
@@ -287,6 +310,7 @@ def chart(
     wavelength: float | None = None,
     angle: float = 0.0,
     with_reflectance: bool = False,
+    analyzer: Handedness | None = None,
 ) -> Chart:
     """`lamella chart`: a Chart object."""
 

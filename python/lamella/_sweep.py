@@ -6,8 +6,6 @@ import numpy as np
 
 from . import _lamella
 
-_SWEEP_KEYS = ("illuminant", "observer", "side", "polarization", "gamut")
-
 
 def _table(columns, as_frame):
     """The columns of ``_lamella._sweep`` as a DataFrame or a dict of arrays."""
@@ -67,6 +65,7 @@ def sweep(
     side="reflect",
     polarization="unpolarized",
     gamut="clip",
+    analyzer=None,
     client=None,
     shards=None,
     lazy=False,
@@ -91,8 +90,8 @@ def sweep(
         Angle of incidence in degrees.
     shard : (I, N), optional
         Evaluate only share I of N (1 ≤ I ≤ N), as ``--shard I/N``.
-    illuminant, observer, side, polarization, gamut
-        As for ``Scene.color``.
+    illuminant, observer, side, polarization, gamut, analyzer
+        As for ``Scene.color`` (``analyzer="left"``: through a circular analyser).
     client : dask.distributed.Client, optional
         Split the sweep into ``shards`` (default: two per worker thread) and run
         them on the cluster's workers; the result is identical number for number
@@ -124,6 +123,7 @@ def sweep(
         side=side,
         polarization=polarization,
         gamut=gamut,
+        analyzer=analyzer,
     )
     if client is None:
         if lazy:

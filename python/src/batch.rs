@@ -1,10 +1,9 @@
 //! `reflectance_batch`: R and T of many designs that share a layer sequence,
-//! for inverse design and machine learning. Each design goes through the
-//! engine's four-wavelength kernel (`Stack::rt_lanes`) in the blocks the
-//! grid driver uses, with the per-medium terms computed once per (angle,
-//! wavelength) when the media are shared, so a design costs only its layers.
+//! for inverse design and machine learning, through the engine's
+//! [`Batch`]: the per-medium terms are computed and packed once when the
+//! media are shared, so a design costs only the phases of its own layers.
 
-use lamella::optics::{Exit, LANES, MediumTerms, Node, Probe, Rt, Stack};
+use lamella::optics::{Batch, Rt};
 use num_complex::Complex64;
 use numpy::{AllowTypeChange, PyArrayLikeDyn};
 use pyo3::prelude::*;
@@ -26,53 +25,6 @@ struct Media {
     per_design: bool,
     /// Media per design: incident, layers, exit.
     m: usize,
-}
-
-/// The evaluation points and medium terms of one media table.
-struct Terms {
-    /// Angle-major, then wavelength.
-    probes: Vec<Probe>,
-    /// `terms[(a * nw + w) * m + j]`.
-    terms: Vec<MediumTerms>,
-}
-
-fn terms(n: &[Complex64], m: usize, wavelengths: &[f64], angles: &[f64]) -> Terms {
-    let nw = wavelengths.len();
-    let mut probes = Vec::with_capacity(angles.len() * nw);
-    let mut terms = Vec::with_capacity(angles.len() * nw * m);
-    for &a in angles {
-        let sine = Probe::sine(a);
-        for (w, &wavelength) in wavelengths.iter().enumerate() {
-            let at = Probe::of(Probe::wavenumber(wavelength), n[w * m].re, sine);
-            probes.push(at);
-            terms.extend(
-                n[w * m..(w + 1) * m]
-                    .iter()
-                    .map(|&z| MediumTerms::new(z, at.beta())),
-            );
-        }
-    }
-    Terms { probes, terms }
-}
-
-/// R and T of `stack` at every (angle, wavelength), angle-major, in the
-/// four-wavelength blocks of the engine's grid driver (a short last block
-/// repeats its final wavelength).
-fn evaluate(stack: &Stack, t: &Terms, m: usize, nw: usize, na: usize, out: &mut [Rt]) {
-    for a in 0..na {
-        for first in (0..nw).step_by(LANES) {
-            let last = (first + LANES).min(nw) - 1;
-            let ws: [usize; LANES] = std::array::from_fn(|l| (first + l).min(last));
-            let point = |l: usize| a * nw + ws[l];
-            let lanes: [&[MediumTerms]; LANES] =
-                std::array::from_fn(|l| &t.terms[point(l) * m..(point(l) + 1) * m]);
-            let at: [Probe; LANES] = std::array::from_fn(|l| t.probes[point(l)]);
-            let rt = stack.rt_lanes(lanes, &at);
-            for (l, x) in rt.iter().enumerate().take(last + 1 - first) {
-                out[a * nw + first + l] = *x;
-            }
-        }
-    }
 }
 
 /// Reads and checks the media argument: shape (W, M) or (D, W, M).
@@ -200,7 +152,7 @@ pub fn reflectance_batch<'py>(
         ))
         .into());
     };
-    let large = total * (layers + 2) > crate::spectrum::SMALL_WORK;
+    let large = total * (layers + 2) > crate::grid::SMALL_WORK;
     let [rs, rp, r, ts, tp, t] = run(py, large, |stop| {
         compute(&media, &thick, designs, layers, &wavelengths, &angles, stop)
     })?;
@@ -224,6 +176,27 @@ pub fn reflectance_batch<'py>(
 /// R_s, R_p, R, T_s, T_p and T, each (D, A, W) in row-major order.
 type Columns = [Vec<f64>; 6];
 
+/// A zeroed output column of `len` numbers. A large one comes straight from
+/// the kernel untouched, and on Linux it is marked for huge pages before
+/// the first write: a batch's columns run to hundreds of megabytes, and
+/// faulting them in 4 KiB pages costs a sixth of the computation.
+fn column(len: usize) -> Vec<f64> {
+    let v = vec![0.0; len];
+    #[cfg(target_os = "linux")]
+    if len >= 1 << 18 {
+        // The advice takes whole pages: from the first page boundary inside.
+        let (start, end) = (v.as_ptr() as usize, v.as_ptr() as usize + len * 8);
+        let first = start.next_multiple_of(4096);
+        // SAFETY: the range lies inside the vector's own allocation; the
+        // advice changes only how its pages are backed, never their contents.
+        unsafe {
+            libc::madvise(first as *mut libc::c_void, end - first, libc::MADV_HUGEPAGE);
+        }
+    }
+    v
+}
+
+/// R and T of every design into the six columns.
 fn compute(
     media: &Media,
     thick: &[f64],
@@ -235,18 +208,16 @@ fn compute(
 ) -> Outcome<Columns> {
     let (nw, na, m) = (wavelengths.len(), angles.len(), media.m);
     let per = na * nw;
-    let shared = (!media.per_design).then(|| terms(&media.n, m, wavelengths, angles));
-    let template = Stack {
-        incident: 0,
-        nodes: (1..=layers)
-            .map(|j| Node::Layer {
-                medium: j,
-                thickness_nm: 0.0,
-            })
-            .collect(),
-        exit: Exit::Medium(layers + 1),
+    let batch_of = |d: usize| {
+        Batch::new(
+            &media.n[d * nw * m..(d + 1) * nw * m],
+            layers,
+            wavelengths,
+            angles,
+        )
     };
-    let mut columns: Columns = std::array::from_fn(|_| vec![0.0; designs * per]);
+    let shared = (!media.per_design).then(|| batch_of(0));
+    let mut columns: Columns = std::array::from_fn(|_| column(designs * per));
     let piece = (DESIGNS_PER_PIECE * per).max(1);
     let [rs, rp, r_mean, ts, tp, t_mean] = &mut columns;
     rs.par_chunks_mut(piece)
@@ -257,35 +228,21 @@ fn compute(
         .zip(t_mean.par_chunks_mut(piece))
         .enumerate()
         .try_for_each_init(
-            || (template.clone(), vec![Rt::default(); per]),
-            |(stack, out), (p, (((((rs, rp), r_mean), ts), tp), t_mean))| {
+            || vec![Rt::default(); per],
+            |out, (p, (((((rs, rp), r_mean), ts), tp), t_mean))| {
                 stop.check()?;
                 let first = p * DESIGNS_PER_PIECE;
                 for k in 0..rs.len() / per.max(1) {
                     let d = first + k;
-                    for (node, &x) in stack
-                        .nodes
-                        .iter_mut()
-                        .zip(&thick[d * layers..(d + 1) * layers])
-                    {
-                        if let Node::Layer { thickness_nm, .. } = node {
-                            *thickness_nm = x;
-                        }
-                    }
                     let own;
-                    let t = match &shared {
-                        Some(t) => t,
+                    let batch = match &shared {
+                        Some(b) => b,
                         None => {
-                            own = terms(
-                                &media.n[d * nw * m..(d + 1) * nw * m],
-                                m,
-                                wavelengths,
-                                angles,
-                            );
+                            own = batch_of(d);
                             &own
                         }
                     };
-                    evaluate(stack, t, m, nw, na, out);
+                    batch.rt(&thick[d * layers..(d + 1) * layers], out);
                     if let Some(i) = out
                         .iter()
                         .position(|x| !(x.rs + x.rp + x.ts + x.tp).is_finite())

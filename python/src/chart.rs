@@ -167,7 +167,8 @@ fn polarizations(names: &[String]) -> Outcome<Vec<Polarization>> {
 /// illuminant=None, observer=None, side="reflect",
 /// polarization="unpolarized", gamut="clip", ticks=None, angles=(0, 30, 60),
 /// curves=None, transmittance=False, layer=None, thickness_range=None,
-/// scale_range=None, steps=None, analyzer=None) -> Chart
+/// scale_range=None, steps=None, wavelength=None, angle=0.0,
+/// with_reflectance=False, analyzer=None) -> Chart
 ///
 /// A chart of colour against angle, as `lamella chart` draws it. Kinds:
 /// "angle-strip" (the colour at every angle, swatches at `ticks` degrees),
@@ -182,13 +183,16 @@ fn polarizations(names: &[String]) -> Outcome<Vec<Polarization>> {
 /// "bands" (the stop bands of the first repeat group's period, with
 /// `with_reflectance` beside the stack's reflectance map). "spectra", "chromaticity" and
 /// "ab-travel" compare the scenes in `compare` with `scene`. `size` is
-/// (width, height) in pixels; the viewing options are as for `Scene.color`.
+/// (width, height) in pixels; the viewing options are as for `Scene.color`,
+/// `analyzer` ("left" or "right") included for the colour charts. For a
+/// scene whose left- and right-handed light differ (a helix), unpolarized
+/// charts show both handednesses side by side.
 #[pyfunction(name = "chart")]
 #[pyo3(signature = (scene, kind="angle-strip", size=(1200, 800), compare=None, illuminant=None,
     observer=None, side="reflect", polarization="unpolarized", gamut="clip", ticks=None,
     angles=vec![0.0, 30.0, 60.0], curves=None,
     transmittance=false, layer=None, thickness_range=None, scale_range=None, steps=None,
-    wavelength=None, angle=0.0, with_reflectance=false))]
+    wavelength=None, angle=0.0, with_reflectance=false, analyzer=None))]
 #[allow(clippy::too_many_arguments)]
 pub fn chart_of(
     py: Python<'_>,
@@ -212,15 +216,24 @@ pub fn chart_of(
     wavelength: Option<f64>,
     angle: f64,
     with_reflectance: bool,
+    analyzer: Option<String>,
 ) -> PyResult<Chart> {
+    let name = kind.replace('_', "-");
+    if let (Some(h), "spectra" | "field" | "bands") = (&analyzer, name.as_str()) {
+        return Err(Failure::input(format!(
+            "analyzer = {h:?}: kind = {name:?} does not take a viewing; the analyser applies to \
+             the colour charts (angle-strip, thickness-angle, map, chromaticity, ab-travel)"
+        ))
+        .into());
+    }
     let view = ViewArgs {
         illuminant,
         observer,
         side: side.into(),
         polarization: polarization.into(),
         gamut: gamut.into(),
+        analyzer,
     };
-    let name = kind.replace('_', "-");
     let compares = matches!(name.as_str(), "spectra" | "chromaticity" | "ab-travel");
     let others = compare.unwrap_or_default();
     if !others.is_empty() && !compares {

@@ -8,9 +8,9 @@ use pyo3::prelude::*;
 use pyo3::types::{PyDict, PyList};
 
 use crate::convert::{array1, array2};
+use crate::grid::{SMALL_WORK, spectra, work_per_point};
 use crate::interrupt::run;
 use crate::scene::Scene;
-use crate::spectrum::{SMALL_WORK, spectra, work_per_point};
 use crate::view::ViewArgs;
 
 /// The colour at every angle of a scene.
@@ -156,7 +156,7 @@ pub fn colours(py: Python<'_>, scene: &Scene, view: &ViewArgs) -> PyResult<Colou
     let viewing = scene.viewing(view)?;
     let large = s.wavelengths_nm.len() * s.angles_deg.len() * work_per_point(s) > SMALL_WORK;
     let (list, travel) = run(py, large, |stop| {
-        let spectra = spectra(s, &scene.label, stop)?;
+        let spectra = spectra(s, &scene.label, &viewing, stop)?;
         let list = angle_colours(&spectra, &viewing).map_err(|e| scene.failure(e))?;
         let samples: Vec<(f64, [f64; 3])> = s
             .angles_deg

@@ -1,6 +1,6 @@
 //! Python values ↔ JSON values, and numpy arrays out.
 
-use numpy::ndarray::{Array2, Array3};
+use numpy::ndarray::{Array2, Array3, ArrayD, IxDyn};
 use numpy::{IntoPyArray, PyArray1};
 use pyo3::prelude::*;
 use pyo3::types::{PyBool, PyDict, PyFloat, PyInt, PyList, PyString, PyTuple};
@@ -146,6 +146,16 @@ pub fn array3<'py, T: numpy::Element>(
     v: Vec<T>,
 ) -> PyResult<Bound<'py, PyAny>> {
     let a = Array3::from_shape_vec(shape, v).map_err(crate::errors::internal)?;
+    Ok(a.into_pyarray(py).into_any())
+}
+
+/// A row-major vector as an array of any `shape`.
+pub fn arrayd<'py, T: numpy::Element>(
+    py: Python<'py>,
+    shape: &[usize],
+    v: Vec<T>,
+) -> PyResult<Bound<'py, PyAny>> {
+    let a = ArrayD::from_shape_vec(IxDyn(shape), v).map_err(crate::errors::internal)?;
     Ok(a.into_pyarray(py).into_any())
 }
 

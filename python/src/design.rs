@@ -107,7 +107,7 @@ fn report<'py>(
 /// match(scene, target_lab=None, target_hex=None, angle=None, geometry=None,
 /// goals=None, max_total_nm=None, brightness_weight=0.0, seed=1,
 /// max_evals=60000, illuminant=None, observer=None, side="reflect",
-/// polarization="unpolarized", gamut="clip") -> dict
+/// polarization="unpolarized", gamut="clip", analyzer=None) -> dict
 ///
 /// Optimises the scene's `vary_nm` thicknesses toward a target colour
 /// (CIEDE2000), as `lamella match` does; the same seed gives the same design.
@@ -121,7 +121,9 @@ fn report<'py>(
 /// - max_total_nm: upper limit on the total physical thickness, nm.
 /// - brightness_weight: adds w·(1 − Y/100) at the main target (ΔE00 units).
 /// - seed, max_evals: the search's seed and its most evaluations.
-/// - illuminant, observer, side, polarization, gamut: as for `Scene.color`.
+/// - illuminant, observer, side, polarization, gamut, analyzer: as for
+///   `Scene.color` (a goal under one handedness: polarization="left" or
+///   analyzer="left").
 ///
 /// Returns the command's report as a dict (`delta_e00`, `reachable`,
 /// `goals`, `thicknesses_nm`, `total_thickness_nm`, `evaluations`,
@@ -130,7 +132,7 @@ fn report<'py>(
 #[pyfunction(name = "match")]
 #[pyo3(signature = (scene, target_lab=None, target_hex=None, angle=None, geometry=None, goals=None,
     max_total_nm=None, brightness_weight=0.0, seed=1, max_evals=60000, illuminant=None,
-    observer=None, side="reflect", polarization="unpolarized", gamut="clip"))]
+    observer=None, side="reflect", polarization="unpolarized", gamut="clip", analyzer=None))]
 #[allow(clippy::too_many_arguments)]
 pub fn match_<'py>(
     py: Python<'py>,
@@ -149,11 +151,19 @@ pub fn match_<'py>(
     side: &str,
     polarization: &str,
     gamut: &str,
+    analyzer: Option<String>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let started = Instant::now();
     scene.warn(py, true)?;
     let s = &scene.inner;
-    let viewing = scene.viewing(&view(illuminant, observer, side, polarization, gamut))?;
+    let viewing = scene.viewing(&view(
+        illuminant,
+        observer,
+        side,
+        polarization,
+        gamut,
+        analyzer,
+    ))?;
     let lab0 = target(&viewing, &s.wavelengths_nm, target_lab, target_hex)?
         .ok_or_else(|| Failure::input("give target_lab=(L, a, b) or target_hex=\"#RRGGBB\""))?;
     let main = match (geometry, angle) {
@@ -243,6 +253,7 @@ fn view(
     side: &str,
     polarization: &str,
     gamut: &str,
+    analyzer: Option<String>,
 ) -> ViewArgs {
     ViewArgs {
         illuminant,
@@ -250,13 +261,14 @@ fn view(
         side: side.into(),
         polarization: polarization.into(),
         gamut: gamut.into(),
+        analyzer,
     }
 }
 
 /// tolerance(scene, sigma_nm=None, sigma_pct=None, sigma_n=0.0,
 /// per_period=False, yield_angles=None, yield_geometries=None, samples=1000,
 /// limit=1.0, seed=1, illuminant=None, observer=None, side="reflect",
-/// polarization="unpolarized", gamut="clip") -> dict
+/// polarization="unpolarized", gamut="clip", analyzer=None) -> dict
 ///
 /// Monte Carlo tolerance of a design, as `lamella tolerance`: every layer as
 /// written draws a Gaussian thickness error of `sigma_nm` (nm) or
@@ -267,11 +279,12 @@ fn view(
 /// `yield` within `limit` (ΔE00), per angle (`angles`) or geometry
 /// (`geometries`, for a coating), and the layers ranked in `sensitivity`.
 /// `yield_angles` (degrees on the scene's grid) or `yield_geometries`
-/// (names) choose the points that count.
+/// (names) choose the points that count. The viewing options are as for
+/// `Scene.color`, `analyzer` included.
 #[pyfunction]
 #[pyo3(signature = (scene, sigma_nm=None, sigma_pct=None, sigma_n=0.0, per_period=false,
     yield_angles=None, yield_geometries=None, samples=1000, limit=1.0, seed=1, illuminant=None,
-    observer=None, side="reflect", polarization="unpolarized", gamut="clip"))]
+    observer=None, side="reflect", polarization="unpolarized", gamut="clip", analyzer=None))]
 #[allow(clippy::too_many_arguments)]
 pub fn tolerance<'py>(
     py: Python<'py>,
@@ -290,11 +303,19 @@ pub fn tolerance<'py>(
     side: &str,
     polarization: &str,
     gamut: &str,
+    analyzer: Option<String>,
 ) -> PyResult<Bound<'py, PyDict>> {
     let started = Instant::now();
     scene.warn(py, true)?;
     let s = &scene.inner;
-    let viewing = scene.viewing(&view(illuminant, observer, side, polarization, gamut))?;
+    let viewing = scene.viewing(&view(
+        illuminant,
+        observer,
+        side,
+        polarization,
+        gamut,
+        analyzer,
+    ))?;
     let thickness = match (sigma_nm, sigma_pct) {
         (Some(x), None) => Sigma::Nm(x),
         (None, Some(p)) => Sigma::Pct(p),
@@ -523,7 +544,7 @@ struct Piece {
 
 /// _sweep(scene, samples=None, grid=None, seed=1, target_lab=None,
 /// target_hex=None, angle=0.0, shard=None, illuminant=None, observer=None,
-/// side="reflect", polarization="unpolarized", gamut="clip") -> dict
+/// side="reflect", polarization="unpolarized", gamut="clip", analyzer=None) -> dict
 ///
 /// The designs of `lamella sweep` (share `shard` = (I, N) of them, 1 ≤ I ≤ N)
 /// as columns: `index` (uint64), `thicknesses_nm` (N, V), `L`, `a`, `b`,
@@ -532,7 +553,7 @@ struct Piece {
 #[pyfunction]
 #[pyo3(signature = (scene, samples=None, grid=None, seed=1, target_lab=None, target_hex=None,
     angle=0.0, shard=None, illuminant=None, observer=None, side="reflect",
-    polarization="unpolarized", gamut="clip"))]
+    polarization="unpolarized", gamut="clip", analyzer=None))]
 #[allow(clippy::too_many_arguments)]
 pub fn _sweep<'py>(
     py: Python<'py>,
@@ -549,10 +570,18 @@ pub fn _sweep<'py>(
     side: &str,
     polarization: &str,
     gamut: &str,
+    analyzer: Option<String>,
 ) -> PyResult<Bound<'py, PyDict>> {
     scene.warn(py, true)?;
     let s = &scene.inner;
-    let viewing = scene.viewing(&view(illuminant, observer, side, polarization, gamut))?;
+    let viewing = scene.viewing(&view(
+        illuminant,
+        observer,
+        side,
+        polarization,
+        gamut,
+        analyzer,
+    ))?;
     let target = target(&viewing, &s.wavelengths_nm, target_lab, target_hex)?;
     let vars = varying(s);
     if vars.is_empty() {

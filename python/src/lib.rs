@@ -13,6 +13,7 @@ mod convert;
 mod design;
 mod errors;
 mod files;
+mod grid;
 mod inside;
 mod interrupt;
 mod pigment;

@@ -77,6 +77,7 @@ pub fn multiangle<'py>(
         side: "reflect".into(),
         polarization: "unpolarized".into(),
         gamut: gamut.into(),
+        analyzer: None,
     })?;
     let m = run(py, true, |stop| {
         let weights = viewing

@@ -59,7 +59,6 @@ fn build(
         Ok(t)
     };
     let scene = Engine::from_json(text, &load)?;
-    scene.require_isotropic("the Python package")?;
     Ok((scene, read.into_inner()))
 }
 
@@ -235,30 +234,46 @@ impl Scene {
         self.edited(py, &doc)
     }
 
-    /// spectrum(wavelengths_nm=None, angles_deg=None) -> Spectrum
+    /// spectrum(wavelengths_nm=None, angles_deg=None, basis="linear", jones=None) -> Spectrum
     ///
-    /// Reflectance, transmittance and absorptance for s, p and unpolarized
-    /// light, computed by the engine on the scene's grid or on the given
-    /// wavelengths (nm, > 0) and angles of incidence (degrees, |θ| < 90).
+    /// Reflectance, transmittance and absorptance for polarized and
+    /// unpolarized light, computed by the engine on the scene's grid or on
+    /// the given wavelengths (nm, > 0) and angles of incidence (degrees,
+    /// |θ| < 90).
+    ///
+    /// - basis: "linear" gives `R_s, R_p, R, T_s, T_p, T, A`; "circular"
+    ///   gives `R_L, R_R, R, T_L, T_R, T, A`, R_L being the total reflectance
+    ///   (co- plus cross-polarized) for left-handed incident light. Light's
+    ///   handedness is named by the helix its electric field traces in space
+    ///   at one instant: a left-handed helix reflects left-handed light at
+    ///   normal incidence.
+    /// - jones: also give the complex Jones matrices `r_jones`, `t_jones`
+    ///   (A, W, 2, 2) in the basis (order `jones_basis`: ("p", "s") or
+    ///   ("L", "R")), as `lamella spectrum --format json` does; default: for
+    ///   scenes with anisotropic layers, whose R and T come from them.
     ///
     /// Returns a `Spectrum` with float64 arrays `wavelength_nm` (W,),
-    /// `angle_deg` (A,) and `R_s, R_p, R, T_s, T_p, T, A` of shape (A, W):
-    /// fractions of the incident power, unpolarized R = (R_s + R_p)/2, and
+    /// `angle_deg` (A,) and the seven columns of shape (A, W): fractions of
+    /// the incident power, for anisotropic layers totals over the outgoing
+    /// polarizations, unpolarized R the mean of the two incident ones, and
     /// A = 1 − R − T (exactly 0 where nothing absorbs). On the scene's grid
-    /// the numbers are bit for bit those `lamella spectrum` prints, averaged
-    /// over the disorder ensemble when the scene has one.
+    /// the numbers are bit for bit those `lamella spectrum --basis` prints,
+    /// averaged over the disorder ensemble when the scene has one.
     ///
-    /// Raises `SceneError` for a coating-only scene or a bad grid, and
+    /// Raises `SceneError` for a coating-only scene, a bad grid or basis,
+    /// Jones matrices of a stack that is not coherent, and
     /// `NotComputableError` naming the point for a value that is not finite.
     /// Releases the GIL; Ctrl-C stops a long call.
-    #[pyo3(signature = (wavelengths_nm=None, angles_deg=None))]
+    #[pyo3(signature = (wavelengths_nm=None, angles_deg=None, basis="linear", jones=None))]
     fn spectrum(
         &self,
         py: Python<'_>,
         wavelengths_nm: Option<&Bound<'_, PyAny>>,
         angles_deg: Option<&Bound<'_, PyAny>>,
+        basis: &str,
+        jones: Option<bool>,
     ) -> PyResult<Spectrum> {
-        spectrum(py, self, wavelengths_nm, angles_deg)
+        spectrum(py, self, wavelengths_nm, angles_deg, basis, jones)
     }
 
     /// layer_absorption() -> LayerAbsorption
@@ -304,7 +319,7 @@ impl Scene {
     }
 
     /// color(illuminant=None, observer=None, side="reflect",
-    /// polarization="unpolarized", gamut="clip") -> Colors
+    /// polarization="unpolarized", gamut="clip", analyzer=None) -> Colors
     ///
     /// The colour at every angle of the scene, as `lamella color` reports it:
     /// CIE XYZ (perfect reflecting diffuser Y = 100), xy, CIELAB L*a*b*
@@ -316,14 +331,19 @@ impl Scene {
     ///   or a `wavelength_nm,power` CSV file; default: the scene's.
     /// - observer: "CIE1931_2" or "CIE1964_10"; default: the scene's.
     /// - side: "reflect" or "transmit".
-    /// - polarization: "unpolarized", "s" or "p".
+    /// - polarization: "unpolarized", "s", "p", or "left" / "right" for
+    ///   circularly polarized incident light.
     /// - gamut: "clip" (each channel) or "chroma" (reduce chroma at constant
     ///   L* and hue) for colours outside sRGB.
+    /// - analyzer: "left" or "right": unpolarized light, the reflected (or
+    ///   transmitted) light seen through an ideal circular analyser passing
+    ///   that handedness, as through circular-polarizer glasses.
     ///
     /// Returns `Colors` with arrays of shape (A,) (`srgb` (A, 3), `hex` a
     /// list of str) and `.to_pandas()`. Screen colours are approximations:
     /// colour sign-off needs a measured sample.
-    #[pyo3(signature = (illuminant=None, observer=None, side="reflect", polarization="unpolarized", gamut="clip"))]
+    #[pyo3(signature = (illuminant=None, observer=None, side="reflect", polarization="unpolarized", gamut="clip", analyzer=None))]
+    #[allow(clippy::too_many_arguments)]
     fn color(
         &self,
         py: Python<'_>,
@@ -332,6 +352,7 @@ impl Scene {
         side: &str,
         polarization: &str,
         gamut: &str,
+        analyzer: Option<String>,
     ) -> PyResult<Colours> {
         let view = ViewArgs {
             illuminant,
@@ -339,6 +360,7 @@ impl Scene {
             side: side.into(),
             polarization: polarization.into(),
             gamut: gamut.into(),
+            analyzer,
         };
         colours(py, self, &view)
     }

@@ -1,96 +1,187 @@
-//! `Scene.spectrum`: R, T and A on a grid, computed by the engine's grid
-//! driver piece by piece (the pieces `lamella spectrum` computes), so the
-//! numbers are the command line's bit for bit.
+//! `Scene.spectrum`: R, T and A on a grid in the linear or circular basis,
+//! with the Jones matrices, bit for bit those of `lamella spectrum`.
 
-use lamella::optics::{LANES, Node, Rows, Rt, Spectra};
-use lamella::scene::{GRID_BYTES_PER_POINT, MAX_GRID_BYTES, Scene as Engine, check_point};
+use lamella::optics::aniso::Jones;
+use lamella::optics::{CIRCULAR_COLUMNS, Circular, LINEAR_COLUMNS};
+use lamella::scene::{GRID_BYTES_PER_POINT, MAX_GRID_BYTES};
+use num_complex::Complex64;
 use pyo3::prelude::*;
 use pyo3::types::PyDict;
-use rayon::prelude::*;
 
-use crate::convert::{array1, array2, floats};
+use crate::convert::{array1, array2, arrayd, floats};
 use crate::errors::{Failure, Outcome};
-use crate::interrupt::{Stop, run};
+use crate::grid::{Grid, SMALL_WORK, computed, work_per_point};
+use crate::interrupt::run;
 use crate::scene::Scene;
-
-/// Wavelengths per piece of work (as in `lamella spectrum`): one angle and
-/// a run of up to this many wavelengths, on one thread.
-const PIECE: usize = 512;
-
-/// Below this many points × layers a grid is computed on the calling thread
-/// without the thread pool: a small call costs microseconds, not a thread.
-pub const SMALL_WORK: usize = 20_000;
-
-/// Layer evaluations per piece at most (a few milliseconds), so that a
-/// stop request is seen promptly however costly each point is.
-const PIECE_WORK: usize = 2_000_000;
 
 /// Reflectance, transmittance and absorptance on a wavelength × angle grid.
 ///
 /// Attributes (float64 numpy arrays): `wavelength_nm` (W,) in nm, `angle_deg`
-/// (A,) in degrees of incidence, and `R_s`, `R_p`, `R`, `T_s`, `T_p`, `T`,
-/// `A` of shape (A, W), fractions of the incident power (R = (R_s + R_p)/2,
-/// T likewise, A = 1 − R − T and exactly 0 where nothing absorbs).
-#[pyclass(module = "lamella", frozen, get_all)]
+/// (A,) in degrees of incidence, and seven columns of shape (A, W),
+/// fractions of the incident power: in the linear basis `R_s`, `R_p`, `R`,
+/// `T_s`, `T_p`, `T`, `A`; in the circular basis `R_L`, `R_R`, `R`, `T_L`,
+/// `T_R`, `T`, `A` (R_L: the total reflectance, co- plus cross-polarized,
+/// for left-handed incident light). R and T are for unpolarized light,
+/// A = 1 − R − T (exactly 0 where nothing absorbs). `basis` names the
+/// basis; `r_jones` and `t_jones` are the complex 2×2 reflection and
+/// transmission Jones matrices (A, W, 2, 2) in it, rows (outgoing) and
+/// columns (incident) in the order of `jones_basis`, or None.
+#[pyclass(module = "lamella", frozen)]
 pub struct Spectrum {
     /// Wavelengths, nm (W,).
     wavelength_nm: Py<PyAny>,
     /// Angles of incidence, degrees (A,).
     angle_deg: Py<PyAny>,
-    /// s reflectance (A, W).
-    #[pyo3(name = "R_s")]
-    r_s: Py<PyAny>,
-    /// p reflectance (A, W).
-    #[pyo3(name = "R_p")]
-    r_p: Py<PyAny>,
-    /// Unpolarized reflectance (A, W).
-    #[pyo3(name = "R")]
-    r: Py<PyAny>,
-    /// s transmittance (A, W).
-    #[pyo3(name = "T_s")]
-    t_s: Py<PyAny>,
-    /// p transmittance (A, W).
-    #[pyo3(name = "T_p")]
-    t_p: Py<PyAny>,
-    /// Unpolarized transmittance (A, W).
-    #[pyo3(name = "T")]
-    t: Py<PyAny>,
-    /// Unpolarized absorptance (A, W).
-    #[pyo3(name = "A")]
-    a: Py<PyAny>,
+    /// The polarization basis.
+    basis: Basis,
+    /// The seven result columns (A, W), named by the basis.
+    columns: [Py<PyAny>; 7],
+    /// Reflection Jones matrices (A, W, 2, 2), when computed.
+    r_jones: Option<Py<PyAny>>,
+    /// Transmission Jones matrices (A, W, 2, 2), when computed.
+    t_jones: Option<Py<PyAny>>,
 }
 
-/// Column names of the long table, as in `lamella spectrum`'s CSV.
-const COLUMNS: [&str; 9] = [
-    "wavelength_nm",
-    "angle_deg",
-    "R_s",
-    "R_p",
-    "R",
-    "T_s",
-    "T_p",
-    "T",
-    "A",
-];
+/// The polarization basis of a spectrum.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+enum Basis {
+    /// s and p.
+    Linear,
+    /// Left- and right-handed circular.
+    Circular,
+}
+
+impl Basis {
+    /// `linear` or `circular` (the argument `basis`).
+    fn parse(s: &str) -> Outcome<Basis> {
+        match s {
+            "linear" => Ok(Basis::Linear),
+            "circular" => Ok(Basis::Circular),
+            _ => Err(Failure::input(format!(
+                "basis = {s:?}: expected \"linear\" or \"circular\""
+            ))),
+        }
+    }
+
+    /// `linear` or `circular`.
+    fn name(self) -> &'static str {
+        match self {
+            Basis::Linear => "linear",
+            Basis::Circular => "circular",
+        }
+    }
+
+    /// The table's column names, as in `lamella spectrum --basis`.
+    fn names(self) -> &'static [&'static str; 9] {
+        match self {
+            Basis::Linear => &LINEAR_COLUMNS,
+            Basis::Circular => &CIRCULAR_COLUMNS,
+        }
+    }
+
+    /// The order of the Jones matrices' rows and columns, as in `lamella
+    /// spectrum --format json`'s `jones_basis`.
+    fn jones_order(self) -> (&'static str, &'static str) {
+        match self {
+            Basis::Linear => ("p", "s"),
+            Basis::Circular => ("L", "R"),
+        }
+    }
+
+    /// A point's Jones matrices in this basis.
+    fn jones(self, j: &Jones) -> Jones {
+        match self {
+            Basis::Linear => *j,
+            Basis::Circular => j.circular(),
+        }
+    }
+}
 
 #[pymethods]
 impl Spectrum {
+    /// Wavelengths, nm (W,).
+    #[getter]
+    fn wavelength_nm(&self, py: Python<'_>) -> Py<PyAny> {
+        self.wavelength_nm.clone_ref(py)
+    }
+
+    /// Angles of incidence, degrees (A,).
+    #[getter]
+    fn angle_deg(&self, py: Python<'_>) -> Py<PyAny> {
+        self.angle_deg.clone_ref(py)
+    }
+
+    /// "linear" (R_s, R_p, T_s, T_p) or "circular" (R_L, R_R, T_L, T_R).
+    #[getter]
+    fn basis(&self) -> &'static str {
+        self.basis.name()
+    }
+
+    /// The order of the Jones matrices' rows (outgoing) and columns
+    /// (incident): ("p", "s") or ("L", "R").
+    #[getter]
+    fn jones_basis(&self) -> (&'static str, &'static str) {
+        self.basis.jones_order()
+    }
+
+    /// Complex reflection Jones matrices (A, W, 2, 2), flux-normalized
+    /// (|entry|² is a fraction of the incident power), or None.
+    #[getter]
+    fn r_jones(&self, py: Python<'_>) -> Option<Py<PyAny>> {
+        self.r_jones.as_ref().map(|j| j.clone_ref(py))
+    }
+
+    /// Complex transmission Jones matrices (A, W, 2, 2), flux-normalized,
+    /// or None.
+    #[getter]
+    fn t_jones(&self, py: Python<'_>) -> Option<Py<PyAny>> {
+        self.t_jones.as_ref().map(|j| j.clone_ref(py))
+    }
+
+    /// The result columns by name (`R_s` … in the linear basis, `R_L` … in
+    /// the circular one).
+    fn __getattr__(&self, py: Python<'_>, name: &str) -> PyResult<Py<PyAny>> {
+        let names = &self.basis.names()[2..];
+        match names.iter().position(|n| *n == name) {
+            Some(i) => Ok(self.columns[i].clone_ref(py)),
+            None => Err(pyo3::exceptions::PyAttributeError::new_err(format!(
+                "a Spectrum in the {} basis has no attribute {name:?} (its columns: {})",
+                self.basis.name(),
+                names.join(", ")
+            ))),
+        }
+    }
+
+    fn __dir__(&self) -> Vec<&'static str> {
+        let mut names = vec![
+            "wavelength_nm",
+            "angle_deg",
+            "basis",
+            "jones_basis",
+            "r_jones",
+            "t_jones",
+            "to_pandas",
+        ];
+        names.extend(&self.basis.names()[2..]);
+        names
+    }
+
     /// to_pandas() -> pandas.DataFrame
     ///
     /// One row per (angle, wavelength), angles as the outer loop, with the
-    /// columns of `lamella spectrum`'s CSV:
-    /// wavelength_nm, angle_deg, R_s, R_p, R, T_s, T_p, T, A. Needs pandas.
+    /// columns of `lamella spectrum`'s CSV in this basis: wavelength_nm,
+    /// angle_deg, then R_s, R_p, R, T_s, T_p, T, A (or R_L, R_R, R, T_L,
+    /// T_R, T, A). Needs pandas.
     fn to_pandas<'py>(&self, py: Python<'py>) -> PyResult<Bound<'py, PyAny>> {
         let np = py.import("numpy")?;
         let w = self.wavelength_nm.bind(py);
         let a = self.angle_deg.bind(py);
         let (na, nw) = (a.len()?, w.len()?);
+        let names = self.basis.names();
         let cols = PyDict::new(py);
-        cols.set_item(COLUMNS[0], np.call_method1("tile", (w, na))?)?;
-        cols.set_item(COLUMNS[1], np.call_method1("repeat", (a, nw))?)?;
-        for (name, v) in COLUMNS[2..].iter().zip([
-            &self.r_s, &self.r_p, &self.r, &self.t_s, &self.t_p, &self.t, &self.a,
-        ]) {
+        cols.set_item(names[0], np.call_method1("tile", (w, na))?)?;
+        cols.set_item(names[1], np.call_method1("repeat", (a, nw))?)?;
+        for (name, v) in names[2..].iter().zip(&self.columns) {
             cols.set_item(*name, v.bind(py).call_method0("ravel")?)?;
         }
         py.import("pandas")?.call_method1("DataFrame", (cols,))
@@ -98,86 +189,12 @@ impl Spectrum {
 
     fn __repr__(&self, py: Python<'_>) -> PyResult<String> {
         Ok(format!(
-            "<lamella.Spectrum: {} angles × {} wavelengths>",
+            "<lamella.Spectrum: {} angles × {} wavelengths, {} basis>",
             self.angle_deg.bind(py).len()?,
-            self.wavelength_nm.bind(py).len()?
+            self.wavelength_nm.bind(py).len()?,
+            self.basis.name()
         ))
     }
-}
-
-/// Every point of `rows`, angle-major, computed in the pieces `lamella
-/// spectrum` uses; large grids in parallel, stopping when asked.
-pub fn grid(rows: &Rows, layers: usize, stop: &Stop) -> Outcome<Vec<Rt>> {
-    let (nw, na) = (rows.wavelengths_nm().len(), rows.angles_deg().len());
-    // Pieces start at multiples of the engine's four-wavelength blocks, so
-    // every block (and so every number) is the one the command line computes.
-    let piece = (PIECE_WORK / layers.max(1) / LANES * LANES).clamp(LANES, PIECE);
-    let mut rt = vec![Rt::default(); nw * na];
-    if nw == 0 {
-        return Ok(rt);
-    }
-    if nw * na * layers.max(1) <= SMALL_WORK {
-        for (a, row) in rt.chunks_mut(nw).enumerate() {
-            for (p, piece) in row.chunks_mut(PIECE).enumerate() {
-                rows.fill(a, p * PIECE, piece);
-            }
-        }
-    } else {
-        rt.par_chunks_mut(nw).enumerate().try_for_each(|(a, row)| {
-            row.par_chunks_mut(piece)
-                .enumerate()
-                .try_for_each(|(p, chunk)| {
-                    stop.check()?;
-                    rows.fill(a, p * piece, chunk);
-                    Ok(())
-                })
-        })?;
-    }
-    Ok(rt)
-}
-
-/// Matrix products per point of a stack (a repeat group costs its period
-/// and about log₂ N squarings), a rough measure of the work.
-fn products(nodes: &[Node]) -> usize {
-    nodes
-        .iter()
-        .map(|n| match n {
-            Node::Repeat { count, nodes } => {
-                products(nodes) + 2 * (64 - count.leading_zeros() as usize)
-            }
-            _ => 1,
-        })
-        .sum()
-}
-
-/// Matrix products per grid point of a scene, over its disorder ensemble.
-pub fn work_per_point(scene: &Engine) -> usize {
-    layers_of(&scene.realisations(&scene.stack))
-}
-
-fn layers_of(stacks: &[lamella::optics::Stack]) -> usize {
-    stacks
-        .iter()
-        .map(|s| products(&s.nodes) + 1)
-        .sum::<usize>()
-        .max(1)
-}
-
-/// The spectra of `scene` on its own grid, with the engine's checks.
-pub fn spectra(scene: &Engine, label: &str, stop: &Stop) -> Outcome<Spectra> {
-    let fail = |e| Failure::engine(label, e);
-    let index = scene.indices(&scene.wavelengths_nm).map_err(fail)?;
-    let stacks = scene.realisations(&scene.stack);
-    let rows = Rows::new(&stacks, &index, &scene.wavelengths_nm, &scene.angles_deg);
-    let rt = grid(&rows, layers_of(&stacks), stop)?;
-    let s = Spectra {
-        wavelengths_nm: scene.wavelengths_nm.clone(),
-        angles_deg: scene.angles_deg.clone(),
-        rt,
-        jones: None,
-    };
-    lamella::scene::check_spectra(&s).map_err(fail)?;
-    Ok(s)
 }
 
 /// Checks a grid given to `spectrum`: wavelengths > 0, angles below 90°,
@@ -219,10 +236,18 @@ pub fn spectrum(
     scene: &Scene,
     wavelengths_nm: Option<&Bound<'_, PyAny>>,
     angles_deg: Option<&Bound<'_, PyAny>>,
+    basis: &str,
+    jones: Option<bool>,
 ) -> PyResult<Spectrum> {
     let s = &scene.inner;
-    s.require_film()
-        .map_err(|e| PyErr::from(scene.failure(e)))?;
+    let refused = |e| PyErr::from(scene.failure(e));
+    s.require_film().map_err(refused)?;
+    let basis = Basis::parse(basis)?;
+    let aniso = s.anisotropic();
+    let jones = jones.unwrap_or(aniso);
+    if jones {
+        s.require_coherent().map_err(refused)?;
+    }
     let w = match wavelengths_nm {
         Some(o) => checked_grid(o, "wavelengths_nm")?,
         None => s.wavelengths_nm.clone(),
@@ -237,41 +262,53 @@ pub fn spectrum(
         sized.wavelengths_nm = w.clone();
         sized
             .check_grid_size(na, GRID_BYTES_PER_POINT, "spectrum")
-            .map_err(|e| PyErr::from(scene.failure(e)))?;
+            .map_err(refused)?;
     }
-    let layers = crate::spectrum::work_per_point(s);
-    let large = nw * na * layers > SMALL_WORK;
-    let label = &scene.label;
-    let (rt, lossless) = run(py, large, |stop| {
-        let fail = |e| Failure::engine(label, e);
-        let index = s.indices(&w).map_err(fail)?;
-        let stacks = s.realisations(&s.stack);
-        let rows = Rows::new(&stacks, &index, &w, &a);
-        let rt = grid(&rows, layers, stop)?;
-        for (i, x) in rt.iter().enumerate() {
-            check_point(x, w[i % nw], a[i / nw]).map_err(fail)?;
-        }
-        let lossless: Vec<bool> = (0..nw).map(|i| rows.lossless(i)).collect();
-        Ok((rt, lossless))
+    let large = nw * na * work_per_point(s) > SMALL_WORK;
+    let Grid { spectra, lossless } = run(py, large, |stop| {
+        computed(s, &scene.label, &w, &a, jones, stop)
     })?;
-    let n = nw * na;
-    let mut cols: [Vec<f64>; 7] = std::array::from_fn(|_| Vec::with_capacity(n));
-    for (i, x) in rt.iter().enumerate() {
-        let values = [x.rs, x.rp, x.r(), x.ts, x.tp, x.t(), x.a(lossless[i % nw])];
+    let mut cols: [Vec<f64>; 7] = std::array::from_fn(|_| Vec::with_capacity(nw * na));
+    for (i, x) in spectra.rt.iter().enumerate() {
+        let lossless = lossless[i % nw];
+        // As `lamella spectrum` tabulates them: circular totals from the
+        // Jones matrices where the layers mix polarizations, else from s and p.
+        let values = match (basis, &spectra.jones) {
+            (Basis::Linear, _) => x.columns(lossless),
+            (Basis::Circular, Some(j)) if aniso => Circular::of(&j[i]).columns(lossless),
+            (Basis::Circular, _) => Circular::of_isotropic(x).columns(lossless),
+        };
         for (c, v) in cols.iter_mut().zip(values) {
             c.push(v);
         }
     }
-    let [r_s, r_p, r, t_s, t_p, t, a_] = cols.map(|c| array2(py, (na, nw), c).map(Bound::unbind));
+    let [c0, c1, c2, c3, c4, c5, c6] = cols.map(|c| array2(py, (na, nw), c).map(Bound::unbind));
+    let (r_jones, t_jones) = match &spectra.jones {
+        Some(list) => {
+            // Reflection (`true`) or transmission, row-major per point.
+            let entries = |reflection: bool| -> Vec<Complex64> {
+                list.iter()
+                    .flat_map(|j| {
+                        let j = basis.jones(j);
+                        let m = if reflection { j.r } else { j.t };
+                        [m[(0, 0)], m[(0, 1)], m[(1, 0)], m[(1, 1)]]
+                    })
+                    .collect()
+            };
+            let shape = [na, nw, 2, 2];
+            (
+                Some(arrayd(py, &shape, entries(true))?.unbind()),
+                Some(arrayd(py, &shape, entries(false))?.unbind()),
+            )
+        }
+        None => (None, None),
+    };
     Ok(Spectrum {
         wavelength_nm: array1(py, w).into_any().unbind(),
         angle_deg: array1(py, a).into_any().unbind(),
-        r_s: r_s?,
-        r_p: r_p?,
-        r: r?,
-        t_s: t_s?,
-        t_p: t_p?,
-        t: t?,
-        a: a_?,
+        basis,
+        columns: [c0?, c1?, c2?, c3?, c4?, c5?, c6?],
+        r_jones,
+        t_jones,
     })
 }

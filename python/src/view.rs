@@ -3,6 +3,7 @@
 
 use lamella::angle_colour::{Polarization, Side, Viewing};
 use lamella::colorimetry::{ColourOptions, GamutMapping, Illuminant, RgbSpace};
+use lamella::render::parse_analyzer;
 use lamella::scene::Scene;
 
 use crate::errors::{Failure, Outcome};
@@ -16,10 +17,13 @@ pub struct ViewArgs {
     pub observer: Option<String>,
     /// `reflect` or `transmit`.
     pub side: String,
-    /// `unpolarized`, `s` or `p`.
+    /// `unpolarized`, `s`, `p`, `left` or `right`.
     pub polarization: String,
     /// `clip` or `chroma`.
     pub gamut: String,
+    /// `left` or `right`: an ideal circular analyser before the observer,
+    /// with unpolarized light.
+    pub analyzer: Option<String>,
 }
 
 impl ViewArgs {
@@ -45,6 +49,14 @@ impl ViewArgs {
             .polarization
             .parse::<Polarization>()
             .map_err(|e| bad("polarization", e))?;
+        if let Some(h) = &self.analyzer {
+            if v.polarization != Polarization::Unpolarized {
+                return Err(Failure::input(format!(
+                    "analyzer = {h:?}: the analyser is for unpolarized light; leave out polarization"
+                )));
+            }
+            v.analyzer = Some(parse_analyzer(h).map_err(|e| bad("analyzer", e))?);
+        }
         v.options = ColourOptions {
             space: RgbSpace::Srgb,
             gamut: self

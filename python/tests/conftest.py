@@ -14,8 +14,7 @@ BENCH = REPO / "bench"
 BINARY = Path(os.environ.get("LAMELLA_BIN", REPO / "target" / "release" / "lamella"))
 
 # Every demo scene, the ones that describe a film (the others are coatings),
-# and those with uniaxial, biaxial or helicoidal layers, which the package
-# refuses (the command line computes them).
+# and among the films those with uniaxial, biaxial or helicoidal layers.
 ALL_SCENES = sorted(p.name for p in SCENES.glob("*.json"))
 
 
@@ -25,14 +24,8 @@ def _anisotropic(name):
 
 
 ANISOTROPIC_SCENES = [n for n in ALL_SCENES if _anisotropic(n)]
-FILM_SCENES = [
-    n
-    for n in ALL_SCENES
-    if "stack" in json.loads((SCENES / n).read_text()) and n not in ANISOTROPIC_SCENES
-]
-COATING_SCENES = [
-    n for n in ALL_SCENES if n not in FILM_SCENES and n not in ANISOTROPIC_SCENES
-]
+FILM_SCENES = [n for n in ALL_SCENES if "stack" in json.loads((SCENES / n).read_text())]
+COATING_SCENES = [n for n in ALL_SCENES if n not in FILM_SCENES]
 
 
 class Run:

@@ -7,7 +7,7 @@ use std::io::{self, Write};
 use std::sync::Mutex;
 
 use lamella::optics::aniso::Jones;
-use lamella::optics::{Circular, Rows, Rt};
+use lamella::optics::{CIRCULAR_COLUMNS, Circular, LINEAR_COLUMNS, Rows, Rt};
 use lamella::scene::{LayerAbsorption, check_point, check_spectra};
 use rayon::prelude::*;
 
@@ -35,40 +35,14 @@ pub enum Basis {
     Circular,
 }
 
-/// Column names in the circular basis, in order, shared by both formats.
-pub const CIRCULAR_COLUMNS: [&str; 9] = [
-    "wavelength_nm",
-    "angle_deg",
-    "R_L",
-    "R_R",
-    "R",
-    "T_L",
-    "T_R",
-    "T",
-    "A",
-];
-
 impl Basis {
     fn columns(self) -> &'static [&'static str; 9] {
         match self {
-            Basis::Linear => &COLUMNS,
+            Basis::Linear => &LINEAR_COLUMNS,
             Basis::Circular => &CIRCULAR_COLUMNS,
         }
     }
 }
-
-/// Column names, in order, shared by both formats.
-pub const COLUMNS: [&str; 9] = [
-    "wavelength_nm",
-    "angle_deg",
-    "R_s",
-    "R_p",
-    "R",
-    "T_s",
-    "T_p",
-    "T",
-    "A",
-];
 
 /// Runs the command in polarization basis `basis`; with `layers`, the
 /// absorptance of each layer as written follows A.
@@ -135,18 +109,6 @@ fn engine_error(e: io::Error) -> Result<lamella::Error, io::Error> {
     Ok(*inner.downcast().expect("checked above"))
 }
 
-/// The seven result columns after wavelength and angle.
-fn values(x: &Rt, lossless: bool) -> [f64; 7] {
-    [x.rs, x.rp, x.r(), x.ts, x.tp, x.t(), x.a(lossless)]
-}
-
-/// The seven result columns after wavelength and angle in the circular
-/// basis (A = 0 exactly where nothing absorbs, as in [`Rt::a`]).
-fn circular_values(x: &Circular, lossless: bool) -> [f64; 7] {
-    let a = if lossless { 0.0 } else { 1.0 - x.r() - x.t() };
-    [x.rl, x.rr, x.r(), x.tl, x.tr, x.t(), a]
-}
-
 /// Fills `out` with the result columns at angle index `a` for the
 /// wavelengths from `first_w`, refusing a value that is not finite.
 fn fill_values(
@@ -163,14 +125,14 @@ fn fill_values(
             rows.fill(a, first_w, &mut rt);
             for ((w, x), o) in (first_w..).zip(&rt).zip(out.iter_mut()) {
                 check_point(x, wavelengths[w], angle)?;
-                *o = values(x, rows.lossless(w));
+                *o = x.columns(rows.lossless(w));
             }
         }
         Basis::Circular => {
             let mut c = vec![Circular::default(); out.len()];
             rows.fill_circular(a, first_w, &mut c);
             for ((w, x), o) in (first_w..).zip(&c).zip(out.iter_mut()) {
-                *o = circular_values(x, rows.lossless(w));
+                *o = x.columns(rows.lossless(w));
                 if let Some((name, v)) = CIRCULAR_COLUMNS[2..]
                     .iter()
                     .zip(*o)
@@ -303,12 +265,10 @@ fn json(
     let nw = s.wavelengths_nm.len();
     let point = |a: usize, w: usize| -> [f64; 7] {
         match (basis, &s.jones) {
-            (Basis::Linear, _) => values(&s.at_angle(a)[w], rows.lossless(w)),
-            (Basis::Circular, Some(j)) => {
-                circular_values(&Circular::of(&j[a * nw + w]), rows.lossless(w))
-            }
+            (Basis::Linear, _) => s.at_angle(a)[w].columns(rows.lossless(w)),
+            (Basis::Circular, Some(j)) => Circular::of(&j[a * nw + w]).columns(rows.lossless(w)),
             (Basis::Circular, None) => {
-                circular_values(&Circular::of_isotropic(&s.at_angle(a)[w]), rows.lossless(w))
+                Circular::of_isotropic(&s.at_angle(a)[w]).columns(rows.lossless(w))
             }
         }
     };

@@ -147,7 +147,7 @@ impl<const N: usize> FieldLanes<N> {
 
     /// [`Field::through_layer`] for a lossless, propagating layer on every
     /// lane: phase k0·d·q, admittances `eta` and their inverses per polarization.
-    #[inline]
+    #[inline(always)]
     pub fn through_real(
         &mut self,
         k0d: [f64; N],
@@ -195,7 +195,7 @@ impl<const N: usize> FieldLanes<N> {
     /// and lane) are real: r = (η₀B − C)/(η₀B + C), R = |r|² and
     /// T = 4η₀η_m/|η₀B + C|², with the field's scale e^{log} divided out of T
     /// (Macleod, *Thin-Film Optical Filters*, 2010, eq. 2.99–2.100).
-    #[inline]
+    #[inline(always)]
     pub fn reflect_transmit(
         &self,
         eta0: [[f64; N]; 2],
@@ -222,6 +222,7 @@ impl<const N: usize> FieldLanes<N> {
     }
 
     /// [`Field::renormalise`] on every lane and polarization.
+    #[inline(always)]
     pub fn renormalise(&mut self) {
         for pol in 0..2 {
             let v = &self.v[4 * pol..4 * pol + 4];

@@ -7,19 +7,22 @@
 
 pub mod aniso;
 mod bands;
+mod batch;
 mod double_double;
 mod exact;
 mod field;
 mod flux;
 mod matrix;
 mod medium;
+mod simd;
 mod spectra;
 mod stack;
 mod trig;
 
 pub use bands::half_trace;
+pub use batch::Batch;
 pub use field::FieldPoint;
 pub use flux::Absorption;
 pub use medium::{MediumTerms, Probe, Sine, Wavenumber};
-pub use spectra::{Circular, Rows, Spectra, compute};
+pub use spectra::{CIRCULAR_COLUMNS, Circular, LINEAR_COLUMNS, Rows, Spectra, compute};
 pub use stack::{Behind, Exit, LANES, Node, Rt, Stack};

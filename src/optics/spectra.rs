@@ -40,6 +40,34 @@ impl Spectra {
     }
 }
 
+/// Column names of a spectrum table in the s and p basis: the grid point,
+/// then [`Rt::columns`].
+pub const LINEAR_COLUMNS: [&str; 9] = [
+    "wavelength_nm",
+    "angle_deg",
+    "R_s",
+    "R_p",
+    "R",
+    "T_s",
+    "T_p",
+    "T",
+    "A",
+];
+
+/// Column names of a spectrum table in the circular basis: the grid point,
+/// then [`Circular::columns`].
+pub const CIRCULAR_COLUMNS: [&str; 9] = [
+    "wavelength_nm",
+    "angle_deg",
+    "R_L",
+    "R_R",
+    "R",
+    "T_L",
+    "T_R",
+    "T",
+    "A",
+];
+
 /// Total reflectance and transmittance for left- and right-handed
 /// circularly polarized incident light (co- plus cross-polarized).
 #[derive(Debug, Clone, Copy, Default, PartialEq)]
@@ -82,6 +110,17 @@ impl Circular {
     pub fn t(&self) -> f64 {
         0.5 * (self.tl + self.tr)
     }
+
+    /// The seven result columns of a table in the circular basis:
+    /// R_L, R_R, R, T_L, T_R, T, A (A as in [`Rt::a`]).
+    pub fn columns(&self, lossless: bool) -> [f64; 7] {
+        let a = if lossless {
+            0.0
+        } else {
+            1.0 - self.r() - self.t()
+        };
+        [self.rl, self.rr, self.r(), self.tl, self.tr, self.t(), a]
+    }
 }
 
 impl Rt {
@@ -111,6 +150,20 @@ impl Rt {
         } else {
             1.0 - self.r() - self.t()
         }
+    }
+
+    /// The seven result columns of a table in the s and p basis:
+    /// R_s, R_p, R, T_s, T_p, T, A.
+    pub fn columns(&self, lossless: bool) -> [f64; 7] {
+        [
+            self.rs,
+            self.rp,
+            self.r(),
+            self.ts,
+            self.tp,
+            self.t(),
+            self.a(lossless),
+        ]
     }
 }
 

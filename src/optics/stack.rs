@@ -8,6 +8,7 @@ use std::array::from_fn;
 use super::exact::{self, EXACT_FROM};
 use super::matrix::{Field, FieldLanes, Mat, Phase, RealLanes, RealPair};
 use super::medium::{MediumTerms, Probe};
+use super::simd::with_wide_vectors;
 use super::trig::sin_cos_lanes;
 
 /// One element of a stack, listed from the incident side.
@@ -97,8 +98,16 @@ impl Stack {
     /// every lane run in structure-of-arrays form, and so do lossless repeat
     /// groups shorter than 64 periods; anything else (absorbing or
     /// evanescent layers, long repeat groups, an incoherent sheet) goes lane
-    /// by lane through the same code as [`Stack::rt`].
+    /// by lane through the same code as [`Stack::rt`]. Compiled for wider
+    /// vectors where the processor has them, with the same results.
     pub fn rt_lanes(&self, terms: [&[MediumTerms]; LANES], at: &[Probe; LANES]) -> [Rt; LANES] {
+        with_wide_vectors(|| self.rt_lanes_inline(terms, at))
+    }
+
+    /// The body of [`Stack::rt_lanes`], inlined into each instruction-set
+    /// variant.
+    #[inline(always)]
+    fn rt_lanes_inline(&self, terms: [&[MediumTerms]; LANES], at: &[Probe; LANES]) -> [Rt; LANES] {
         let Exit::Medium(m) = self.exit else {
             return from_fn(|l| self.rt(terms[l], &at[l]));
         };

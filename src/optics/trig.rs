@@ -25,65 +25,98 @@ pub fn sin_cos(x: f64) -> (f64, f64) {
 
 /// (sin x, cos x) for `N` arguments side by side; the branch-free core lets
 /// the compiler use vector instructions across the lanes.
-#[inline]
+#[inline(always)]
 pub fn sin_cos_lanes<const N: usize>(x: [f64; N]) -> ([f64; N], [f64; N]) {
-    let mut s = [0.0; N];
-    let mut c = [0.0; N];
-    for l in 0..N {
-        (s[l], c[l]) = reduced(x[l]);
-    }
     if x.iter().any(|v| !(v.abs() < LIMIT)) {
+        let mut s = [0.0; N];
+        let mut c = [0.0; N];
         for l in 0..N {
             (s[l], c[l]) = sin_cos(x[l]);
         }
+        return (s, c);
     }
+    reduced_lanes(x)
+}
+
+/// Taylor coefficients of (sin r − r)/r³ in powers of r², lowest first.
+const SIN: [f64; 8] = [
+    -1.0 / 6.0,
+    1.0 / 120.0,
+    -1.0 / 5040.0,
+    1.0 / 362_880.0,
+    -1.0 / 39_916_800.0,
+    1.0 / 6_227_020_800.0,
+    -1.0 / 1_307_674_368_000.0,
+    1.0 / 355_687_428_096_000.0,
+];
+
+/// Taylor coefficients of (cos r − 1)/r² in powers of r², lowest first.
+const COS: [f64; 9] = [
+    -0.5,
+    1.0 / 24.0,
+    -1.0 / 720.0,
+    1.0 / 40_320.0,
+    -1.0 / 3_628_800.0,
+    1.0 / 479_001_600.0,
+    -1.0 / 87_178_291_200.0,
+    1.0 / 20_922_789_888_000.0,
+    -1.0 / 6_402_373_705_728_000.0,
+];
+
+/// (sin x, cos x) for one argument below [`LIMIT`], without branches.
+#[inline(always)]
+fn reduced(x: f64) -> (f64, f64) {
+    let ([s], [c]) = reduced_lanes([x]);
     (s, c)
 }
 
 /// The Cody–Waite reduction and the polynomials, valid for |x| < [`LIMIT`],
-/// without branches.
+/// without branches, each step over every lane so that it maps onto one
+/// vector instruction.
 #[inline(always)]
-fn reduced(x: f64) -> (f64, f64) {
+fn reduced_lanes<const N: usize>(x: [f64; N]) -> ([f64; N], [f64; N]) {
     // Round to the nearest integer by adding and removing 1.5·2⁵² (exact for
     // |x·2/π| < 2⁵¹); the low bits of the shifted value are then k mod 4 in
     // two's complement, the quadrant.
     const SHIFT: f64 = 6_755_399_441_055_744.0;
-    let shifted = x * std::f64::consts::FRAC_2_PI + SHIFT;
-    let k = shifted - SHIFT;
-    let quadrant = shifted.to_bits() & 3;
-    let r = ((x - k * P1) - k * P2) - k * P3;
-    let r2 = r * r;
-    let s = r + r
-        * r2
-        * (-1.0 / 6.0
-            + r2 * (1.0 / 120.0
-                + r2 * (-1.0 / 5040.0
-                    + r2 * (1.0 / 362_880.0
-                        + r2 * (-1.0 / 39_916_800.0
-                            + r2 * (1.0 / 6_227_020_800.0
-                                + r2 * (-1.0 / 1_307_674_368_000.0
-                                    + r2 * (1.0 / 355_687_428_096_000.0))))))));
-    let c = 1.0
-        + r2 * (-0.5
-            + r2 * (1.0 / 24.0
-                + r2 * (-1.0 / 720.0
-                    + r2 * (1.0 / 40_320.0
-                        + r2 * (-1.0 / 3_628_800.0
-                            + r2 * (1.0 / 479_001_600.0
-                                + r2 * (-1.0 / 87_178_291_200.0
-                                    + r2 * (1.0 / 20_922_789_888_000.0
-                                        + r2 * (-1.0 / 6_402_373_705_728_000.0)))))))));
-    // Quadrant 0: (s, c); 1: (c, −s); 2: (−s, −c); 3: (−c, s), by bit masks.
-    let odd = 0u64.wrapping_sub(quadrant & 1);
-    let (sb, cb) = (s.to_bits(), c.to_bits());
-    let first = (cb & odd) | (sb & !odd);
-    let second = (sb & odd) | (cb & !odd);
-    let sign_first = (quadrant & 2) << 62;
-    let sign_second = ((quadrant + 1) & 2) << 62;
-    (
-        f64::from_bits(first ^ sign_first),
-        f64::from_bits(second ^ sign_second),
-    )
+    let mut r = [0.0; N];
+    let mut quadrant = [0u64; N];
+    for l in 0..N {
+        let shifted = x[l] * std::f64::consts::FRAC_2_PI + SHIFT;
+        let k = shifted - SHIFT;
+        quadrant[l] = shifted.to_bits() & 3;
+        r[l] = ((x[l] - k * P1) - k * P2) - k * P3;
+    }
+    let r2: [f64; N] = std::array::from_fn(|l| r[l] * r[l]);
+    // Horner's rule from the highest power down.
+    let mut ps = [SIN[SIN.len() - 1]; N];
+    for &a in SIN[..SIN.len() - 1].iter().rev() {
+        for l in 0..N {
+            ps[l] = a + r2[l] * ps[l];
+        }
+    }
+    let mut pc = [COS[COS.len() - 1]; N];
+    for &a in COS[..COS.len() - 1].iter().rev() {
+        for l in 0..N {
+            pc[l] = a + r2[l] * pc[l];
+        }
+    }
+    let mut sin = [0.0; N];
+    let mut cos = [0.0; N];
+    for l in 0..N {
+        let s = r[l] + r[l] * r2[l] * ps[l];
+        let c = 1.0 + r2[l] * pc[l];
+        // Quadrant 0: (s, c); 1: (c, −s); 2: (−s, −c); 3: (−c, s), by bit masks.
+        let odd = 0u64.wrapping_sub(quadrant[l] & 1);
+        let (sb, cb) = (s.to_bits(), c.to_bits());
+        let first = (cb & odd) | (sb & !odd);
+        let second = (sb & odd) | (cb & !odd);
+        let sign_first = (quadrant[l] & 2) << 62;
+        let sign_second = ((quadrant[l] + 1) & 2) << 62;
+        sin[l] = f64::from_bits(first ^ sign_first);
+        cos[l] = f64::from_bits(second ^ sign_second);
+    }
+    (sin, cos)
 }
 
 #[cfg(test)]

@@ -571,10 +571,24 @@ impl Scene {
         jones: bool,
         f: impl FnOnce(&optics::Rows) -> T,
     ) -> T {
+        self.rows_on(items, index, &self.wavelengths_nm, angles_deg, jones, f)
+    }
+
+    /// [`Scene::rows_of`] on `wavelengths_nm` in place of the scene's own
+    /// (`index` from [`Scene::indices`] on them).
+    pub fn rows_on<T>(
+        &self,
+        items: &[Item],
+        index: &[Vec<Complex64>],
+        wavelengths_nm: &[f64],
+        angles_deg: &[f64],
+        jones: bool,
+        f: impl FnOnce(&optics::Rows) -> T,
+    ) -> T {
         let stacks = self.realisations(items);
-        let rows = optics::Rows::new(&stacks, index, &self.wavelengths_nm, angles_deg);
+        let rows = optics::Rows::new(&stacks, index, wavelengths_nm, angles_deg);
         let four = if jones || self.anisotropic() {
-            self.gridded_design(items, index, &self.wavelengths_nm, angles_deg)
+            self.gridded_design(items, index, wavelengths_nm, angles_deg)
         } else {
             None
         };
