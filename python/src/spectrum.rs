@@ -285,11 +285,13 @@ pub fn spectrum(
     let [c0, c1, c2, c3, c4, c5, c6] = cols.map(|c| array2(py, (na, nw), c).map(Bound::unbind));
     let (r_jones, t_jones) = match &spectra.jones {
         Some(list) => {
-            // Reflection (`true`) or transmission, row-major per point.
+            // Each point's matrices turned into the basis once; then the
+            // reflection and transmission entries, row-major per point.
+            let turned: Vec<Jones> = list.iter().map(|j| basis.jones(j)).collect();
             let entries = |reflection: bool| -> Vec<Complex64> {
-                list.iter()
+                turned
+                    .iter()
                     .flat_map(|j| {
-                        let j = basis.jones(j);
                         let m = if reflection { j.r } else { j.t };
                         [m[(0, 0)], m[(0, 1)], m[(1, 0)], m[(1, 1)]]
                     })
