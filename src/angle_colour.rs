@@ -306,6 +306,25 @@ pub fn handed(spectra: &Spectra) -> bool {
     })
 }
 
+/// Left- and right-circular incident light: what a chart of incident light
+/// shows for a [`Viewing::plain`] view once its spectra prove [`handed`]
+/// (`None` for any other view, which is shown as it is).
+pub fn handed_lights(viewing: &Viewing) -> Option<[Viewing; 2]> {
+    viewing
+        .plain()
+        .then(|| [Polarization::Left, Polarization::Right].map(|p| viewing.lit(p)))
+}
+
+/// The viewings a chart of incident light shows for `viewing`:
+/// [`handed_lights`] when its spectra are `handed_spectra` ([`handed`]),
+/// else `viewing` itself.
+pub fn incident_views(viewing: &Viewing, handed_spectra: bool) -> Vec<Viewing> {
+    match handed_lights(viewing) {
+        Some(both) if handed_spectra => both.to_vec(),
+        _ => vec![viewing.clone()],
+    }
+}
+
 /// The viewings a chart or report shows for `viewing`: itself, and for a
 /// [`Viewing::plain`] view of [`handed`] spectra also unpolarized light
 /// through a left and through a right analyser, as one sees a chiral film

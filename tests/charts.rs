@@ -436,10 +436,13 @@ fn thickness_field_contains_the_design() {
         assert!(g.values.windows(2).all(|w| w[0] < w[1]), "{:?}", g.values);
         for (a, c) in s.angles_deg.iter().zip(&own) {
             let j = g.angles.iter().position(|x| x == a).unwrap();
-            assert_eq!(g.cells[i][j].hex, c.hex, "{variation:?} {a}°");
+            assert_eq!(g.fields[0].cells[i][j].hex, c.hex, "{variation:?} {a}°");
         }
         assert!(g.angles.len() > s.angles_deg.len() && g.angles.len() <= 31);
-        assert_ne!(g.cells[0][0].hex, g.cells[g.values.len() - 1][0].hex);
+        assert_ne!(
+            g.fields[0].cells[0][0].hex,
+            g.fields[0].cells[g.values.len() - 1][0].hex
+        );
     }
     let err = ThicknessAngle::compute(
         &s,
@@ -473,12 +476,14 @@ fn thickness_field_hatches_out_of_gamut_regions() {
     for i in 1..g.values.len() - 1 {
         for j in 1..g.angles.len() - 1 {
             let around = (i - 1..=i + 1).flat_map(|a| (j - 1..=j + 1).map(move |b| (a, b)));
-            let outs: Vec<bool> = around.map(|(a, b)| !g.cells[a][b].in_gamut).collect();
+            let outs: Vec<bool> = around
+                .map(|(a, b)| !g.fields[0].cells[a][b].in_gamut)
+                .collect();
             if outs.iter().any(|&o| o != outs[0]) {
                 continue;
             }
-            let (x, y) = g.pixel_of(size, (g.values[i], g.angles[j]));
-            let (design, _) = g.pixel_of(size, (g.nominal, g.angles[j]));
+            let (x, y) = g.pixel_of(size, 0, (g.values[i], g.angles[j]));
+            let (design, _) = g.pixel_of(size, 0, (g.nominal, g.angles[j]));
             if (x - design).abs() < 10 {
                 continue;
             }
@@ -826,6 +831,22 @@ fn chiral_report_shows_both_handednesses() {
         html.contains("cnc_film · left-handed helix, pitch 300 nm"),
         "layer table"
     );
+    // Its thickness chart is the library's, with a field per handedness.
+    let s = scene(&std::fs::read_to_string(&path).unwrap());
+    let v = Viewing::of_scene(&s).unwrap();
+    let g = ThicknessAngle::compute(
+        &s,
+        &v,
+        &Variation::Scale { from: 0.9, to: 1.1 },
+        ThicknessAngle::default_steps(&s),
+        &|| {},
+    )
+    .unwrap();
+    assert_eq!(g.fields.len(), 2);
+    assert_eq!(
+        std::fs::read_to_string(d.join("r/thickness-angle.svg")).unwrap(),
+        chart::svg(&g, (640, 400)).unwrap()
+    );
     let out = lamella(&[
         "chart",
         path.to_str().unwrap(),
@@ -837,4 +858,114 @@ fn chiral_report_shows_both_handednesses() {
         d.join("s.png").to_str().unwrap(),
     ]);
     assert_eq!(out.status.code(), Some(2));
+}
+
+/// A chiral scene's thickness-angle chart under unpolarized light shows one
+/// field per incident handedness, side by side: left then right, their
+/// colours different, each the single field that `chart --polarization
+/// left` (or `right`) draws, and each drawn in its own panel; any other
+/// viewing, and an isotropic scene, keep one field.
+#[test]
+fn chiral_thickness_field_shows_each_handedness() {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("scenes/cnc_giftbox_window.json");
+    let s = scene(&std::fs::read_to_string(&path).unwrap());
+    let v = Viewing::of_scene(&s).unwrap();
+    let variation = Variation::Scale { from: 0.9, to: 1.1 };
+    let g = ThicknessAngle::compute(&s, &v, &variation, 4, &|| {}).unwrap();
+    let headings: Vec<&str> = g.fields.iter().map(|f| f.heading.as_str()).collect();
+    assert_eq!(
+        headings,
+        [
+            "Left-circular incident light",
+            "Right-circular incident light"
+        ]
+    );
+    assert!(
+        g.caption
+            .viewing
+            .ends_with("left-circular and right-circular")
+    );
+    assert_ne!(g.fields[0].cells, g.fields[1].cells);
+    // Left-handed film: left-circular light is reflected brighter at the
+    // design, normal incidence.
+    let i = g.values.iter().position(|&x| x == g.nominal).unwrap();
+    assert!(g.fields[0].cells[i][0].lab[0] > g.fields[1].cells[i][0].lab[0] + 3.0);
+    let d = dir("chiral-thickness");
+    let size = (900, 600);
+    for (field, p) in g.fields.iter().zip(["left", "right"]) {
+        let lit = v.lit(p.parse().unwrap());
+        let one = ThicknessAngle::compute(&s, &lit, &variation, 4, &|| {}).unwrap();
+        assert_eq!(one.fields.len(), 1, "{p}");
+        assert_eq!(one.fields[0].cells, field.cells, "{p}");
+        assert_eq!(one.fields[0].shown, field.shown, "{p}");
+        // The command draws that single field.
+        let out_path = d.join(format!("{p}.svg"));
+        let out = lamella(&[
+            "chart",
+            path.to_str().unwrap(),
+            "--kind",
+            "thickness-angle",
+            "--scale-range",
+            "0.9,1.1",
+            "--steps",
+            "4",
+            "--polarization",
+            p,
+            "--size",
+            "900x600",
+            "-o",
+            out_path.to_str().unwrap(),
+        ]);
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        assert_eq!(
+            std::fs::read_to_string(&out_path).unwrap(),
+            chart::svg(&one, size).unwrap(),
+            "{p}"
+        );
+    }
+    // Each panel shows its own field: at an in-gamut sample away from the
+    // design line, the pixel is that field's colour.
+    let rgb = chart::rgb(&g, size).unwrap();
+    let mut checked = 0;
+    for (k, field) in g.fields.iter().enumerate() {
+        let (design, _) = g.pixel_of(size, k, (g.nominal, g.angles[0]));
+        for (i, j) in [(0, 1), (g.values.len() - 1, 1), (0, g.angles.len() - 2)] {
+            if field.shown[i][j].excess > 0.0 {
+                continue;
+            }
+            let (x, y) = g.pixel_of(size, k, (g.values[i], g.angles[j]));
+            let (x, y) = (x + if i == 0 { 2 } else { -2 }, y);
+            assert!((x - design).abs() > 10);
+            let got = pixel(&rgb, size, (x, y));
+            let want = field.shown[i][j].colour();
+            let near = [
+                got[0] as i32 - want.0 as i32,
+                got[1] as i32 - want.1 as i32,
+                got[2] as i32 - want.2 as i32,
+            ];
+            assert!(
+                near.iter().all(|d| d.abs() <= 6),
+                "field {k} ({i}, {j}): {got:?} vs {want:?}"
+            );
+            checked += 1;
+        }
+    }
+    assert!(checked >= 4, "{checked}");
+    for one in [
+        v.lit(Polarization::S),
+        v.through(lamella::optics::aniso::Handedness::Left),
+    ] {
+        let g = ThicknessAngle::compute(&s, &one, &variation, 3, &|| {}).unwrap();
+        assert_eq!(g.fields.len(), 1, "{}", one.seen());
+    }
+    // An isotropic scene: one field, for the light asked for.
+    let m = scene(MIRROR);
+    let vm = Viewing::of_scene(&m).unwrap();
+    let g = ThicknessAngle::compute(&m, &vm, &variation, 3, &|| {}).unwrap();
+    assert_eq!(g.fields.len(), 1);
+    assert_eq!(g.caption.viewing, lamella::chart::describe(&vm));
 }

@@ -306,7 +306,7 @@ def chart(
     layer: int | None = None,
     thickness_range: tuple[float, float] | None = None,
     scale_range: tuple[float, float] | None = None,
-    steps: int = 61,
+    steps: int | None = None,
     wavelength: float | None = None,
     angle: float = 0.0,
     with_reflectance: bool = False,

@@ -158,3 +158,24 @@ def test_charts_and_renders_of_a_chiral_scene():
     assert chart._repr_png_()[:8] == b"\x89PNG\r\n\x1a\n"
     image = lamella.render(scene, size=(40, 40), analyzer="left")
     assert image.shape == (40, 40, 3) and image.dtype == np.uint8
+
+
+def test_chiral_thickness_chart_has_a_field_per_handedness_as_the_cli(cli, tmp_path):
+    path = SCENES / "cnc_giftbox_window.json"
+    scene = lamella.Scene.load(path)
+    svg = lamella.chart(
+        scene, kind="thickness-angle", scale_range=(0.9, 1.1), steps=4, size=(900, 600)
+    ).svg()
+    out = tmp_path / "thickness.svg"
+    run = cli(
+        "chart", path, "--kind", "thickness-angle", "--scale-range", "0.9,1.1",
+        "--steps", "4", "--size", "900x600", "-o", out,
+    )
+    assert run.code == 0, run.stderr
+    assert svg == out.read_text()
+    # Two fields side by side, not the single field of left-circular light.
+    left = lamella.chart(
+        scene, kind="thickness-angle", scale_range=(0.9, 1.1), steps=4, size=(900, 600),
+        polarization="left",
+    ).svg()
+    assert svg != left and svg.count("<image") == 2 and left.count("<image") == 1

@@ -2,18 +2,16 @@
 //! map with a colour bar.
 
 use plotters::coord::Shift;
-use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
 use plotters::style::colors::colormaps::{ColorMap, ViridisRGB};
 
-use super::style::{self, Caption, FRAME, Style, capitalised, describe_all, frame, titled};
+use super::style::{
+    self, Caption, FRAME, Plot, Style, describe_all, frame, incident_heading, titled,
+};
 use super::{Chart, DrawResult};
-use crate::angle_colour::{Polarization, Side, Viewing, handed};
+use crate::angle_colour::{Side, Viewing, handed, incident_views};
 use crate::error::Result;
 use crate::scene::Scene;
-
-/// A chart with wavelength across and angle up.
-pub(super) type Plot<'a, DB> = ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
 
 /// Values on the scene's wavelength × angle grid, in one panel or, for a
 /// scene whose left and right differ, one panel per handedness.
@@ -45,14 +43,7 @@ impl ReflectanceMap {
     /// ([`handed`]), two panels: left- and right-circular incident light.
     pub fn compute(scene: &Scene, viewing: &Viewing) -> Result<Self> {
         let spectra = viewing.spectra_of(scene, &scene.angles_deg)?;
-        let views = if viewing.plain() && handed(&spectra) {
-            vec![
-                viewing.lit(Polarization::Left),
-                viewing.lit(Polarization::Right),
-            ]
-        } else {
-            vec![viewing.clone()]
-        };
+        let views = incident_views(viewing, handed(&spectra));
         let nw = spectra.wavelengths_nm.len();
         let mut panels: Vec<(String, Vec<f64>)> = views
             .iter()
@@ -63,7 +54,7 @@ impl ReflectanceMap {
                     .enumerate()
                     .map(|(i, x)| v.fraction(x, spectra.jones.as_ref().map(|j| &j[i])))
                     .collect();
-                (format!("{} incident light", capitalised(&v.seen())), values)
+                (incident_heading(v), values)
             })
             .collect();
         debug_assert!(

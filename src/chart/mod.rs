@@ -32,7 +32,7 @@ pub use map::ReflectanceMap;
 pub use spectra::SpectraChart;
 pub use strip::AngleStrip;
 pub use style::{Caption, Series, describe, light};
-pub use thickness::{ThicknessAngle, Variation};
+pub use thickness::{ThicknessAngle, ThicknessField, Variation};
 
 use crate::error::{Error, Result};
 use canvas::{Canvas, Raster, Svg};

@@ -44,6 +44,9 @@ pub fn faded(c: RGBColor, keep: f64) -> RGBColor {
     RGBColor(fade(c.0), fade(c.1), fade(c.2))
 }
 
+/// A chart with numbers on both axes.
+pub type Plot<'a, DB> = ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>;
+
 /// Sizes scaled to the image: every length is given for a 1200 × 800 chart.
 #[derive(Debug, Clone, Copy)]
 pub struct Style {
@@ -355,6 +358,12 @@ pub fn capitalised(t: &str) -> String {
     c.next()
         .map(|f| f.to_uppercase().chain(c).collect())
         .unwrap_or_default()
+}
+
+/// The heading of a panel of incident light `v`: "Left-circular incident
+/// light".
+pub fn incident_heading(v: &Viewing) -> String {
+    format!("{} incident light", capitalised(&v.seen()))
 }
 
 /// The title, or "Untitled scene" when it is blank.

@@ -2,19 +2,22 @@
 //! every thickness (across) and the angle of incidence (up), as a
 //! continuous field interpolated between computed samples. The design's
 //! value is a dashed line with a notch above the field; colours outside the
-//! RGB gamut are hatched and edged by the contour where they leave it.
+//! RGB gamut are hatched and edged by the contour where they leave it. For
+//! unpolarized light on a scene whose left and right differ, one field per
+//! incident handedness, side by side on the same axes.
 
 use plotters::coord::Shift;
-use plotters::coord::types::RangedCoordf64;
 use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 use rayon::prelude::*;
 
 use super::canvas::{Canvas, Pixels, Svg};
 use super::gamut::{self, Shown, SoftEdge};
-use super::style::{self, Caption, FRAME, INK, Style, frame};
+use super::style::{
+    self, Caption, FRAME, INK, Plot, Style, describe_all, frame, incident_heading, titled,
+};
 use super::{Chart, DrawResult};
-use crate::angle_colour::{Viewing, angle_colours};
+use crate::angle_colour::{Viewing, angle_colours, handed, handed_lights, incident_views};
 use crate::colorimetry::Colour;
 use crate::error::{Error, Result};
 use crate::scene::{Item, Layer, Repeat, Scene};
@@ -50,8 +53,21 @@ const ANGLE_SAMPLES: usize = 31;
 /// 4×4 computation (helices sliced finely) costing far more.
 const ANGLE_SAMPLES_4X4: usize = 13;
 
+/// One field of a [`ThicknessAngle`] chart: the colours for one viewing.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ThicknessField {
+    /// The heading drawn over the field when fields stand side by side
+    /// ("Left-circular incident light").
+    pub heading: String,
+    /// Colour per value, then per angle.
+    pub cells: Vec<Vec<Colour>>,
+    /// What the field shows at each sample.
+    pub shown: Vec<Vec<Shown>>,
+}
+
 /// Colours over (thickness, angle): computed at `values` × `angles` and
-/// drawn as a continuous field interpolated between them.
+/// drawn as a continuous field interpolated between them, in one field or,
+/// for a scene whose left and right differ, one per incident handedness.
 #[derive(Debug, Clone, PartialEq)]
 pub struct ThicknessAngle {
     /// Header text.
@@ -67,10 +83,10 @@ pub struct ThicknessAngle {
     pub nominal_label: String,
     /// Angles of incidence of the samples: the scene's grid, subdivided.
     pub angles: Vec<f64>,
-    /// Colour per value, then per angle.
-    pub cells: Vec<Vec<Colour>>,
-    /// What the field shows at each sample.
-    pub shown: Vec<Vec<Shown>>,
+    /// The fields drawn side by side: one for the viewing asked for or, for
+    /// unpolarized light on a scene whose left and right differ somewhere
+    /// ([`handed`]), left- then right-circular incident light.
+    pub fields: Vec<ThicknessField>,
     /// The legend line of the out-of-gamut marks.
     pub legend: String,
 }
@@ -143,6 +159,10 @@ impl ThicknessAngle {
     /// Computes `steps` thickness samples over the variation (plus the design
     /// value), each at the scene's angles subdivided to about 31; `progress`
     /// is called after each thickness (it may panic to abandon the chart).
+    /// For unpolarized light with no analyser, each thickness's one
+    /// computation also gives the colours for left- and right-circular
+    /// light, shown instead when the spectra at some thickness are
+    /// [`handed`].
     pub fn compute(
         scene: &Scene,
         viewing: &Viewing,
@@ -232,9 +252,10 @@ impl ThicknessAngle {
         if jones {
             scene.require_coherent()?;
         }
+        let lights = handed_lights(viewing);
         // `progress` may panic to abandon the chart; the fuse then stops the
         // other threads at once.
-        let cells = values
+        let rows = values
             .par_iter()
             .panic_fuse()
             .map(|&v| {
@@ -253,45 +274,78 @@ impl ThicknessAngle {
                         rows.all()
                     }
                 });
-                let colours = angle_colours(&spectra, viewing);
+                let own = angle_colours(&spectra, viewing)?;
+                // Spectra without Jones matrices are never handed.
+                let both = match &lights {
+                    Some(lights) if spectra.jones.is_some() => lights
+                        .iter()
+                        .map(|v| angle_colours(&spectra, v))
+                        .collect::<Result<Vec<_>>>()?,
+                    _ => Vec::new(),
+                };
                 progress();
-                colours
+                Ok((handed(&spectra), own, both))
             })
             .collect::<Result<Vec<_>>>()?;
+        let views = incident_views(viewing, rows.iter().any(|(h, _, _)| *h));
+        let mut per_view: Vec<Vec<Vec<Colour>>> = vec![Vec::new(); views.len()];
+        for (_, own, both) in rows {
+            if views.len() > 1 {
+                for (cells, colours) in per_view.iter_mut().zip(both) {
+                    cells.push(colours);
+                }
+            } else {
+                per_view[0].push(own);
+            }
+        }
         let soft = SoftEdge::new(viewing, &scene.wavelengths_nm)?;
-        let shown = cells
+        let fields = views
             .iter()
-            .map(|row| row.iter().map(|c| soft.show(c)).collect())
+            .zip(per_view)
+            .map(|(v, cells)| ThicknessField {
+                heading: incident_heading(v),
+                shown: cells
+                    .iter()
+                    .map(|row| row.iter().map(|c| soft.show(c)).collect())
+                    .collect(),
+                cells,
+            })
             .collect();
         Ok(ThicknessAngle {
-            caption: Caption::new(
-                &[&scene.title],
-                "Colour over layer thickness and angle of incidence",
-                viewing,
-            ),
+            caption: Caption {
+                viewing: describe_all(&views),
+                ..Caption::new(
+                    &[&scene.title],
+                    "Colour over layer thickness and angle of incidence",
+                    viewing,
+                )
+            },
             axis,
             values,
             nominal,
             nominal_label,
             angles,
-            cells,
-            shown,
+            fields,
             legend: gamut::legend(viewing),
         })
     }
 
-    /// Whether any sample lies outside the gamut.
+    /// Whether any sample of any field lies outside the gamut.
     pub fn any_outside(&self) -> bool {
-        self.cells.iter().flatten().any(|c| !c.in_gamut)
+        self.fields
+            .iter()
+            .flat_map(|f| f.cells.iter().flatten())
+            .any(|c| !c.in_gamut)
     }
 
-    /// The pixel where (value, angle) is drawn in an image of `size`.
-    pub fn pixel_of(&self, size: (u32, u32), at: (f64, f64)) -> (i32, i32) {
+    /// The pixel where (value, angle) is drawn in field `field` of an image
+    /// of `size`.
+    pub fn pixel_of(&self, size: (u32, u32), field: usize, at: (f64, f64)) -> (i32, i32) {
         let mut svg = Svg::default();
         let root = Canvas::new(&mut svg, size).into_drawing_area();
         let s = Style::new(size);
-        let (chart, _) = self.layout(&root, &s).expect("SVG drawing cannot fail");
-        chart.backend_coord(&at)
+        let plots = self.plots(&root, &s).expect("SVG drawing cannot fail");
+        plots[field].0.backend_coord(&at)
     }
 
     /// The angle range drawn (half a degree either side of a single angle).
@@ -304,24 +358,45 @@ impl ThicknessAngle {
         }
     }
 
+    /// The header on `root`, then each field's axes side by side under it
+    /// (headed when there are several), with how far right (in pixels of
+    /// `root`) the design's label may reach.
     #[allow(clippy::type_complexity)]
-    fn layout<'a, DB: DrawingBackend>(
+    fn plots<'a, DB: DrawingBackend>(
         &self,
-        root: &'a DrawingArea<DB, Shift>,
+        root: &DrawingArea<DB, Shift>,
         s: &Style,
-    ) -> std::result::Result<
-        (
-            ChartContext<'a, DB, Cartesian2d<RangedCoordf64, RangedCoordf64>>,
-            DrawingArea<DB, Shift>,
-        ),
-        DrawingAreaErrorKind<DB::ErrorType>,
-    > {
+    ) -> std::result::Result<Vec<(Plot<'a, DB>, i32)>, DrawingAreaErrorKind<DB::ErrorType>> {
         let body = frame(root, &self.caption, s)?;
         let (_, h) = body.dim_in_pixel();
-        let (main, foot) = body.split_vertically(h as i32 - s.px(26.0));
+        let (main, _) = body.split_vertically(h as i32 - s.px(26.0));
+        let n = self.fields.len();
+        if n == 1 {
+            let (rw, _) = root.dim_in_pixel();
+            return Ok(vec![(self.axes(&main, s, 10)?, rw as i32 - s.px(10.0))]);
+        }
+        let base = root.get_base_pixel().0;
+        main.split_evenly((1, n))
+            .iter()
+            .zip(&self.fields)
+            .map(|(area, field)| {
+                let (x, w) = (area.get_base_pixel().0 - base, area.dim_in_pixel().0);
+                let plot = self.axes(&titled(area, s, &field.heading)?, s, 10 / n)?;
+                Ok((plot, x + w as i32 - s.px(10.0)))
+            })
+            .collect()
+    }
+
+    /// Axes over the values and angles on `area`, `x_labels` value ticks.
+    fn axes<'a, DB: DrawingBackend>(
+        &self,
+        area: &DrawingArea<DB, Shift>,
+        s: &Style,
+        x_labels: usize,
+    ) -> std::result::Result<Plot<'a, DB>, DrawingAreaErrorKind<DB::ErrorType>> {
         let (a0, a1) = self.angle_range();
         let (v0, v1) = (self.values[0], self.values[self.values.len() - 1]);
-        let mut chart = ChartBuilder::on(&main)
+        let mut chart = ChartBuilder::on(area)
             .margin_top(s.px(34.0))
             .margin_right(s.px(30.0))
             .x_label_area_size(s.px(62.0))
@@ -340,16 +415,16 @@ impl ThicknessAngle {
             .y_label_formatter(&|v| format!("{}°", style::tick(v)))
             .axis_style(FRAME.stroke_width(1))
             .set_all_tick_mark_size(s.px(5.0))
-            .x_labels(10)
+            .x_labels(x_labels)
             .y_labels(10)
             .draw()?;
-        Ok((chart, foot))
+        Ok(chart)
     }
 
     /// The field as packed RGB, `w × h` pixels: bilinear between the samples
     /// (value across, angle up), hatched where the interpolated relative
     /// chroma exceeds the gamut edge.
-    fn field(&self, (w, h): (usize, usize), s: &Style) -> Vec<u8> {
+    fn pixels(&self, field: &ThicknessField, (w, h): (usize, usize), s: &Style) -> Vec<u8> {
         let (a0, a1) = self.angle_range();
         let (v0, v1) = (self.values[0], self.values[self.values.len() - 1]);
         let cols: Vec<(usize, f64)> = (0..w)
@@ -363,7 +438,7 @@ impl ThicknessAngle {
             for (x, &(i, t)) in cols.iter().enumerate() {
                 let i1 = (i + 1).min(self.values.len() - 1);
                 let at = |f: &dyn Fn(&Shown) -> f64| {
-                    let g = |r: usize, c: usize| f(&self.shown[r][c]);
+                    let g = |r: usize, c: usize| f(&field.shown[r][c]);
                     (1.0 - t) * ((1.0 - u) * g(i, j) + u * g(i, j1))
                         + t * ((1.0 - u) * g(i1, j) + u * g(i1, j1))
                 };
@@ -387,8 +462,8 @@ impl ThicknessAngle {
 
     /// Segments of the gamut-edge contour (relative chroma 1) in data
     /// coordinates, by marching squares on the sample grid.
-    fn edge_segments(&self) -> Vec<[(f64, f64); 2]> {
-        let e = |i: usize, j: usize| self.shown[i][j].excess.min(1.0);
+    fn edge_segments(&self, field: &ThicknessField) -> Vec<[(f64, f64); 2]> {
+        let e = |i: usize, j: usize| field.shown[i][j].excess.min(1.0);
         let mut out = Vec::new();
         let (nv, na) = (self.values.len(), self.angles.len());
         if na < 2 {
@@ -416,6 +491,76 @@ impl ThicknessAngle {
             }
         }
         out
+    }
+
+    /// Draws `field` on its axes `chart` (on `root`): the colours, the gamut
+    /// edge and the design's line, notch and label, which ends left of
+    /// `reach` (pixels of `root`) or else stands left of the notch.
+    fn draw_field<DB: DrawingBackend>(
+        &self,
+        root: &DrawingArea<DB, Shift>,
+        s: &Style,
+        chart: &mut Plot<'_, DB>,
+        field: &ThicknessField,
+        reach: i32,
+    ) -> DrawResult<DB> {
+        let (xs, ys) = chart.plotting_area().get_pixel_range();
+        let base = root.get_base_pixel();
+        let (w, h) = ((xs.end - xs.start) as usize, (ys.end - ys.start) as usize);
+        root.draw(&Pixels {
+            pos: (xs.start - base.0, ys.start - base.1),
+            size: (w as u32, h as u32),
+            rgb: self.pixels(field, (w, h), s),
+        })?;
+        // The gamut edge: ink over a white halo, legible on any colour.
+        let segments = self.edge_segments(field);
+        for (colour, width) in [(WHITE, 3.0), (INK, 1.4)] {
+            chart.draw_series(
+                segments
+                    .iter()
+                    .map(|seg| PathElement::new(seg.to_vec(), colour.stroke_width(s.line(width)))),
+            )?;
+        }
+        // The design: a dashed line across the field and a notch above it.
+        let (a0, a1) = self.angle_range();
+        let (x, top) = chart.backend_coord(&(self.nominal, a1));
+        let (_, bottom) = chart.backend_coord(&(self.nominal, a0));
+        let (x, top, bottom) = (x - base.0, top - base.1, bottom - base.1);
+        let (dash, gap) = (s.px(9.0), s.px(6.0));
+        for (colour, width) in [(WHITE, 3.0), (INK, 1.4)] {
+            let mut y = top;
+            while y < bottom {
+                root.draw(&PathElement::new(
+                    vec![(x, y), (x, (y + dash).min(bottom))],
+                    colour.stroke_width(s.line(width)),
+                ))?;
+                y += dash + gap;
+            }
+        }
+        let m = s.px(7.0);
+        root.draw(&Polygon::new(
+            vec![
+                (x - m, top - 2 * m - s.px(3.0)),
+                (x + m, top - 2 * m - s.px(3.0)),
+                (x, top - s.px(3.0)),
+            ],
+            INK.filled(),
+        ))?;
+        let label_w = super::font::width(&self.nominal_label, s.size(14.0), FontStyle::Normal);
+        let right = (x + m + s.px(6.0)) as f64 + label_w < reach as f64;
+        root.draw(&Text::new(
+            self.nominal_label.clone(),
+            if right {
+                (x + m + s.px(6.0), top - m - s.px(3.0))
+            } else {
+                (x - m - s.px(6.0), top - m - s.px(3.0))
+            },
+            s.text(14.0, INK).pos(Pos::new(
+                if right { HPos::Left } else { HPos::Right },
+                VPos::Center,
+            )),
+        ))?;
+        Ok(())
     }
 }
 
@@ -453,64 +598,9 @@ impl Chart for ThicknessAngle {
 
     fn draw<DB: DrawingBackend>(&self, root: &DrawingArea<DB, Shift>) -> DrawResult<DB> {
         let s = Style::new(root.dim_in_pixel());
-        let (mut chart, _) = self.layout(root, &s)?;
-        let (xs, ys) = chart.plotting_area().get_pixel_range();
-        let base = root.get_base_pixel();
-        let (w, h) = ((xs.end - xs.start) as usize, (ys.end - ys.start) as usize);
-        root.draw(&Pixels {
-            pos: (xs.start - base.0, ys.start - base.1),
-            size: (w as u32, h as u32),
-            rgb: self.field((w, h), &s),
-        })?;
-        // The gamut edge: ink over a white halo, legible on any colour.
-        let segments = self.edge_segments();
-        for (colour, width) in [(WHITE, 3.0), (INK, 1.4)] {
-            chart.draw_series(
-                segments
-                    .iter()
-                    .map(|seg| PathElement::new(seg.to_vec(), colour.stroke_width(s.line(width)))),
-            )?;
+        for ((mut plot, reach), field) in self.plots(root, &s)?.into_iter().zip(&self.fields) {
+            self.draw_field(root, &s, &mut plot, field, reach)?;
         }
-        // The design: a dashed line across the field and a notch above it.
-        let (a0, a1) = self.angle_range();
-        let (x, top) = chart.backend_coord(&(self.nominal, a1));
-        let (_, bottom) = chart.backend_coord(&(self.nominal, a0));
-        let (x, top, bottom) = (x - base.0, top - base.1, bottom - base.1);
-        let (dash, gap) = (s.px(9.0), s.px(6.0));
-        for (colour, width) in [(WHITE, 3.0), (INK, 1.4)] {
-            let mut y = top;
-            while y < bottom {
-                root.draw(&PathElement::new(
-                    vec![(x, y), (x, (y + dash).min(bottom))],
-                    colour.stroke_width(s.line(width)),
-                ))?;
-                y += dash + gap;
-            }
-        }
-        let m = s.px(7.0);
-        root.draw(&Polygon::new(
-            vec![
-                (x - m, top - 2 * m - s.px(3.0)),
-                (x + m, top - 2 * m - s.px(3.0)),
-                (x, top - s.px(3.0)),
-            ],
-            INK.filled(),
-        ))?;
-        let (rw, _) = root.dim_in_pixel();
-        let label_w = super::font::width(&self.nominal_label, s.size(14.0), FontStyle::Normal);
-        let right = (x + m + s.px(6.0)) as f64 + label_w < rw as f64 - s.px(10.0) as f64;
-        root.draw(&Text::new(
-            self.nominal_label.clone(),
-            if right {
-                (x + m + s.px(6.0), top - m - s.px(3.0))
-            } else {
-                (x - m - s.px(6.0), top - m - s.px(3.0))
-            },
-            s.text(14.0, INK).pos(Pos::new(
-                if right { HPos::Left } else { HPos::Right },
-                VPos::Center,
-            )),
-        ))?;
         if self.any_outside() {
             gamut::legend_line(root, &s, &self.legend)?;
         }
