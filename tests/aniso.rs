@@ -1,6 +1,7 @@
 //! The 4×4 path: isotropic layers against the 2×2 engine, a uniaxial slab
 //! against closed forms, a retarder between crossed polarizers, chiral
-//! nematics against de Vries, energy balance and mirror symmetry.
+//! nematics against de Vries, energy balance, mirror symmetry and reciprocity
+//! of transmission.
 
 mod common;
 
@@ -422,4 +423,89 @@ fn slicing_criterion_meets_its_tolerance() {
         .iter()
         .fold(0.0f64, |m, z| m.max(z.norm()));
     assert!(gap < 1e-11, "{hard} steps: {gap}");
+}
+
+/// ε rotated by half a turn about the y axis, (x, y, z) → (−x, y, −z):
+/// the same structure seen from its back face.
+fn turned(eps: &Matrix3<Complex64>) -> Matrix3<Complex64> {
+    let r = Matrix3::from_diagonal(&nalgebra::Vector3::new(-1.0, 1.0, -1.0)).map(|x| c(x, 0.0));
+    r * eps * r
+}
+
+/// ε of a biaxial medium with principal indices `n` whose axes are turned
+/// by the z-x-z Euler angles `euler` (radians) from the stack frame.
+fn biaxial(n: [Complex64; 3], euler: [f64; 3]) -> Matrix3<Complex64> {
+    let rz = |a: f64| Matrix3::new(a.cos(), -a.sin(), 0.0, a.sin(), a.cos(), 0.0, 0.0, 0.0, 1.0);
+    let rx = |a: f64| Matrix3::new(1.0, 0.0, 0.0, 0.0, a.cos(), -a.sin(), 0.0, a.sin(), a.cos());
+    let q = (rz(euler[0]) * rx(euler[1]) * rz(euler[2])).map(|x| c(x, 0.0));
+    let d = Matrix3::from_diagonal(&nalgebra::Vector3::new(
+        n[0] * n[0],
+        n[1] * n[1],
+        n[2] * n[2],
+    ));
+    q * d * q.transpose()
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(60))]
+
+    /// Reciprocity of transmission (Lorentz reciprocity for a symmetric ε;
+    /// Landau & Lifshitz, *Electrodynamics of Continuous Media*, 2nd ed.
+    /// 1984, §89): light sent back along the transmitted wave, from the exit
+    /// medium, through the same structure turned half a turn about y, has
+    /// the transposed power-transmission matrix, |t′_{ab}|² = |t_{ba}|² in
+    /// the (p, s) basis, with absorption, tilted biaxial layers, helices of
+    /// any thickness and a repeat group. The reversed stack is built from
+    /// the forward one: layers in reverse order, each tensor turned, a
+    /// helix's start azimuth −(φ₀ + turn·2π·d/p), its sense unchanged.
+    #[test]
+    fn transmission_is_reciprocal(
+        layers in prop::collection::vec((
+            [1.3f64..1.8, 1.3f64..1.8, 1.3f64..1.8],
+            [0.0f64..6.3, 0.0f64..3.2, 0.0f64..6.3],
+            20.0f64..400.0,
+            0u8..3,
+        ), 1..5),
+        k in prop_oneof![Just(0.0), 0.0f64..0.05],
+        count in 1u64..4,
+        wl in 400.0f64..750.0,
+        deg in 0.0f64..70.0,
+    ) {
+        let media = vec![c(1.0, 0.0), c(1.45, k), c(1.52, 0.0)];
+        let (mut tensors, mut nodes, mut back) = (Vec::new(), Vec::new(), Vec::new());
+        for &(n, euler, d, kind) in &layers {
+            let eps = biaxial(n.map(|x| c(x, k)), euler);
+            tensors.push(eps);
+            tensors.push(turned(&eps));
+            let (t, tb) = (tensors.len() - 2, tensors.len() - 1);
+            match kind {
+                0 => {
+                    nodes.push(Layer4::Tensor { tensor: t, thickness_nm: d });
+                    back.push(Layer4::Tensor { tensor: tb, thickness_nm: d });
+                }
+                1 => {
+                    let (pitch, thickness, turn, start) = (d, 2.3 * d, if euler[0] < PI { 1.0 } else { -1.0 }, euler[2]);
+                    let helix = |tensor, start_rad| Layer4::Helix { tensor, thickness_nm: thickness, pitch_nm: pitch, turn, start_rad, steps_per_pitch: 128 };
+                    nodes.push(helix(t, start));
+                    back.push(helix(tb, -(start + turn * 2.0 * PI * thickness / pitch)));
+                }
+                _ => {
+                    nodes.push(Layer4::Isotropic { medium: 1, thickness_nm: d });
+                    back.push(Layer4::Isotropic { medium: 1, thickness_nm: d });
+                }
+            }
+        }
+        back.reverse();
+        let forward = Stack4 { incident: 0, nodes: vec![Layer4::Repeat { count, nodes }], exit: 2 };
+        let reverse = Stack4 { incident: 2, nodes: vec![Layer4::Repeat { count, nodes: back }], exit: 0 };
+        let j = jones(&forward, &media, &tensors, wl, deg);
+        let inside = (media[0].re * deg.to_radians().sin() / media[2].re).asin().to_degrees();
+        let jb = jones(&reverse, &media, &tensors, wl, inside);
+        for a in 0..2 {
+            for b in 0..2 {
+                let (there, back) = (j.t[(a, b)].norm_sqr(), jb.t[(b, a)].norm_sqr());
+                prop_assert!((there - back).abs() < 1e-9, "|t_{a}{b}|² = {there} but back {back}: {j:?} vs {jb:?}");
+            }
+        }
+    }
 }
