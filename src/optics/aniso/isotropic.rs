@@ -4,10 +4,22 @@
 //! combined with one complex number per block and polarization, by the same
 //! interface map and Redheffer star product as [`S`], written out for
 //! scalars (L. Li, J. Opt. Soc. Am. A 13, 1024, 1996).
+//!
+//! Where every layer of a run is lossless and the waves in it propagate,
+//! the run is computed as the 2×2 engine computes it: the product of the
+//! layers' characteristic matrices in real arithmetic (Born & Wolf,
+//! *Principles of Optics*, 7th ed. 1999, §1.6.2), turned into the
+//! scattering coefficients once. That product stays accurate (it is
+//! unimodular and rescaled, and in a stop band its dominant direction is
+//! what the coefficients need), and costs a fraction of a star product per
+//! layer.
 
 use nalgebra::{Matrix2, Vector4};
 use num_complex::Complex64 as C;
 
+use super::super::exact::EXACT_FROM;
+use super::super::matrix::{Mat, Phase, RealPair};
+use super::super::medium::MediumTerms;
 use super::Layer4;
 use super::modes::{Modes, flux};
 use super::smatrix::{S, Singular};
@@ -112,6 +124,25 @@ impl Scalar {
         })
     }
 
+    /// [`Scalar::of_map`] for the map e^{`log`}·`m` of a run whose
+    /// characteristic matrix is unimodular, so that det of the map is
+    /// `det`, the ratio of its media's wave determinants: the backward
+    /// transmission det/m₁₁ then needs no difference of large products.
+    fn of_scaled_map(m: &Matrix2<C>, log: f64, det: C) -> Result<Scalar, Singular> {
+        let m11 = m[(0, 0)];
+        if m11 == C::new(0.0, 0.0) {
+            return Err(Singular);
+        }
+        let inv11 = m11.inv();
+        let unscale = (-log).exp();
+        Ok(Scalar {
+            r_front: m[(1, 0)] * inv11,
+            t_forward: inv11 * unscale,
+            t_backward: det * inv11 * unscale,
+            r_back: -inv11 * m[(0, 1)],
+        })
+    }
+
     /// [`S::then`] for scalars.
     fn then(&self, next: &Scalar) -> Result<Scalar, Singular> {
         let d = C::new(1.0, 0.0) - next.r_front * self.r_back;
@@ -162,6 +193,21 @@ impl Split {
         Ok(Split([one(0)?, one(1)?]))
     }
 
+    /// The run between the waves `front` (its first layer's medium) and
+    /// `back` (its last's) whose characteristic matrices (s, p) are `m`:
+    /// the amplitude map W_front⁻¹·M·W_back per polarization.
+    fn of_product(m: &RealPair, front: &Waves, back: &Waves) -> Result<Split, Singular> {
+        let det = |b: &Matrix2<C>| b[(0, 0)] * b[(1, 1)] - b[(0, 1)] * b[(1, 0)];
+        let one = |k: usize, lane: &Mat| {
+            let [[a, b], [c, d]] = lane.m;
+            let map = front.inverses[k] * Matrix2::new(a, b, c, d) * back.blocks[k];
+            let ratio = det(&back.blocks[k]) * det(&front.inverses[k]);
+            Scalar::of_scaled_map(&map, lane.log, ratio)
+        };
+        let (s, p) = m.complex();
+        Ok(Split([one(0, &p)?, one(1, &s)?]))
+    }
+
     fn then(&self, next: &Split) -> Result<Split, Singular> {
         Ok(Split([
             self.0[0].then(&next.0[0])?,
@@ -204,6 +250,7 @@ pub struct Cache {
     xi: f64,
     k0: f64,
     waves: Vec<Option<Waves>>,
+    terms: Vec<Option<MediumTerms>>,
     interfaces: Vec<((usize, usize), Split)>,
 }
 
@@ -215,8 +262,13 @@ impl Cache {
             xi,
             k0,
             waves: vec![None; media],
+            terms: vec![None; media],
             interfaces: Vec::new(),
         }
+    }
+
+    fn terms(&mut self, n: &[C], m: usize) -> MediumTerms {
+        *self.terms[m].get_or_insert_with(|| MediumTerms::new(n[m], self.xi))
     }
 
     fn waves(&mut self, n: &[C], m: usize) -> Waves {
@@ -264,8 +316,73 @@ pub fn is_isotropic(node: &Layer4) -> bool {
 }
 
 /// The run of `nodes` (each [`is_isotropic`]) at one point, `n` the
-/// media's indices; `None` when there are no nodes.
+/// media's indices; `None` when there are no nodes. In real arithmetic
+/// where every layer is lossless with propagating waves (and every repeat
+/// shorter than the 2×2 engine's double-double threshold), else by star
+/// products.
 pub fn run(nodes: &[Layer4], n: &[C], cache: &mut Cache) -> Result<Option<Run>, Singular> {
+    if let (Some(front), Some(back)) = (edge_medium(nodes, false), edge_medium(nodes, true))
+        && let Some(m) = real_product(nodes, n, cache)
+    {
+        let (wf, wb) = (cache.waves(n, front), cache.waves(n, back));
+        return Ok(Some(Run {
+            front,
+            split: Split::of_product(&m, &wf, &wb)?,
+            back,
+        }));
+    }
+    scattered(nodes, n, cache)
+}
+
+/// The medium of the first (`from_back`: last) layer of `nodes`.
+fn edge_medium(nodes: &[Layer4], from_back: bool) -> Option<usize> {
+    let medium = |node: &Layer4| match node {
+        Layer4::Isotropic { medium, .. } => Some(*medium),
+        Layer4::Repeat { nodes, .. } => edge_medium(nodes, from_back),
+        Layer4::Tensor { .. } | Layer4::Helix { .. } => None,
+    };
+    if from_back {
+        nodes.iter().rev().find_map(medium)
+    } else {
+        nodes.iter().find_map(medium)
+    }
+}
+
+/// The characteristic matrices (s, p) of `nodes`, the product of their
+/// layers' in real arithmetic as the 2×2 engine forms them, when every
+/// layer is lossless with propagating waves ([`MediumTerms::real`]) and
+/// every repeat is shorter than [`EXACT_FROM`] periods; `None` otherwise.
+fn real_product(nodes: &[Layer4], n: &[C], cache: &mut Cache) -> Option<RealPair> {
+    let mut m = RealPair::identity();
+    for node in nodes {
+        let next = match *node {
+            Layer4::Isotropic {
+                medium,
+                thickness_nm,
+            } => {
+                let t = cache.terms(n, medium);
+                if !t.real {
+                    return None;
+                }
+                RealPair::of_layer(
+                    &Phase::new(cache.k0 * thickness_nm, t.q),
+                    [t.eta_s.re, t.eta_p.re],
+                    [t.inv_eta_s.re, t.inv_eta_p.re],
+                )
+            }
+            Layer4::Repeat { count, ref nodes } if count < EXACT_FROM => {
+                real_product(nodes, n, cache)?.pow(count)
+            }
+            _ => return None,
+        };
+        m = m.mul(&next);
+    }
+    Some(m)
+}
+
+/// [`run`] by star products of interfaces and layers, stable for absorbing
+/// and evanescent layers and long repeats.
+fn scattered(nodes: &[Layer4], n: &[C], cache: &mut Cache) -> Result<Option<Run>, Singular> {
     let mut acc: Option<Run> = None;
     for node in nodes {
         let part = match *node {
