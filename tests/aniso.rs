@@ -38,6 +38,31 @@ fn jones(s: &Stack4, n: &[Complex64], tensors: &[Matrix3<Complex64>], wl: f64, d
     s.jones(n, tensors, &at).unwrap()
 }
 
+/// Layers (index, thickness) appended to `media`, written both as
+/// isotropic runs and as the same layers given as tensors ε = n²I (tensor
+/// m is medium m's).
+fn both_ways(
+    media: &mut Vec<Complex64>,
+    layers: impl Iterator<Item = (Complex64, f64)>,
+) -> (Vec<Layer4>, Vec<Layer4>) {
+    layers
+        .map(|(n, thickness_nm)| {
+            media.push(n);
+            let m = media.len() - 1;
+            (
+                Layer4::Isotropic {
+                    medium: m,
+                    thickness_nm,
+                },
+                Layer4::Tensor {
+                    tensor: m,
+                    thickness_nm,
+                },
+            )
+        })
+        .unzip()
+}
+
 fn medium() -> impl Strategy<Value = Complex64> + Clone {
     (1.0f64..3.0, prop_oneof![Just(0.0), 0.0f64..1.5]).prop_map(|(n, k)| c(n, k))
 }
@@ -105,13 +130,7 @@ proptest! {
         deg in 0.0f64..85.0,
     ) {
         let mut media = vec![c(n0, 0.0)];
-        let (mut runs, mut general) = (Vec::new(), Vec::new());
-        for &(n, d) in &layers {
-            media.push(n);
-            let m = media.len() - 1;
-            runs.push(Layer4::Isotropic { medium: m, thickness_nm: d });
-            general.push(Layer4::Tensor { tensor: m, thickness_nm: d });
-        }
+        let (mut runs, mut general) = both_ways(&mut media, layers.iter().copied());
         let mut tensors: Vec<_> = media.iter().map(|&n| iso_tensor(n)).collect();
         let (no, ne, polar, azimuth, d) = crystal;
         tensors.push(uniaxial(c(no, 0.0), c(ne, 0.0), polar, azimuth));
@@ -156,13 +175,10 @@ proptest! {
         deg in 0.0f64..80.0,
     ) {
         let mut media = vec![c(1.0, 0.0)];
-        let (mut runs, mut general) = (Vec::new(), Vec::new());
-        for (i, &(n, d)) in layers.iter().enumerate() {
-            media.push(match odd { Some((j, m)) if j == i => m, _ => c(n, 0.0) });
-            let m = media.len() - 1;
-            runs.push(Layer4::Isotropic { medium: m, thickness_nm: d });
-            general.push(Layer4::Tensor { tensor: m, thickness_nm: d });
-        }
+        let given = layers.iter().enumerate().map(|(i, &(n, d))| {
+            (match odd { Some((j, m)) if j == i => m, _ => c(n, 0.0) }, d)
+        });
+        let (mut runs, mut general) = both_ways(&mut media, given);
         let mut tensors: Vec<_> = media.iter().map(|&n| iso_tensor(n)).collect();
         let (no, ne, polar, azimuth, d) = crystal;
         tensors.push(uniaxial(c(no, 0.0), c(ne, 0.0), polar, azimuth));
